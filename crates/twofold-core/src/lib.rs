@@ -8,29 +8,29 @@
 //! numbers back. Every formula names its published source in the documentation of the item that
 //! computes it.
 
-pub mod term;
 pub mod prec;
+pub mod term;
 
 // Planning.
-pub mod design;
 pub mod alias;
-pub mod search;
 pub mod blocking;
-pub mod plan;
+pub mod design;
 pub mod foldover;
 pub mod ofat;
+pub mod plan;
+pub mod search;
 
 // Analysis.
-pub mod data;
-pub mod columns;
-pub mod effects;
-pub mod lenth;
-pub mod halfnormal;
-pub mod transform;
 pub mod anova;
-pub mod diagnostics;
 pub mod boxcox;
+pub mod columns;
+pub mod data;
+pub mod diagnostics;
+pub mod effects;
+pub mod halfnormal;
+pub mod lenth;
 pub mod means;
 pub mod predict;
+pub mod transform;
 
 pub use term::{SignedTerm, Term};
