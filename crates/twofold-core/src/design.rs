@@ -332,6 +332,56 @@ impl FractionalDesign {
         FractionalDesign::with_generators(factor_count, gens)
     }
 
+    /// Builds the fraction whose defining relation is spanned by `words` (any spanning set, e.g.
+    /// a whole defining group; `I` and repeated words are ignored). Generated factors are taken
+    /// from the last letters, as in published tables.
+    ///
+    /// # Method
+    /// Gaussian elimination over GF(2) (words as bit sets, signs carried along as products),
+    /// pivoting on the highest letter of each word, then back-substitution so every pivot letter
+    /// appears in exactly one word: `I = ±f·W` reads as the generator `f = ±W`.
+    pub fn from_defining_words(
+        factor_count: usize,
+        words: &[SignedTerm],
+    ) -> Result<FractionalDesign, DesignError> {
+        let mut basis: Vec<(usize, SignedTerm)> = Vec::new();
+        for &w in words {
+            let mut w = w;
+            for &(pivot, b) in &basis {
+                if w.term.contains(pivot) {
+                    w = w.times(b);
+                }
+            }
+            if w.term.is_identity() {
+                if w.negative {
+                    return Err(DesignError::Dependent(
+                        "the words contradict each other (I = -I)".into(),
+                    ));
+                }
+                continue;
+            }
+            let pivot = w.term.span() - 1;
+            for entry in &mut basis {
+                if entry.1.term.contains(pivot) {
+                    entry.1 = entry.1.times(w);
+                }
+            }
+            basis.push((pivot, w));
+        }
+        basis.sort_by_key(|(pivot, _)| *pivot);
+        let generators = basis
+            .iter()
+            .map(|&(pivot, w)| Generator {
+                factor: pivot,
+                word: SignedTerm {
+                    term: w.term.times(Term::main(pivot)),
+                    negative: w.negative,
+                },
+            })
+            .collect();
+        FractionalDesign::with_generators(factor_count, generators)
+    }
+
     /// Number of factors k.
     pub fn factor_count(&self) -> usize {
         self.factor_count
