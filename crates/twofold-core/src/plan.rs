@@ -9,6 +9,7 @@
 
 use crate::blocking::{BlockScheme, BlockingError, choose_scheme, scheme_from_generators};
 use crate::design::FractionalDesign;
+use crate::foldover::FoldOver;
 use crate::term::Term;
 use rand::{Rng, SeedableRng};
 use rand_chacha::ChaCha20Rng;
@@ -24,6 +25,9 @@ pub enum PlanError {
     /// The blocking could not be set up.
     #[error(transparent)]
     Blocking(#[from] BlockingError),
+    /// A fold-over runs as its own block, so it does not combine with other blocking.
+    #[error("a fold-over runs as its own block; it cannot be combined with other blocking")]
+    FoldWithBlocks,
     /// The plan would be too large to hold.
     #[error("{0} runs is more than a plan can hold (at most 1,048,576)")]
     TooLarge(usize),
@@ -125,63 +129,104 @@ impl Plan {
 
 /// Builds the plan.
 pub fn build_plan(spec: &PlanSpec) -> Result<Plan, PlanError> {
-    if spec.replicates == 0 {
-        return Err(PlanError::NoReplicates);
-    }
     let design = &spec.design;
     let scheme = match &spec.blocking {
         Blocking::None => scheme_from_generators(design, &[])?,
         Blocking::Count(n) => choose_scheme(design, *n)?,
         Blocking::Generators(g) => scheme_from_generators(design, g)?,
     };
+    let (runs, block_count) = lay_out(spec, &[design.coded_runs()], &scheme)?;
+    Ok(Plan {
+        design: design.clone(),
+        scheme,
+        block_count,
+        runs,
+    })
+}
+
+/// Builds the plan of a fraction and its fold-over: the original runs are block 1 (they are
+/// usually already done), the follow-up runs block 2, each with its own centre points and
+/// replicates, randomised within its block. `spec.design` must be the original fraction; the
+/// returned plan's design is the combined one.
+pub fn build_fold_over_plan(spec: &PlanSpec, fold: &FoldOver) -> Result<Plan, PlanError> {
+    if spec.blocking != Blocking::None || spec.replicates_as_blocks {
+        return Err(PlanError::FoldWithBlocks);
+    }
+    let scheme = scheme_from_generators(&spec.design, &[])?;
+    let halves = [spec.design.coded_runs(), fold.follow_up_runs.clone()];
+    let (runs, block_count) = lay_out(spec, &halves, &scheme)?;
+    Ok(Plan {
+        design: fold.combined.clone(),
+        scheme,
+        block_count,
+        runs,
+    })
+}
+
+/// Lays out one or more sets of base rows (each set its own group of blocks): replicates,
+/// blocks, centre points, standard order, then randomisation within blocks.
+fn lay_out(
+    spec: &PlanSpec,
+    sets: &[Vec<Vec<i8>>],
+    scheme: &BlockScheme,
+) -> Result<(Vec<PlannedRun>, u32), PlanError> {
+    if spec.replicates == 0 {
+        return Err(PlanError::NoReplicates);
+    }
     let per_rep_blocks = scheme.block_count() as u32;
-    let n = design.base_runs();
-    let block_sets = if spec.replicates_as_blocks {
+    let reps_as_blocks = if spec.replicates_as_blocks {
         spec.replicates
     } else {
         1
     };
-    let total_blocks = per_rep_blocks as usize * block_sets;
-    let total = n
+    let blocks_per_set = per_rep_blocks as usize * reps_as_blocks;
+    let total_blocks = blocks_per_set * sets.len();
+    let base: usize = sets.iter().map(Vec::len).sum();
+    let total = base
         .checked_mul(spec.replicates)
         .and_then(|x| x.checked_add(spec.centre_points.saturating_mul(total_blocks)))
         .unwrap_or(usize::MAX);
     if total > MAX_PLAN_RUNS {
         return Err(PlanError::TooLarge(total));
     }
-    let base = design.coded_runs();
-    let k = design.factor_count();
+    let k = spec.design.factor_count();
     let mut runs: Vec<PlannedRun> = Vec::with_capacity(total);
-    for rep in 0..spec.replicates {
-        let set = if spec.replicates_as_blocks { rep } else { 0 };
-        for (i, levels) in base.iter().enumerate() {
-            runs.push(PlannedRun {
-                std_order: rep * n + i + 1,
-                run_order: 0,
-                block: set as u32 * per_rep_blocks + scheme.block_of(levels),
-                centre: false,
-                replicate: rep as u32 + 1,
-                levels: levels.clone(),
-            });
+    for (set_index, rows) in sets.iter().enumerate() {
+        let set_offset = (set_index * blocks_per_set) as u32;
+        for rep in 0..spec.replicates {
+            let rep_offset = if spec.replicates_as_blocks {
+                rep as u32 * per_rep_blocks
+            } else {
+                0
+            };
+            for levels in rows {
+                runs.push(PlannedRun {
+                    std_order: runs.len() + 1,
+                    run_order: 0,
+                    block: set_offset + rep_offset + scheme.block_of(levels),
+                    centre: false,
+                    replicate: rep as u32 + 1,
+                    levels: levels.clone(),
+                });
+            }
         }
     }
-    let mut next_std = runs.len() + 1;
     for block in 1..=total_blocks as u32 {
+        let within_set = (block - 1) % blocks_per_set as u32;
         let replicate = if spec.replicates_as_blocks {
-            (block - 1) / per_rep_blocks + 1
+            within_set / per_rep_blocks + 1
         } else {
             1
         };
         for _ in 0..spec.centre_points {
             runs.push(PlannedRun {
-                std_order: next_std,
+                std_order: runs.len() + 1,
                 run_order: 0,
                 block,
                 centre: true,
                 replicate,
                 levels: vec![0; k],
             });
-            next_std += 1;
         }
     }
     // Blocks in sequence, standard order inside each, then shuffle within each block.
@@ -202,12 +247,7 @@ pub fn build_plan(spec: &PlanSpec) -> Result<Plan, PlanError> {
     for (i, r) in runs.iter_mut().enumerate() {
         r.run_order = i + 1;
     }
-    Ok(Plan {
-        design: design.clone(),
-        scheme,
-        block_count: total_blocks as u32,
-        runs,
-    })
+    Ok((runs, total_blocks as u32))
 }
 
 /// Fisher–Yates shuffle (Knuth, TAOCP vol. 2, Algorithm 3.4.2P) with an index drawn as the high
@@ -273,6 +313,23 @@ mod tests {
     }
 
     const GOLDEN_SEED_1: [usize; 8] = [13, 1, 16, 9, 14, 2, 11, 4];
+
+    #[test]
+    fn fold_over_plan_puts_the_follow_up_in_block_two() {
+        use crate::foldover::{FoldKind, fold_over};
+        let d = FractionalDesign::from_text(5, Some(8), "D=AB, E=AC").unwrap();
+        let fold = fold_over(&d, FoldKind::Full).unwrap();
+        let mut spec = PlanSpec::new(d.clone(), 5);
+        spec.centre_points = 1;
+        let plan = build_fold_over_plan(&spec, &fold).unwrap();
+        assert_eq!(plan.total_runs(), 18);
+        assert_eq!(plan.block_count, 2);
+        let originals = d.coded_runs();
+        for r in plan.runs.iter().filter(|r| !r.centre) {
+            assert_eq!(originals.contains(&r.levels), r.block == 1);
+        }
+        assert_eq!(plan.design.base_runs(), 16);
+    }
 
     #[test]
     fn replicates_as_blocks_number_blocks_on() {
