@@ -80,6 +80,12 @@ pub fn resolution(design: &FractionalDesign) -> Option<u32> {
         .min()
 }
 
+/// Resolution read off a word-length pattern `(A3, A4, ...)`: 3 plus the index of the first
+/// non-zero count; `None` when every count is zero (a full factorial).
+pub fn resolution_from_pattern(pattern: &[usize]) -> Option<u32> {
+    pattern.iter().position(|&c| c > 0).map(|i| i as u32 + 3)
+}
+
 /// Roman numeral of a resolution (III, IV, ...), as designs are named in the trade.
 pub fn roman(resolution: u32) -> String {
     const TABLE: [(u32, &str); 7] = [
@@ -263,6 +269,12 @@ mod tests {
         assert_eq!(r.resolution, Some(3));
         let warned = r.main_effects_aliased_with_interactions();
         assert!(warned.iter().any(|(t, _)| t.label() == "A"));
+    }
+
+    #[test]
+    fn resolution_from_a_pattern() {
+        assert_eq!(resolution_from_pattern(&[0, 7, 0, 0, 0]), Some(4));
+        assert_eq!(resolution_from_pattern(&[0, 0]), None);
     }
 
     #[test]
