@@ -1,1 +1,41 @@
-//! (module being written)
+//! The project model: plain data the window reads, edits it applies, and the files it lives in.
+//!
+//! - [`model`]: the data ([`Project`], [`Factor`], [`DesignSettings`], [`RunRecord`], ...).
+//! - [`cell`]: a typed response value, kept as text, read on demand ([`Cell`], [`CellValue`]).
+//! - [`validate`]: per-field errors and warnings ([`Problem`]).
+//! - [`edit`]: every change as a value ([`Edit`]) applied by [`Project::apply`].
+//! - [`history`]: undo/redo, dirty flag and the data revision caches key on ([`History`]).
+//! - [`regenerate`]: the run sheet from the design, keeping typed values that survive.
+
+pub mod cell;
+pub mod edit;
+pub mod history;
+pub mod model;
+pub mod regenerate;
+pub mod validate;
+
+pub use cell::{Cell, CellValue};
+pub use edit::{Edit, EditError};
+pub use history::History;
+pub use model::{
+    BlockChoice, DesignSettings, FORMAT_VERSION, Factor, FactorKind, Level, MAX_FACTORS,
+    MIN_FACTORS, ModelSettings, Project, ResponseDef, ResponseTransform, RunRecord, RunStatus,
+};
+pub use regenerate::PlanError;
+pub use validate::{FactorField, Field, Problem, Severity};
+
+impl Project {
+    /// An empty project with the given name: no factors, default design, no runs.
+    pub fn new(name: &str) -> Project {
+        Project {
+            format_version: FORMAT_VERSION,
+            name: name.to_string(),
+            description: String::new(),
+            factors: Vec::new(),
+            design: DesignSettings::default(),
+            responses: Vec::new(),
+            runs: Vec::new(),
+            runs_outdated: false,
+        }
+    }
+}

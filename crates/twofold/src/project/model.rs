@@ -1,0 +1,318 @@
+//! The project as plain data: what the engineer typed and chose, nothing computed.
+//!
+//! Everything here is `serde` data written to the project file. Derived things (parsed cell
+//! values, natural-unit settings, validation problems) are computed by methods on demand and never
+//! stored, so the file cannot disagree with itself.
+
+use serde::{Deserialize, Serialize};
+
+use super::cell::Cell;
+
+/// Version of the project file format written by this build. Older versions are migrated on load
+/// (see [`super::migrate`]); newer ones are refused with a clear message.
+pub const FORMAT_VERSION: u32 = 1;
+
+/// Fewest factors a project may have.
+pub const MIN_FACTORS: usize = 2;
+
+/// Most factors a project may have (the letters A..Z without I).
+pub const MAX_FACTORS: usize = twofold_core::term::MAX_FACTORS;
+
+/// One experiment: factors, the chosen design, responses, the run sheet and the analysis choices.
+///
+/// Invariants kept by [`Project::apply`](super::edit) and checked on load
+/// ([`Project::check_structure`]): every run has one coded setting per factor and one cell per
+/// response; every response has its own [`ModelSettings`].
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Project {
+    /// File format version; [`FORMAT_VERSION`] for a project made by this build.
+    pub format_version: u32,
+    /// Short title shown in the window and on reports.
+    pub name: String,
+    /// Free text: purpose, material lot, anything the engineer wants to keep with the data.
+    #[serde(default)]
+    pub description: String,
+    /// The factors in letter order (the first is A, the second B, ... skipping I).
+    pub factors: Vec<Factor>,
+    /// What the engineer chose for the design.
+    pub design: DesignSettings,
+    /// Measured quantities, each with its own analysis choices.
+    #[serde(default)]
+    pub responses: Vec<ResponseDef>,
+    /// The run sheet, in standard order of generation (display order is the engineer's choice).
+    #[serde(default)]
+    pub runs: Vec<RunRecord>,
+    /// `true` when factors or design settings changed after the runs were generated, so the run
+    /// sheet no longer follows from them; cleared by regenerating the runs.
+    #[serde(default)]
+    pub runs_outdated: bool,
+}
+
+/// One factor: a name, a unit and its two levels.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Factor {
+    /// Name as shown to the engineer ("Cure temperature").
+    pub name: String,
+    /// Unit of the levels ("°C"); empty for categorical factors or dimensionless numbers.
+    #[serde(default)]
+    pub unit: String,
+    /// Numeric or categorical, with its levels.
+    pub kind: FactorKind,
+    /// Range the process is known to tolerate, `(lowest, highest)`, numeric factors only. A level
+    /// outside it is a warning, never an error: the engineer may have good reason.
+    #[serde(default)]
+    pub safe_range: Option<(f64, f64)>,
+}
+
+/// Whether a factor has numeric levels (and so a centre) or two named settings.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub enum FactorKind {
+    /// A quantity set at two values; the centre is their midpoint.
+    Numeric {
+        /// Value coded −1.
+        low: f64,
+        /// Value coded +1.
+        high: f64,
+    },
+    /// Two named settings ("supplier X" / "supplier Y"); no centre exists.
+    Categorical {
+        /// Setting coded −1.
+        low_label: String,
+        /// Setting coded +1.
+        high_label: String,
+    },
+}
+
+/// A factor setting in natural units, as the engineer sets it at the bench.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum Level<'a> {
+    /// A numeric value in the factor's unit.
+    Number(f64),
+    /// A named setting of a categorical factor.
+    Label(&'a str),
+}
+
+impl Factor {
+    /// A numeric factor without a safe range.
+    pub fn numeric(name: &str, unit: &str, low: f64, high: f64) -> Factor {
+        Factor {
+            name: name.to_string(),
+            unit: unit.to_string(),
+            kind: FactorKind::Numeric { low, high },
+            safe_range: None,
+        }
+    }
+
+    /// A categorical factor.
+    pub fn categorical(name: &str, low_label: &str, high_label: &str) -> Factor {
+        Factor {
+            name: name.to_string(),
+            unit: String::new(),
+            kind: FactorKind::Categorical {
+                low_label: low_label.to_string(),
+                high_label: high_label.to_string(),
+            },
+            safe_range: None,
+        }
+    }
+
+    /// Whether the factor is numeric (and so may take a centre setting).
+    pub fn is_numeric(&self) -> bool {
+        matches!(self.kind, FactorKind::Numeric { .. })
+    }
+
+    /// The natural setting for a coded level: −1 → low, +1 → high, 0 → midpoint of a numeric
+    /// factor. `None` for 0 on a categorical factor and for any other code.
+    pub fn natural(&self, coded: i8) -> Option<Level<'_>> {
+        match (&self.kind, coded) {
+            (FactorKind::Numeric { low, .. }, -1) => Some(Level::Number(*low)),
+            (FactorKind::Numeric { high, .. }, 1) => Some(Level::Number(*high)),
+            (FactorKind::Numeric { low, high }, 0) => Some(Level::Number(0.5 * (low + high))),
+            (FactorKind::Categorical { low_label, .. }, -1) => Some(Level::Label(low_label)),
+            (FactorKind::Categorical { high_label, .. }, 1) => Some(Level::Label(high_label)),
+            _ => None,
+        }
+    }
+}
+
+/// What the engineer chose for the design; the run sheet is generated from it.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct DesignSettings {
+    /// Generators of the fraction, e.g. `"E=ABCD"` or `"F=-ABC"`. Empty: a full factorial when
+    /// `base_runs` is `None` (or 2^k), otherwise the fraction of `base_runs` runs found by the
+    /// minimum-aberration search.
+    #[serde(default)]
+    pub generators: Vec<String>,
+    /// Runs of one replicate without centre points (a power of two), or `None` for 2^k.
+    #[serde(default)]
+    pub base_runs: Option<u32>,
+    /// Centre points added to each block; only possible when every factor is numeric.
+    #[serde(default)]
+    pub centre_points_per_block: u32,
+    /// Complete copies of the design (1 = no replication).
+    pub replicates: u32,
+    /// How the runs are split into blocks.
+    #[serde(default)]
+    pub blocks: BlockChoice,
+    /// Whether the run order is randomised (from `seed`) or follows the standard order.
+    #[serde(default = "default_true")]
+    pub randomize: bool,
+    /// Seed of the run-order randomisation, kept so the same sheet can be regenerated.
+    pub seed: u64,
+}
+
+fn default_true() -> bool {
+    true
+}
+
+impl Default for DesignSettings {
+    /// A full factorial, one replicate, no blocks, no centre points, randomised from seed 1.
+    fn default() -> Self {
+        DesignSettings {
+            generators: Vec::new(),
+            base_runs: None,
+            centre_points_per_block: 0,
+            replicates: 1,
+            blocks: BlockChoice::default(),
+            randomize: true,
+            seed: 1,
+        }
+    }
+}
+
+/// How the runs are split into blocks.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub enum BlockChoice {
+    /// This many blocks (a power of two; 1 = unblocked), the block generators chosen by the
+    /// program.
+    Count(u32),
+    /// Block generators given by the engineer, e.g. `["ABC"]` for two blocks.
+    Generators(Vec<String>),
+}
+
+impl Default for BlockChoice {
+    /// Unblocked.
+    fn default() -> Self {
+        BlockChoice::Count(1)
+    }
+}
+
+/// A measured quantity and the analysis chosen for it.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct ResponseDef {
+    /// Name ("Gloss at 60°").
+    pub name: String,
+    /// Unit ("GU"); may be empty.
+    #[serde(default)]
+    pub unit: String,
+    /// Model terms, hierarchy and transform chosen for this response.
+    #[serde(default)]
+    pub model: ModelSettings,
+}
+
+impl ResponseDef {
+    /// A response with no model chosen yet.
+    pub fn new(name: &str, unit: &str) -> ResponseDef {
+        ResponseDef {
+            name: name.to_string(),
+            unit: unit.to_string(),
+            model: ModelSettings::default(),
+        }
+    }
+}
+
+/// The analysis choices for one response.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct ModelSettings {
+    /// Terms in the model, as labels in the trade's order (`"A"`, `"BD"`); empty = none chosen yet.
+    #[serde(default)]
+    pub terms: Vec<String>,
+    /// Whether the fit adds the lower-order parents of every chosen interaction.
+    #[serde(default = "default_true")]
+    pub hierarchical: bool,
+    /// Transform applied to the response before analysis.
+    #[serde(default)]
+    pub transform: ResponseTransform,
+}
+
+impl Default for ModelSettings {
+    /// No terms, hierarchical, untransformed.
+    fn default() -> Self {
+        ModelSettings {
+            terms: Vec::new(),
+            hierarchical: true,
+            transform: ResponseTransform::None,
+        }
+    }
+}
+
+/// Transform of the response before analysis.
+#[derive(Debug, Clone, Copy, PartialEq, Default, Serialize, Deserialize)]
+pub enum ResponseTransform {
+    /// The response as measured.
+    #[default]
+    None,
+    /// Natural logarithm (values must be positive).
+    Ln,
+    /// Base-10 logarithm (values must be positive).
+    Log10,
+    /// Square root (values must not be negative).
+    Sqrt,
+    /// 1/y (values must not be zero).
+    Reciprocal,
+    /// y^λ, or ln y for λ = 0 (the Box–Cox family without its scaling).
+    Power {
+        /// The exponent λ.
+        lambda: f64,
+    },
+}
+
+/// One row of the run sheet.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct RunRecord {
+    /// Position in the standard order of the design (1-based).
+    pub std_order: u32,
+    /// Position in the order the runs are carried out (1-based).
+    pub run_order: u32,
+    /// Block label (1-based).
+    pub block: u32,
+    /// Whether this is a centre point.
+    pub centre: bool,
+    /// Replicate number (1-based).
+    pub replicate: u32,
+    /// Coded setting of each factor: −1, 0 (centre) or +1.
+    pub levels: Vec<i8>,
+    /// One cell per response, as typed.
+    pub values: Vec<Cell>,
+    /// Whether the run is still to do, done, or excluded from the analysis.
+    #[serde(default)]
+    pub status: RunStatus,
+    /// The engineer's note on the run ("nozzle clogged halfway").
+    #[serde(default)]
+    pub note: String,
+    /// When a value was last entered, as ISO-8601 text supplied by the caller.
+    #[serde(default)]
+    pub entered_at: Option<String>,
+}
+
+/// The state of a run.
+#[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
+pub enum RunStatus {
+    /// Not carried out yet.
+    #[default]
+    ToDo,
+    /// Carried out.
+    Done,
+    /// Kept in the sheet but left out of the analysis.
+    Excluded {
+        /// Why, in the engineer's words.
+        reason: String,
+    },
+}
+
+impl RunStatus {
+    /// Whether the run is left out of the analysis.
+    pub fn is_excluded(&self) -> bool {
+        matches!(self, RunStatus::Excluded { .. })
+    }
+}

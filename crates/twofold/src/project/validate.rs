@@ -1,0 +1,224 @@
+//! Per-field problems of a project: errors that stop planning or analysis, and warnings the
+//! engineer should see but may override.
+
+use super::model::{FactorKind, MAX_FACTORS, MIN_FACTORS, Project};
+
+/// How serious a problem is.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord)]
+pub enum Severity {
+    /// Worth a look; nothing is blocked (e.g. a level outside the safe range).
+    Warning,
+    /// Planning or analysis cannot go on until it is fixed.
+    Error,
+}
+
+/// Which part of a factor a problem is about.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[non_exhaustive]
+pub enum FactorField {
+    /// The name.
+    Name,
+    /// The unit.
+    Unit,
+    /// The levels (numeric values or labels).
+    Levels,
+    /// The safe range.
+    SafeRange,
+}
+
+/// Where a problem is, so the window can show it beside the field.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[non_exhaustive]
+pub enum Field {
+    /// The project's name.
+    ProjectName,
+    /// The list of factors as a whole (e.g. how many there are).
+    Factors,
+    /// One field of one factor.
+    Factor {
+        /// Factor position.
+        index: usize,
+        /// Which field.
+        part: FactorField,
+    },
+    /// The design settings.
+    Design,
+    /// The name of one response.
+    ResponseName {
+        /// Response position.
+        index: usize,
+    },
+    /// The model terms of one response.
+    ResponseModel {
+        /// Response position.
+        index: usize,
+    },
+}
+
+/// One problem found by [`Project::validate`].
+#[derive(Debug, Clone, PartialEq)]
+pub struct Problem {
+    /// Error or warning.
+    pub severity: Severity,
+    /// Where.
+    pub field: Field,
+    /// What is wrong, in words for the engineer.
+    pub message: String,
+}
+
+impl Project {
+    /// All problems of the project, errors and warnings, in field order.
+    pub fn validate(&self) -> Vec<Problem> {
+        let mut out = Vec::new();
+        let mut push = |severity, field, message: String| {
+            out.push(Problem {
+                severity,
+                field,
+                message,
+            })
+        };
+        let n = self.factors.len();
+        if !(MIN_FACTORS..=MAX_FACTORS).contains(&n) {
+            push(
+                Severity::Error,
+                Field::Factors,
+                format!("{n} factors: a design needs {MIN_FACTORS} to {MAX_FACTORS}"),
+            );
+        }
+        for (index, f) in self.factors.iter().enumerate() {
+            let at = |part| Field::Factor { index, part };
+            let name = f.name.trim();
+            if name.is_empty() {
+                push(
+                    Severity::Error,
+                    at(FactorField::Name),
+                    "the factor needs a name".into(),
+                );
+            } else if self.factors[..index]
+                .iter()
+                .any(|g| g.name.trim().eq_ignore_ascii_case(name))
+            {
+                push(
+                    Severity::Error,
+                    at(FactorField::Name),
+                    format!("another factor is already called “{name}”"),
+                );
+            }
+            match &f.kind {
+                FactorKind::Numeric { low, high } => {
+                    if !low.is_finite() || !high.is_finite() {
+                        push(
+                            Severity::Error,
+                            at(FactorField::Levels),
+                            "levels must be finite numbers".into(),
+                        );
+                    } else if low == high {
+                        push(
+                            Severity::Error,
+                            at(FactorField::Levels),
+                            "low and high levels are equal: the factor would not vary".into(),
+                        );
+                    }
+                    if let Some((lo, hi)) = f.safe_range {
+                        if !lo.is_finite() || !hi.is_finite() || lo > hi {
+                            push(
+                                Severity::Error,
+                                at(FactorField::SafeRange),
+                                "the safe range needs a lowest value not above the highest".into(),
+                            );
+                        } else {
+                            for (which, v) in [("low", low), ("high", high)] {
+                                if *v < lo || *v > hi {
+                                    push(
+                                        Severity::Warning,
+                                        at(FactorField::Levels),
+                                        format!(
+                                            "{which} level {v} {unit}is outside the safe range {lo} to {hi}",
+                                            unit = unit_space(&f.unit)
+                                        ),
+                                    );
+                                }
+                            }
+                        }
+                    }
+                }
+                FactorKind::Categorical {
+                    low_label,
+                    high_label,
+                } => {
+                    if low_label.trim().is_empty() || high_label.trim().is_empty() {
+                        push(
+                            Severity::Error,
+                            at(FactorField::Levels),
+                            "both settings need a name".into(),
+                        );
+                    } else if low_label.trim() == high_label.trim() {
+                        push(
+                            Severity::Error,
+                            at(FactorField::Levels),
+                            "both settings have the same name: the factor would not vary".into(),
+                        );
+                    }
+                    if f.safe_range.is_some() {
+                        push(
+                            Severity::Error,
+                            at(FactorField::SafeRange),
+                            "a categorical factor has no safe range".into(),
+                        );
+                    }
+                }
+            }
+        }
+        if self.design.centre_points_per_block > 0 && self.factors.iter().any(|f| !f.is_numeric()) {
+            push(
+                Severity::Error,
+                Field::Design,
+                "centre points need every factor to be numeric".into(),
+            );
+        }
+        if self.design.replicates == 0 {
+            push(
+                Severity::Error,
+                Field::Design,
+                "at least one replicate is needed".into(),
+            );
+        }
+        for (index, r) in self.responses.iter().enumerate() {
+            let name = r.name.trim();
+            if name.is_empty() {
+                push(
+                    Severity::Error,
+                    Field::ResponseName { index },
+                    "the response needs a name".into(),
+                );
+            } else if self.responses[..index]
+                .iter()
+                .any(|g| g.name.trim().eq_ignore_ascii_case(name))
+            {
+                push(
+                    Severity::Error,
+                    Field::ResponseName { index },
+                    format!("another response is already called “{name}”"),
+                );
+            }
+            for label in &r.model.terms {
+                if let Err(e) = twofold_core::term::Term::parse(label, n) {
+                    push(
+                        Severity::Error,
+                        Field::ResponseModel { index },
+                        format!("model term: {e}"),
+                    );
+                }
+            }
+        }
+        out
+    }
+}
+
+fn unit_space(unit: &str) -> String {
+    if unit.is_empty() {
+        String::new()
+    } else {
+        format!("{unit} ")
+    }
+}
