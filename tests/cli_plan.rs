@@ -1,1 +1,199 @@
-//! (checks being written)
+//! The headless `plan` command, called in-process: JSON keys an outside check reads, published
+//! designs chosen by the search, and one-line errors with exit code 2.
+//!
+//! Sources: Montgomery, D. C. (2017), *Design and Analysis of Experiments*, 9th ed., Example 8-2
+//! (the 2^(5-1) with I = ABCDE, verified) and the table of selected 2^(k−p) designs (verified
+//! rows in the acceptance module `design_tables`).
+
+use serde_json::Value;
+
+fn run(args: &[&str]) -> (i32, String, String) {
+    let args: Vec<String> = args.iter().map(|s| s.to_string()).collect();
+    let mut out = Vec::new();
+    let mut err = Vec::new();
+    let code = twofold_app::cli::run(&args, &mut out, &mut err);
+    (
+        code,
+        String::from_utf8_lossy(&out).into_owned(),
+        String::from_utf8_lossy(&err).into_owned(),
+    )
+}
+
+fn plan_json(args: &[&str]) -> Value {
+    let mut full = vec!["plan"];
+    full.extend_from_slice(args);
+    full.push("--json");
+    let (code, out, err) = run(&full);
+    assert_eq!(code, 0, "{err}");
+    serde_json::from_str(&out).unwrap()
+}
+
+#[test]
+fn half_fraction_of_five_factors_has_the_published_relation() {
+    let j = plan_json(&["--factors", "5", "--runs", "16", "--seed", "1"]);
+    assert_eq!(j["factors"], serde_json::json!(["A", "B", "C", "D", "E"]));
+    assert_eq!(j["base_runs"], 16);
+    assert_eq!(j["total_runs"], 16);
+    assert_eq!(j["generators"], serde_json::json!(["E=ABCD"]));
+    assert_eq!(j["defining_relation"], serde_json::json!(["I=ABCDE"]));
+    assert_eq!(j["resolution"], 5);
+    assert_eq!(j["word_length_pattern"], serde_json::json!([0, 0, 1]));
+    assert_eq!(j["proven_minimum_aberration"], true);
+    assert_eq!(j["aliases"]["AB"], serde_json::json!(["CDE"]));
+    assert_eq!(
+        j["clear_two_factor_interactions"].as_array().unwrap().len(),
+        10
+    );
+    assert_eq!(j["runs"].as_array().unwrap().len(), 16);
+    let run0 = &j["runs"][0];
+    for key in ["std_order", "run_order", "block", "centre", "levels"] {
+        assert!(run0.get(key).is_some(), "run key {key}");
+    }
+}
+
+#[test]
+fn given_generators_are_used_and_not_searched() {
+    let j = plan_json(&[
+        "--factors",
+        "7",
+        "--runs",
+        "16",
+        "--generators",
+        "E=ABC,F=BCD,G=ACD",
+    ]);
+    assert_eq!(j["proven_minimum_aberration"], Value::Null);
+    assert_eq!(j["word_length_pattern"], serde_json::json!([0, 7, 0, 0, 0]));
+    assert_eq!(j["resolution"], 4);
+}
+
+#[test]
+fn full_factorial_has_null_resolution() {
+    let j = plan_json(&["--factors", "Temp,Time,Speed"]);
+    assert_eq!(j["resolution"], Value::Null);
+    assert_eq!(j["base_runs"], 8);
+    assert_eq!(
+        j["factor_names"],
+        serde_json::json!(["Temp", "Time", "Speed"])
+    );
+    assert_eq!(j["defining_relation"], serde_json::json!([]));
+}
+
+#[test]
+fn centre_points_replicates_and_blocks_count_into_total_runs() {
+    let j = plan_json(&[
+        "--factors",
+        "4",
+        "--centre-points",
+        "2",
+        "--replicates",
+        "2",
+        "--blocks",
+        "2",
+        "--seed",
+        "9",
+    ]);
+    // 2 × 16 factorial runs + 2 centre points in each of 2 blocks.
+    assert_eq!(j["total_runs"], 36);
+    assert_eq!(j["blocks_confounded_with"], serde_json::json!(["ABCD"]));
+    let centres = j["runs"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .filter(|r| r["centre"] == true)
+        .count();
+    assert_eq!(centres, 4);
+}
+
+#[test]
+fn same_seed_gives_the_same_run_order() {
+    let a = plan_json(&["--factors", "4", "--seed", "77"]);
+    let b = plan_json(&["--factors", "4", "--seed", "77"]);
+    assert_eq!(a["runs"], b["runs"]);
+}
+
+#[test]
+fn fold_over_of_a_resolution_iii_design_reaches_resolution_iv() {
+    // Montgomery 2017, §8.6 (full fold-over of a resolution III design gives resolution IV; a
+    // property of the method, verified in the text).
+    let j = plan_json(&[
+        "--factors",
+        "7",
+        "--runs",
+        "8",
+        "--generators",
+        "D=AB,E=AC,F=BC,G=ABC",
+        "--fold",
+        "full",
+    ]);
+    assert_eq!(j["resolution"], 4);
+    assert_eq!(j["total_runs"], 16);
+    assert_eq!(j["fold_over"]["kind"], "full");
+}
+
+#[test]
+fn csv_output_has_a_header_and_one_row_per_run() {
+    let (code, out, _) = run(&["plan", "--factors", "3", "--csv", "--seed", "2"]);
+    assert_eq!(code, 0);
+    let lines: Vec<&str> = out.lines().collect();
+    assert_eq!(lines[0], "run_order,std_order,block,centre,replicate,A,B,C");
+    assert_eq!(lines.len(), 9);
+}
+
+#[test]
+fn bad_input_gives_one_line_and_exit_code_two() {
+    let cases: &[(&[&str], &str)] = &[
+        (&["plan"], "--factors is required"),
+        (&["plan", "--factors", "1"], "2 to 25 factors"),
+        (&["plan", "--factors", "26"], "2 to 25 factors"),
+        (
+            &["plan", "--factors", "5", "--runs", "12"],
+            "not a power of two",
+        ),
+        (
+            &["plan", "--factors", "3", "--runs", "16"],
+            "more than the full factorial",
+        ),
+        (&["plan", "--factors", "7", "--runs", "4"], "too few"),
+        (
+            &["plan", "--factors", "5", "--generators", "E=ABJ"],
+            "beyond the last factor",
+        ),
+        (
+            &["plan", "--factors", "6", "--generators", "E=ABC,F=ABC"],
+            "aliases two main effects",
+        ),
+        (
+            &[
+                "plan",
+                "--factors",
+                "5",
+                "--runs",
+                "8",
+                "--generators",
+                "E=ABCD",
+            ],
+            "give 16 runs",
+        ),
+        (
+            &["plan", "--factors", "5", "--bogus"],
+            "unknown option `--bogus`",
+        ),
+        (
+            &["plan", "--factors", "5", "--seed", "x"],
+            "not a whole number",
+        ),
+        (&["plan", "--factors", "A,a"], "given twice"),
+        (
+            &["plan", "--factors", "3", "--fold", "full"],
+            "full factorial",
+        ),
+        (&["plan", "--factors", "3", "--blocks", "3"], "2, 4, 8"),
+    ];
+    for (args, needle) in cases {
+        let (code, out, err) = run(args);
+        assert_eq!(code, 2, "{args:?}: {err}");
+        assert!(out.is_empty(), "{args:?}");
+        assert_eq!(err.trim_end().lines().count(), 1, "{args:?}: {err}");
+        assert!(err.contains(needle), "{args:?}: {err}");
+    }
+}

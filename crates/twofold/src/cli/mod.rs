@@ -7,6 +7,7 @@
 use std::io::Write;
 
 pub mod analyze;
+pub mod args;
 pub mod export;
 pub mod plan;
 
@@ -38,5 +39,16 @@ pub fn run(args: &[String], out: &mut dyn Write, err: &mut dyn Write) -> i32 {
             );
             EXIT_BAD_INPUT
         }
+    }
+}
+
+/// A text cell made safe for spreadsheets: text starting with `=`, `+`, `-`, `@`, a tab or a
+/// carriage return is prefixed with a single quote so it is not read as a formula (OWASP, "CSV
+/// Injection"). Used for names in headless CSV output.
+pub fn csv_text(text: &str) -> String {
+    if text.starts_with(['=', '+', '-', '@', '\t', '\r']) {
+        format!("'{text}")
+    } else {
+        text.to_string()
     }
 }

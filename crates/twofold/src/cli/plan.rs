@@ -1,9 +1,470 @@
-//! The `plan` subcommand (being written).
+//! `twofold plan`: a design, its aliasing and its run sheet, without a window.
+//!
+//! ```text
+//! twofold plan --factors 5 --runs 16 [--generators "E=ABCD"] [--centre-points 3]
+//!              [--replicates 2] [--blocks 2 | --block-on "ABC,ACD"] [--replicates-as-blocks]
+//!              [--seed 42] [--standard-order] [--fold full|A] [--search-seconds 2]
+//!              [--json | --csv]
+//! ```
 
+use super::args::{self, ArgError};
+use super::{EXIT_BAD_INPUT, EXIT_FAILURE};
+use serde_json::{Value, json};
 use std::io::Write;
+use std::time::Duration;
+use twofold_core::alias::{AliasReport, alias_report, relation_label, roman};
+use twofold_core::design::{FractionalDesign, check_run_count};
+use twofold_core::foldover::{FoldKind, FoldOver, fold_over};
+use twofold_core::ofat;
+use twofold_core::plan::{Blocking, Plan, PlanSpec, build_fold_over_plan, build_plan};
+use twofold_core::search::{SearchBudget, minimum_aberration};
+use twofold_core::term::{LETTERS, MAX_FACTORS, Term, factor_index};
 
-/// Runs `twofold plan` with the arguments after the subcommand name.
-pub fn run(_args: &[String], _out: &mut dyn Write, err: &mut dyn Write) -> i32 {
-    let _ = writeln!(err, "error: `plan` is not available yet");
-    super::EXIT_FAILURE
+const WITH_VALUE: &[&str] = &[
+    "--factors",
+    "--runs",
+    "--generators",
+    "--centre-points",
+    "--replicates",
+    "--blocks",
+    "--block-on",
+    "--seed",
+    "--fold",
+    "--search-seconds",
+];
+const FLAGS: &[&str] = &[
+    "--json",
+    "--csv",
+    "--standard-order",
+    "--replicates-as-blocks",
+];
+
+/// Bad input to `plan`, in words for the command line.
+#[derive(Debug, thiserror::Error)]
+enum PlanInputError {
+    #[error(transparent)]
+    Args(#[from] ArgError),
+    #[error("{0}")]
+    Invalid(String),
+}
+
+fn invalid(msg: impl Into<String>) -> PlanInputError {
+    PlanInputError::Invalid(msg.into())
+}
+
+/// Everything `plan` computed, ready to print.
+struct Planned {
+    names: Vec<String>,
+    design: FractionalDesign,
+    report: AliasReport,
+    proven: Option<bool>,
+    plan: Plan,
+    seed: u64,
+    fold: Option<FoldOver>,
+    centre_points: usize,
+    replicates: usize,
+}
+
+/// Runs `twofold plan`.
+pub fn run(args: &[String], out: &mut dyn Write, err: &mut dyn Write) -> i32 {
+    let planned = match compute(args) {
+        Ok(p) => p,
+        Err(e) => {
+            let _ = writeln!(err, "error: {e}");
+            return EXIT_BAD_INPUT;
+        }
+    };
+    let parsed = args::parse(args, WITH_VALUE, FLAGS).ok();
+    let as_json = parsed.as_ref().is_some_and(|p| p.flag("--json"));
+    let as_csv = parsed.as_ref().is_some_and(|p| p.flag("--csv"));
+    let written = if as_json {
+        serde_json::to_string_pretty(&to_json(&planned))
+            .map_err(std::io::Error::other)
+            .and_then(|s| writeln!(out, "{s}"))
+    } else if as_csv {
+        write_csv(&planned, out)
+    } else {
+        write_text(&planned, out)
+    };
+    match written {
+        Ok(()) => 0,
+        Err(e) => {
+            let _ = writeln!(err, "error: could not write the plan: {e}");
+            EXIT_FAILURE
+        }
+    }
+}
+
+fn compute(raw: &[String]) -> Result<Planned, PlanInputError> {
+    let a = args::parse(raw, WITH_VALUE, FLAGS)?;
+    if let Some(p) = a.positional.first() {
+        return Err(ArgError::Unexpected(p.clone()).into());
+    }
+    if a.flag("--json") && a.flag("--csv") {
+        return Err(invalid("choose one of --json and --csv"));
+    }
+    let factors = a.value("--factors").ok_or_else(|| {
+        invalid("--factors is required: a count (5) or names (\"Temp,Time,Speed\")")
+    })?;
+    let names = factor_names(factors)?;
+    let k = names.len();
+    let runs: Option<usize> = a.number("--runs")?;
+    if let Some(n) = runs {
+        check_run_count(k, n).map_err(|e| invalid(e.to_string()))?;
+    }
+    let search_seconds: f64 = match a.value("--search-seconds") {
+        Some(v) => v
+            .trim()
+            .parse::<f64>()
+            .ok()
+            .filter(|s| s.is_finite() && *s > 0.0 && *s <= 3600.0)
+            .ok_or_else(|| {
+                invalid(format!(
+                    "--search-seconds: `{v}` is not a number of seconds between 0 and 3600"
+                ))
+            })?,
+        None => 2.0,
+    };
+    let (design, proven) = match a.value("--generators") {
+        Some(g) => (
+            FractionalDesign::from_text(k, runs, g).map_err(|e| invalid(e.to_string()))?,
+            None,
+        ),
+        None => match runs {
+            None => (
+                FractionalDesign::full(k).map_err(|e| invalid(e.to_string()))?,
+                None,
+            ),
+            Some(n) if n == 1usize << k => (
+                FractionalDesign::full(k).map_err(|e| invalid(e.to_string()))?,
+                Some(true),
+            ),
+            Some(n) => {
+                let budget = SearchBudget {
+                    time: Duration::from_secs_f64(search_seconds),
+                };
+                let outcome =
+                    minimum_aberration(k, n, &budget).map_err(|e| invalid(e.to_string()))?;
+                (outcome.design, Some(outcome.proven_minimum_aberration))
+            }
+        },
+    };
+    let centre_points: usize = a.number("--centre-points")?.unwrap_or(0);
+    let replicates: usize = a.number("--replicates")?.unwrap_or(1);
+    if replicates == 0 {
+        return Err(invalid("--replicates must be at least 1"));
+    }
+    let blocking = match (a.value("--blocks"), a.value("--block-on")) {
+        (Some(_), Some(_)) => return Err(invalid("give --blocks or --block-on, not both")),
+        (Some(_), None) => match a.number::<usize>("--blocks")? {
+            Some(0 | 1) | None => Blocking::None,
+            Some(n) => Blocking::Count(n),
+        },
+        (None, Some(text)) => Blocking::Generators(
+            text.split(',')
+                .map(|t| Term::parse(t, k).map_err(|e| invalid(format!("--block-on: {e}"))))
+                .collect::<Result<Vec<_>, _>>()?,
+        ),
+        (None, None) => Blocking::None,
+    };
+    let seed: u64 = match a.number("--seed")? {
+        Some(s) => s,
+        None => clock_seed(),
+    };
+    let mut spec = PlanSpec::new(design.clone(), seed);
+    spec.centre_points = centre_points;
+    spec.replicates = replicates;
+    spec.blocking = blocking;
+    spec.replicates_as_blocks = a.flag("--replicates-as-blocks");
+    spec.randomise = !a.flag("--standard-order");
+    let fold = match a.value("--fold") {
+        None => None,
+        Some(text) => {
+            let kind = parse_fold(text, k)?;
+            Some(fold_over(&design, kind).map_err(|e| invalid(e.to_string()))?)
+        }
+    };
+    let plan = match &fold {
+        None => build_plan(&spec),
+        Some(f) => build_fold_over_plan(&spec, f),
+    }
+    .map_err(|e| invalid(e.to_string()))?;
+    let report = match &fold {
+        None => alias_report(&design),
+        Some(f) => f.combined_aliases.clone(),
+    };
+    let design = plan.design.clone();
+    Ok(Planned {
+        names,
+        design,
+        report,
+        proven,
+        plan,
+        seed,
+        fold,
+        centre_points,
+        replicates,
+    })
+}
+
+/// `5` gives five unnamed factors A..E; `Temp,Time,Speed` gives three named ones.
+fn factor_names(text: &str) -> Result<Vec<String>, PlanInputError> {
+    let t = text.trim();
+    if let Ok(k) = t.parse::<usize>() {
+        if !(2..=MAX_FACTORS).contains(&k) {
+            return Err(invalid(format!(
+                "--factors {k}: a design has 2 to {MAX_FACTORS} factors"
+            )));
+        }
+        return Ok(LETTERS[..k].iter().map(|c| c.to_string()).collect());
+    }
+    let names: Vec<String> = t.split(',').map(|s| s.trim().to_string()).collect();
+    if names.iter().any(String::is_empty) {
+        return Err(invalid("--factors: a factor name is empty"));
+    }
+    if !(2..=MAX_FACTORS).contains(&names.len()) {
+        return Err(invalid(format!(
+            "--factors: {} names given; a design has 2 to {MAX_FACTORS} factors",
+            names.len()
+        )));
+    }
+    for (i, n) in names.iter().enumerate() {
+        if names[..i].iter().any(|m| m.eq_ignore_ascii_case(n)) {
+            return Err(invalid(format!("--factors: name `{n}` is given twice")));
+        }
+    }
+    Ok(names)
+}
+
+fn parse_fold(text: &str, k: usize) -> Result<FoldKind, PlanInputError> {
+    let t = text.trim();
+    if t.eq_ignore_ascii_case("full") {
+        return Ok(FoldKind::Full);
+    }
+    let mut chars = t.chars();
+    if let (Some(c), None) = (chars.next(), chars.next())
+        && let Some(i) = factor_index(c)
+        && i < k
+    {
+        return Ok(FoldKind::Factor(i));
+    }
+    Err(invalid(format!(
+        "--fold `{t}`: expected `full` or one factor letter A..{}",
+        LETTERS[k - 1]
+    )))
+}
+
+fn clock_seed() -> u64 {
+    std::time::SystemTime::now()
+        .duration_since(std::time::UNIX_EPOCH)
+        .map(|d| d.as_secs())
+        .unwrap_or(1)
+}
+
+fn labels(terms: &[Term]) -> Vec<String> {
+    terms.iter().map(|t| t.label()).collect()
+}
+
+fn to_json(p: &Planned) -> Value {
+    let k = p.design.factor_count();
+    let mut aliases = serde_json::Map::new();
+    for (t, a) in &p.report.aliases {
+        aliases.insert(
+            t.label(),
+            Value::from(a.iter().map(ToString::to_string).collect::<Vec<_>>()),
+        );
+    }
+    let runs: Vec<Value> = p
+        .plan
+        .runs
+        .iter()
+        .map(|r| {
+            json!({
+                "std_order": r.std_order,
+                "run_order": r.run_order,
+                "block": r.block,
+                "centre": r.centre,
+                "replicate": r.replicate,
+                "levels": r.levels,
+            })
+        })
+        .collect();
+    let fold = p.fold.as_ref().map(|f| {
+        json!({
+            "kind": match f.kind { FoldKind::Full => "full".to_string(), FoldKind::Factor(i) => LETTERS[i].to_string() },
+            "description": f.describe(),
+            "broken_words": f.broken_words.iter().map(|w| relation_label(*w)).collect::<Vec<_>>(),
+            "repeats_original": f.repeats_original,
+        })
+    });
+    json!({
+        "factors": LETTERS[..k].iter().map(|c| c.to_string()).collect::<Vec<_>>(),
+        "factor_names": p.names,
+        "base_runs": p.design.base_runs(),
+        "total_runs": p.plan.total_runs(),
+        "centre_points_per_block": p.centre_points,
+        "replicates": p.replicates,
+        "blocks": p.plan.block_count,
+        "generators": p.design.generator_labels(),
+        "defining_relation": p.report.defining_relation.iter().map(|w| relation_label(*w)).collect::<Vec<_>>(),
+        "resolution": p.report.resolution,
+        "word_length_pattern": p.report.word_length_pattern,
+        "aliases": aliases,
+        "clear_main_effects": labels(&p.report.clear_main_effects),
+        "clear_two_factor_interactions": labels(&p.report.clear_two_factor_interactions),
+        "proven_minimum_aberration": p.proven,
+        "block_generators": labels(&p.plan.scheme.generators),
+        "blocks_confounded_with": labels(&p.plan.scheme.confounded),
+        "seed": p.seed,
+        "ofat_equivalent_runs": ofat::equivalent_runs(k, p.design.base_runs()),
+        "fold_over": fold,
+        "runs": runs,
+    })
+}
+
+fn write_csv(p: &Planned, out: &mut dyn Write) -> std::io::Result<()> {
+    let mut w = csv::Writer::from_writer(out);
+    let mut header = vec![
+        "run_order".to_string(),
+        "std_order".into(),
+        "block".into(),
+        "centre".into(),
+        "replicate".into(),
+    ];
+    header.extend(p.names.iter().map(|n| crate::cli::csv_text(n)));
+    w.write_record(&header).map_err(std::io::Error::other)?;
+    for r in &p.plan.runs {
+        let mut row = vec![
+            r.run_order.to_string(),
+            r.std_order.to_string(),
+            r.block.to_string(),
+            if r.centre { "yes" } else { "no" }.to_string(),
+            r.replicate.to_string(),
+        ];
+        row.extend(r.levels.iter().map(|v| v.to_string()));
+        w.write_record(&row).map_err(std::io::Error::other)?;
+    }
+    w.flush()
+}
+
+fn write_text(p: &Planned, out: &mut dyn Write) -> std::io::Result<()> {
+    let k = p.design.factor_count();
+    let r = &p.report;
+    let kind = match r.resolution {
+        None => format!("full factorial 2^{k}"),
+        Some(res) => format!(
+            "2^({k}-{}) fraction, resolution {}",
+            p.design.generators().len(),
+            roman(res)
+        ),
+    };
+    writeln!(
+        out,
+        "Design: {kind}, {} base runs, {} runs in all",
+        p.design.base_runs(),
+        p.plan.total_runs()
+    )?;
+    for (i, n) in p.names.iter().enumerate() {
+        if n.as_str() != LETTERS[i].to_string() {
+            writeln!(out, "  {} = {n}", LETTERS[i])?;
+        }
+    }
+    if !p.design.is_full() {
+        writeln!(
+            out,
+            "Generators: {}",
+            p.design.generator_labels().join(", ")
+        )?;
+        let words: Vec<String> = r
+            .defining_relation
+            .iter()
+            .map(ToString::to_string)
+            .collect();
+        writeln!(out, "Defining relation: I = {}", words.join(" = "))?;
+        let wlp: Vec<String> = r
+            .word_length_pattern
+            .iter()
+            .map(ToString::to_string)
+            .collect();
+        writeln!(
+            out,
+            "Word-length pattern (A3, A4, ...): ({})",
+            wlp.join(", ")
+        )?;
+    }
+    match p.proven {
+        Some(true) => writeln!(out, "Minimum aberration: proven by the search")?,
+        Some(false) => writeln!(
+            out,
+            "Minimum aberration: not proven (the search ran out of time; best design found)"
+        )?,
+        None => {}
+    }
+    let warned = r.main_effects_aliased_with_interactions();
+    if !warned.is_empty() {
+        writeln!(
+            out,
+            "Warning: main effects are aliased with two-factor interactions; an apparent main effect may be an interaction."
+        )?;
+    }
+    writeln!(out, "Aliases (up to three-factor terms):")?;
+    for (t, a) in &r.aliases {
+        if !a.is_empty() {
+            let list: Vec<String> = a.iter().map(ToString::to_string).collect();
+            writeln!(out, "  {t} = {}", list.join(" = "))?;
+        }
+    }
+    writeln!(
+        out,
+        "Clear main effects: {}",
+        labels(&r.clear_main_effects).join(", ")
+    )?;
+    writeln!(
+        out,
+        "Clear two-factor interactions: {}",
+        labels(&r.clear_two_factor_interactions).join(", ")
+    )?;
+    if !p.plan.scheme.generators.is_empty() {
+        writeln!(
+            out,
+            "Confounded with blocks: {}",
+            labels(&p.plan.scheme.confounded).join(", ")
+        )?;
+    }
+    if let Some(f) = &p.fold {
+        writeln!(
+            out,
+            "Fold-over: {}; block 2 holds the follow-up runs",
+            f.describe()
+        )?;
+    }
+    writeln!(
+        out,
+        "One factor at a time would need {} runs for the same precision.",
+        ofat::equivalent_runs(k, p.design.base_runs())
+    )?;
+    writeln!(out, "Seed: {}", p.seed)?;
+    writeln!(out)?;
+    write!(out, "{:>4} {:>4} {:>5}", "run", "std", "block")?;
+    for i in 0..k {
+        write!(out, " {:>3}", LETTERS[i])?;
+    }
+    writeln!(out)?;
+    for run in &p.plan.runs {
+        write!(
+            out,
+            "{:>4} {:>4} {:>5}",
+            run.run_order, run.std_order, run.block
+        )?;
+        for v in &run.levels {
+            let s = match v {
+                -1 => "-",
+                1 => "+",
+                _ => "0",
+            };
+            write!(out, " {s:>3}")?;
+        }
+        writeln!(out)?;
+    }
+    Ok(())
 }
