@@ -1,9 +1,1138 @@
-//! The desktop window (being written).
+//! The desktop window: a thin shell around the project history, the panes and the file dialogs.
+//!
+//! Each frame: keyboard shortcuts are read, the panes draw the project and return [`Command`]s,
+//! and then [`TwofoldApp::apply`] changes the project in one place (undoable). Derived data
+//! (validation problems, analysis) is recomputed only when the project's revision changes.
+//!
+//! [`TwofoldApp::new_for_test`] builds the same state without a window, file dialogs or files on
+//! disk, and [`TwofoldApp::ui_in`] draws it into any `Ui`, so tests drive the real window code.
 
-use std::path::PathBuf;
+use std::path::{Path, PathBuf};
+use std::sync::mpsc::{Receiver, channel};
+
+use egui::{Key, KeyboardShortcut, Modifiers, RichText, Ui};
+
+use crate::panels::design::DesignPane;
+use crate::panels::effects::EffectsPane;
+use crate::panels::factors::FactorsPane;
+use crate::panels::interactions::PlotsPane;
+use crate::panels::model::ModelPane;
+use crate::panels::prediction::PredictionPane;
+use crate::panels::residuals::ResidualsPane;
+use crate::panels::run_sheet::RunSheetPane;
+use crate::panels::{Command, Pane, Step, View};
+use crate::project::{DesignSettings, Edit, History, Problem, Project, Severity};
+use crate::theme::{self, Palette, ThemeChoice};
+
+/// Short caution about working with real processes, reachable from the Help menu and the status
+/// bar.
+pub const SAFETY_NOTE: &str = "Stay inside the safe operating limits of your equipment and \
+materials. The levels you plan here are suggestions for an experiment, not approved settings: \
+confirm with the people responsible before changing a production process, and follow local codes, \
+site rules and licensed practice. A warning about a safe range is only as good as the range you \
+declared.";
+
+/// Which file dialog is open, and what its answer is for.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum FileAction {
+    /// Pick a project to open.
+    Open,
+    /// Pick where to save the project.
+    SaveAs,
+}
+
+/// Where file dialogs come from.
+pub enum FilePicker {
+    /// Native dialogs on a worker thread, so the window keeps drawing.
+    Native,
+    /// A fixed answer given at once (tests): the path, or `None` for "cancelled".
+    Fixed(Option<PathBuf>),
+}
+
+/// What to do once the engineer has decided about unsaved changes.
+#[derive(Debug, Clone, PartialEq)]
+pub enum AfterUnsaved {
+    /// Start a new project.
+    New,
+    /// Show the open dialog.
+    Open,
+    /// Open this file.
+    OpenPath(PathBuf),
+    /// Close the window.
+    Quit,
+}
+
+/// A question or message shown over the window.
+#[derive(Debug, Clone, PartialEq)]
+pub enum Modal {
+    /// Changing the design after values were typed.
+    ConfirmDesign {
+        /// The new design settings.
+        design: DesignSettings,
+        /// Typed values that would find no run in the new sheet.
+        lost: usize,
+        /// Typed values in the sheet now.
+        typed: usize,
+    },
+    /// Unsaved changes before another action.
+    Unsaved(AfterUnsaved),
+    /// An error in plain words.
+    Error(String),
+    /// The safety caution.
+    Safety,
+}
+
+/// Fields whose consecutive edits (keystrokes in one field) merge into one undo step.
+#[derive(Debug, Clone, PartialEq, Eq)]
+enum CoalesceKey {
+    ProjectName,
+    Description,
+    FactorName(usize),
+    FactorUnit(usize),
+    FactorLevels(usize),
+    SafeRange(usize),
+    ResponseName(usize),
+    ResponseUnit(usize),
+    Note(usize),
+    Status(usize),
+}
+
+fn coalesce_key(edit: &Edit) -> Option<CoalesceKey> {
+    Some(match edit {
+        Edit::SetName(_) => CoalesceKey::ProjectName,
+        Edit::SetDescription(_) => CoalesceKey::Description,
+        Edit::RenameFactor { index, .. } => CoalesceKey::FactorName(*index),
+        Edit::SetFactorUnit { index, .. } => CoalesceKey::FactorUnit(*index),
+        Edit::SetFactorKind { index, .. } => CoalesceKey::FactorLevels(*index),
+        Edit::SetSafeRange { index, .. } => CoalesceKey::SafeRange(*index),
+        Edit::RenameResponse { index, .. } => CoalesceKey::ResponseName(*index),
+        Edit::SetResponseUnit { index, .. } => CoalesceKey::ResponseUnit(*index),
+        Edit::SetNote { run, .. } => CoalesceKey::Note(*run),
+        Edit::SetStatus {
+            run,
+            status: crate::project::RunStatus::Excluded { .. },
+        } => CoalesceKey::Status(*run),
+        _ => return None,
+    })
+}
+
+/// Everything derived from one revision of the project, computed once per change.
+struct Derived {
+    revision: u64,
+    problems: Vec<Problem>,
+}
+
+impl Derived {
+    fn of(project: &Project, revision: u64) -> Derived {
+        Derived {
+            revision,
+            problems: project.validate(),
+        }
+    }
+}
+
+/// The panes, one per step.
+#[derive(Default)]
+struct Panes {
+    factors: FactorsPane,
+    design: DesignPane,
+    runs: RunSheetPane,
+    effects: EffectsPane,
+    model: ModelPane,
+    plots: PlotsPane,
+    residuals: ResidualsPane,
+    predict: PredictionPane,
+}
+
+impl Panes {
+    fn get(&mut self, step: Step) -> &mut dyn Pane {
+        match step {
+            Step::Factors => &mut self.factors,
+            Step::Design => &mut self.design,
+            Step::Runs => &mut self.runs,
+            Step::Effects => &mut self.effects,
+            Step::Model => &mut self.model,
+            Step::Plots => &mut self.plots,
+            Step::Residuals => &mut self.residuals,
+            Step::Predict => &mut self.predict,
+        }
+    }
+}
+
+/// The state of the window.
+pub struct TwofoldApp {
+    history: History,
+    path: Option<PathBuf>,
+    step: Step,
+    response: Option<usize>,
+    theme: ThemeChoice,
+    applied_theme: Option<ThemeChoice>,
+    panes: Panes,
+    derived: Derived,
+    coalesce: Option<(CoalesceKey, u64)>,
+    modal: Option<Modal>,
+    picker: FilePicker,
+    pending_dialog: Option<(FileAction, Receiver<Option<PathBuf>>)>,
+    recent: Vec<PathBuf>,
+    recent_store: Option<PathBuf>,
+    notice: Option<String>,
+    sent_title: String,
+    clock: fn() -> String,
+    quit_confirmed: bool,
+}
+
+/// Most recent files remembered.
+const RECENT_MAX: usize = 8;
+
+impl TwofoldApp {
+    fn with(history: History, path: Option<PathBuf>, picker: FilePicker) -> TwofoldApp {
+        let derived = Derived::of(history.project(), history.revision());
+        let response = (!history.project().responses.is_empty()).then_some(0);
+        let step = if history.project().runs.is_empty() {
+            Step::Factors
+        } else {
+            Step::Runs
+        };
+        TwofoldApp {
+            history,
+            path,
+            step,
+            response,
+            theme: ThemeChoice::Light,
+            applied_theme: None,
+            panes: Panes::default(),
+            derived,
+            coalesce: None,
+            modal: None,
+            picker,
+            pending_dialog: None,
+            recent: Vec::new(),
+            recent_store: None,
+            notice: None,
+            sent_title: String::new(),
+            clock: now_iso,
+            quit_confirmed: false,
+        }
+    }
+
+    /// The window's state over `project`, as if just opened, with no file, no dialogs (every file
+    /// dialog answers "cancelled" until [`Self::set_file_picker`] says otherwise) and a fixed clock.
+    pub fn new_for_test(project: Project) -> TwofoldApp {
+        let mut app = TwofoldApp::with(History::new(project), None, FilePicker::Fixed(None));
+        app.clock = || "2025-01-01T09:00:00Z".to_string();
+        app
+    }
+
+    /// Replaces the source of file-dialog answers (tests use [`FilePicker::Fixed`]).
+    pub fn set_file_picker(&mut self, picker: FilePicker) {
+        self.picker = picker;
+    }
+
+    /// The current project.
+    pub fn project(&self) -> &Project {
+        self.history.project()
+    }
+
+    /// The project history (undo, redo, dirty flag).
+    pub fn history(&self) -> &History {
+        &self.history
+    }
+
+    /// The file the project was opened from or saved to.
+    pub fn path(&self) -> Option<&Path> {
+        self.path.as_deref()
+    }
+
+    /// The step shown.
+    pub fn step(&self) -> Step {
+        self.step
+    }
+
+    /// Shows another step.
+    pub fn set_step(&mut self, step: Step) {
+        self.step = step;
+    }
+
+    /// The question or message shown over the window, if any.
+    pub fn modal(&self) -> Option<&Modal> {
+        self.modal.as_ref()
+    }
+
+    /// The response shown in the analysis panes.
+    pub fn response(&self) -> Option<usize> {
+        self.response
+    }
+
+    /// The window title: project name, file name and the unsaved marker.
+    pub fn title(&self) -> String {
+        let p = self.project();
+        let name = if p.name.trim().is_empty() {
+            "Untitled"
+        } else {
+            p.name.trim()
+        };
+        let file = self
+            .path
+            .as_ref()
+            .and_then(|p| p.file_name())
+            .map(|f| format!(" ({})", f.to_string_lossy()))
+            .unwrap_or_default();
+        let dirty = if self.history.is_dirty() { "• " } else { "" };
+        format!("{dirty}{name}{file} — Twofold")
+    }
+
+    /// Applies one command from a pane, the menus or a test.
+    pub fn apply(&mut self, cmd: Command) {
+        match cmd {
+            Command::Edit(edit) => self.apply_edit(edit),
+            Command::Group(edits) => self.apply_group(edits),
+            Command::ChangeDesign(design) => {
+                let p = self.project();
+                let typed = p.typed_value_count();
+                if typed > 0 {
+                    let lost = p.design_change_would_discard(&design);
+                    self.modal = Some(Modal::ConfirmDesign {
+                        design,
+                        lost,
+                        typed,
+                    });
+                } else {
+                    self.apply_group(vec![Edit::SetDesign(design), Edit::RegenerateRuns]);
+                }
+            }
+            Command::SelectResponse(r) => {
+                if r < self.project().responses.len() {
+                    self.response = Some(r);
+                }
+            }
+            Command::Goto(step) => self.step = step,
+        }
+        self.refresh();
+    }
+
+    fn apply_edit(&mut self, edit: Edit) {
+        let key = coalesce_key(&edit);
+        let merge = matches!((&key, &self.coalesce), (Some(k), Some((last, rev)))
+            if k == last && *rev == self.history.revision());
+        if merge {
+            // Keystrokes in one field make one undo step: replace the previous keystroke's step.
+            self.history.undo();
+        }
+        match self.history.apply(edit) {
+            Ok(()) => self.coalesce = key.map(|k| (k, self.history.revision())),
+            Err(e) => {
+                if merge {
+                    self.history.redo();
+                }
+                self.coalesce = None;
+                self.modal = Some(Modal::Error(e.to_string()));
+            }
+        }
+    }
+
+    fn apply_group(&mut self, edits: Vec<Edit>) {
+        self.coalesce = None;
+        if edits.is_empty() {
+            return;
+        }
+        let mut next = self.project().clone();
+        for edit in edits {
+            if let Err(e) = next.apply(edit) {
+                // All or nothing: the project is left as it was.
+                self.modal = Some(Modal::Error(e.to_string()));
+                return;
+            }
+        }
+        self.history.replace(next);
+    }
+
+    /// Undoes the last step.
+    pub fn undo(&mut self) {
+        self.coalesce = None;
+        self.history.undo();
+        self.refresh();
+    }
+
+    /// Redoes the last undone step.
+    pub fn redo(&mut self) {
+        self.coalesce = None;
+        self.history.redo();
+        self.refresh();
+    }
+
+    /// Recomputes derived data when the revision changed, and keeps the response choice valid.
+    fn refresh(&mut self) {
+        let rev = self.history.revision();
+        if self.derived.revision != rev {
+            self.derived = Derived::of(self.history.project(), rev);
+        }
+        let n = self.project().responses.len();
+        self.response = match self.response {
+            _ if n == 0 => None,
+            Some(r) if r < n => Some(r),
+            _ => Some(0),
+        };
+    }
+
+    /// Draws the whole window into `ui` and applies what the engineer did.
+    pub fn ui_in(&mut self, ui: &mut Ui) {
+        let ctx = ui.ctx().clone();
+        if self.applied_theme != Some(self.theme) {
+            theme::apply(&ctx, self.theme);
+            self.applied_theme = Some(self.theme);
+        }
+        self.poll_dialog();
+        let mut cmds = Vec::new();
+        self.shortcuts(&ctx);
+        let pal = Palette::of(self.theme);
+        self.top_bar(ui, &pal);
+        self.status_bar(ui, &pal);
+        self.step_rail(ui, &pal);
+        let now = (self.clock)();
+        egui::CentralPanel::default().show(ui, |ui| {
+            let Self {
+                history,
+                step,
+                response,
+                panes,
+                derived,
+                ..
+            } = self;
+            let view = View {
+                project: history.project(),
+                revision: history.revision(),
+                problems: &derived.problems,
+                response: *response,
+                pal,
+                now: &now,
+            };
+            if step.is_analysis() {
+                response_picker(ui, &view, &mut cmds);
+            }
+            panes.get(*step).ui(ui, &view, &mut cmds);
+        });
+        self.modals(&ctx, &pal);
+        for cmd in cmds {
+            self.apply(cmd);
+        }
+        let title = self.title();
+        if title != self.sent_title {
+            ctx.send_viewport_cmd(egui::ViewportCommand::Title(title.clone()));
+            self.sent_title = title;
+        }
+    }
+
+    fn shortcuts(&mut self, ctx: &egui::Context) {
+        if self.modal.is_some() {
+            return;
+        }
+        let cmd = Modifiers::COMMAND;
+        let shift = Modifiers::COMMAND | Modifiers::SHIFT;
+        // Most specific first: Ctrl+Shift+Z would also match Ctrl+Z (extra Shift is ignored).
+        let (redo, undo, save_as, save, open, new) = ctx.input_mut(|i| {
+            let redo = i.consume_shortcut(&KeyboardShortcut::new(shift, Key::Z))
+                || i.consume_shortcut(&KeyboardShortcut::new(cmd, Key::Y));
+            let undo = i.consume_shortcut(&KeyboardShortcut::new(cmd, Key::Z));
+            let save_as = i.consume_shortcut(&KeyboardShortcut::new(shift, Key::S));
+            let save = i.consume_shortcut(&KeyboardShortcut::new(cmd, Key::S));
+            let open = i.consume_shortcut(&KeyboardShortcut::new(cmd, Key::O));
+            let new = i.consume_shortcut(&KeyboardShortcut::new(cmd, Key::N));
+            (redo, undo, save_as, save, open, new)
+        });
+        if redo {
+            self.redo();
+        } else if undo {
+            self.undo();
+        }
+        if save_as {
+            self.start_dialog(FileAction::SaveAs);
+        } else if save {
+            self.save();
+        }
+        if open {
+            self.request(AfterUnsaved::Open);
+        }
+        if new {
+            self.request(AfterUnsaved::New);
+        }
+    }
+
+    /// Runs `after` now, or asks first when there are unsaved changes.
+    fn request(&mut self, after: AfterUnsaved) {
+        if self.history.is_dirty() {
+            self.modal = Some(Modal::Unsaved(after));
+        } else {
+            self.proceed(after);
+        }
+    }
+
+    fn proceed(&mut self, after: AfterUnsaved) {
+        match after {
+            AfterUnsaved::New => self.new_project(),
+            AfterUnsaved::Open => self.start_dialog(FileAction::Open),
+            AfterUnsaved::OpenPath(p) => {
+                self.open_path(&p);
+            }
+            AfterUnsaved::Quit => self.quit_confirmed = true,
+        }
+    }
+
+    fn new_project(&mut self) {
+        self.reset_to(History::new_unsaved(Project::new("Untitled")), None);
+        self.step = Step::Factors;
+    }
+
+    fn reset_to(&mut self, history: History, path: Option<PathBuf>) {
+        self.history = history;
+        self.path = path;
+        self.coalesce = None;
+        self.panes = Panes::default();
+        self.derived = Derived::of(self.history.project(), self.history.revision());
+        self.response = None;
+        self.refresh();
+    }
+
+    /// Saves to the current file, or asks where when there is none.
+    pub fn save(&mut self) {
+        match self.path.clone() {
+            Some(p) => {
+                self.save_to(&p);
+            }
+            None => self.start_dialog(FileAction::SaveAs),
+        }
+    }
+
+    /// Saves the project to `path`; on success it becomes the project's file.
+    pub fn save_to(&mut self, path: &Path) -> bool {
+        match save_project(self.project(), path) {
+            Ok(()) => {
+                self.history.mark_saved();
+                self.path = Some(path.to_path_buf());
+                self.remember(path);
+                self.notice = Some(format!("Saved {}", path.display()));
+                true
+            }
+            Err(e) => {
+                self.modal = Some(Modal::Error(format!(
+                    "Could not save {}: {e}",
+                    path.display()
+                )));
+                false
+            }
+        }
+    }
+
+    /// Opens the project at `path`, replacing the current one (the caller asked about unsaved
+    /// changes first).
+    pub fn open_path(&mut self, path: &Path) -> bool {
+        match load_project(path) {
+            Ok(project) => {
+                self.reset_to(History::new(project), Some(path.to_path_buf()));
+                self.step = if self.project().runs.is_empty() {
+                    Step::Factors
+                } else {
+                    Step::Runs
+                };
+                self.remember(path);
+                true
+            }
+            Err(e) => {
+                self.modal = Some(Modal::Error(format!(
+                    "Could not open {}: {e}",
+                    path.display()
+                )));
+                false
+            }
+        }
+    }
+
+    fn remember(&mut self, path: &Path) {
+        self.recent.retain(|p| p != path);
+        self.recent.insert(0, path.to_path_buf());
+        self.recent.truncate(RECENT_MAX);
+        if let Some(store) = &self.recent_store {
+            // Losing the recent list is harmless; the project itself is never at stake here.
+            let _ = write_recent(store, &self.recent);
+        }
+    }
+
+    fn start_dialog(&mut self, action: FileAction) {
+        if self.pending_dialog.is_some() {
+            return;
+        }
+        match &self.picker {
+            FilePicker::Fixed(answer) => {
+                let answer = answer.clone();
+                self.finish_dialog(action, answer);
+            }
+            FilePicker::Native => {
+                let (tx, rx) = channel();
+                let suggested = format!("{}.ron", file_stem(&self.project().name));
+                let dir = self
+                    .path
+                    .as_ref()
+                    .and_then(|p| p.parent())
+                    .map(Path::to_path_buf);
+                std::thread::spawn(move || {
+                    let mut dialog = rfd::FileDialog::new().add_filter("Twofold project", &["ron"]);
+                    if let Some(d) = dir {
+                        dialog = dialog.set_directory(d);
+                    }
+                    let answer = match action {
+                        FileAction::Open => dialog.pick_file(),
+                        FileAction::SaveAs => dialog.set_file_name(suggested).save_file(),
+                    };
+                    // The window may have closed meanwhile; then nobody needs the answer.
+                    let _ = tx.send(answer);
+                });
+                self.pending_dialog = Some((action, rx));
+            }
+        }
+    }
+
+    fn poll_dialog(&mut self) {
+        let Some((action, rx)) = &self.pending_dialog else {
+            return;
+        };
+        match rx.try_recv() {
+            Ok(answer) => {
+                let action = *action;
+                self.pending_dialog = None;
+                self.finish_dialog(action, answer);
+            }
+            Err(std::sync::mpsc::TryRecvError::Empty) => {}
+            Err(std::sync::mpsc::TryRecvError::Disconnected) => self.pending_dialog = None,
+        }
+    }
+
+    fn finish_dialog(&mut self, action: FileAction, answer: Option<PathBuf>) {
+        let Some(path) = answer else {
+            return;
+        };
+        match action {
+            FileAction::Open => {
+                self.open_path(&path);
+            }
+            FileAction::SaveAs => {
+                let path = if path.extension().is_none() {
+                    path.with_extension("ron")
+                } else {
+                    path
+                };
+                self.save_to(&path);
+            }
+        }
+    }
+
+    fn top_bar(&mut self, ui: &mut Ui, pal: &Palette) {
+        egui::Panel::top("top_bar")
+            .frame(
+                egui::Frame::new()
+                    .fill(ui.visuals().panel_fill)
+                    .inner_margin(egui::Margin::symmetric(10, 6)),
+            )
+            .show(ui, |ui| {
+                egui::MenuBar::new().ui(ui, |ui| {
+                    ui.label(
+                        RichText::new("◧ Twofold")
+                            .strong()
+                            .size(18.0)
+                            .color(pal.accent),
+                    );
+                    ui.add_space(8.0);
+                    self.project_menu(ui);
+                    ui.menu_button("Edit", |ui| {
+                        if ui
+                            .add_enabled(
+                                self.history.can_undo(),
+                                egui::Button::new("Undo").shortcut_text("Ctrl+Z"),
+                            )
+                            .clicked()
+                        {
+                            self.undo();
+                        }
+                        if ui
+                            .add_enabled(
+                                self.history.can_redo(),
+                                egui::Button::new("Redo").shortcut_text("Ctrl+Shift+Z"),
+                            )
+                            .clicked()
+                        {
+                            self.redo();
+                        }
+                    });
+                    ui.menu_button("View", |ui| {
+                        let label = match self.theme {
+                            ThemeChoice::Light => "Dark theme",
+                            ThemeChoice::Dark => "Light theme",
+                        };
+                        if ui.button(label).clicked() {
+                            self.theme = self.theme.toggled();
+                        }
+                    });
+                    ui.menu_button("Help", |ui| {
+                        if ui.button("Safety caution").clicked() {
+                            self.modal = Some(Modal::Safety);
+                        }
+                        ui.separator();
+                        ui.label("Keys: Ctrl+N new, Ctrl+O open, Ctrl+S save,");
+                        ui.label("Ctrl+Shift+S save as, Ctrl+Z undo, Ctrl+Shift+Z redo.");
+                        ui.label("Run sheet: Enter stores and moves on, Tab to the next response.");
+                    });
+                    ui.separator();
+                    let name = self.project().name.clone();
+                    if let Some(name) = crate::panels::widgets::text_field(
+                        ui,
+                        egui::Id::unique("project_name"),
+                        &name,
+                        220.0,
+                        "project name",
+                    ) {
+                        self.apply(Command::Edit(Edit::SetName(name)));
+                    }
+                    if self.history.is_dirty() {
+                        ui.label(RichText::new("• unsaved").color(pal.warn))
+                            .on_hover_text("Changes since the last save (a recovery copy is kept)");
+                    }
+                });
+            });
+    }
+
+    fn project_menu(&mut self, ui: &mut Ui) {
+        ui.menu_button("Project", |ui| {
+            if ui
+                .add(egui::Button::new("New").shortcut_text("Ctrl+N"))
+                .clicked()
+            {
+                self.request(AfterUnsaved::New);
+            }
+            if ui
+                .add(egui::Button::new("Open…").shortcut_text("Ctrl+O"))
+                .clicked()
+            {
+                self.request(AfterUnsaved::Open);
+            }
+            ui.menu_button("Open recent", |ui| {
+                if self.recent.is_empty() {
+                    ui.weak("No recent projects");
+                }
+                for p in self.recent.clone() {
+                    if ui.button(p.display().to_string()).clicked() {
+                        self.request(AfterUnsaved::OpenPath(p));
+                    }
+                }
+            });
+            ui.separator();
+            if ui
+                .add(egui::Button::new("Save").shortcut_text("Ctrl+S"))
+                .clicked()
+            {
+                self.save();
+            }
+            if ui
+                .add(egui::Button::new("Save as…").shortcut_text("Ctrl+Shift+S"))
+                .clicked()
+            {
+                self.start_dialog(FileAction::SaveAs);
+            }
+        });
+    }
+
+    fn status_bar(&mut self, ui: &mut Ui, pal: &Palette) {
+        egui::Panel::bottom("status_bar")
+            .frame(
+                egui::Frame::new()
+                    .fill(ui.visuals().faint_bg_color)
+                    .inner_margin(egui::Margin::symmetric(10, 4)),
+            )
+            .show(ui, |ui| {
+                ui.horizontal(|ui| {
+                    let errors = self
+                        .derived
+                        .problems
+                        .iter()
+                        .filter(|p| p.severity == Severity::Error)
+                        .count();
+                    let warnings = self
+                        .derived
+                        .problems
+                        .iter()
+                        .filter(|p| p.severity == Severity::Warning)
+                        .count();
+                    if errors > 0 {
+                        ui.colored_label(pal.error, format!("✖ {errors} to fix"));
+                    }
+                    if warnings > 0 {
+                        ui.colored_label(pal.warn, format!("⚠ {warnings} warnings"))
+                            .on_hover_text(
+                                self.derived
+                                    .problems
+                                    .iter()
+                                    .filter(|p| p.severity == Severity::Warning)
+                                    .map(|p| p.message.clone())
+                                    .collect::<Vec<_>>()
+                                    .join("\n"),
+                            );
+                    }
+                    if let Some(n) = &self.notice {
+                        ui.weak(n);
+                    }
+                    if self.pending_dialog.is_some() {
+                        ui.weak("A file dialog is open…");
+                    }
+                    ui.with_layout(egui::Layout::right_to_left(egui::Align::Center), |ui| {
+                        if ui
+                            .link(RichText::new("Safety caution").color(pal.warn))
+                            .clicked()
+                        {
+                            self.modal = Some(Modal::Safety);
+                        }
+                    });
+                });
+            });
+    }
+
+    fn step_rail(&mut self, ui: &mut Ui, pal: &Palette) {
+        egui::Panel::left("step_rail")
+            .resizable(false)
+            .exact_size(170.0)
+            .frame(
+                egui::Frame::new()
+                    .fill(ui.visuals().faint_bg_color)
+                    .inner_margin(egui::Margin::symmetric(8, 10)),
+            )
+            .show(ui, |ui| {
+                let p = self.history.project();
+                for (i, step) in Step::ALL.iter().enumerate() {
+                    let hint = match step {
+                        Step::Factors => format!("{} factors", p.factors.len()),
+                        Step::Design => {
+                            if p.runs.is_empty() {
+                                "not chosen".into()
+                            } else {
+                                format!("{} runs", p.runs.len())
+                            }
+                        }
+                        Step::Runs => {
+                            let done = p
+                                .runs
+                                .iter()
+                                .filter(|r| r.status == crate::project::RunStatus::Done)
+                                .count();
+                            format!("{done} of {} done", p.runs.len())
+                        }
+                        _ => String::new(),
+                    };
+                    let selected = self.step == *step;
+                    let text = RichText::new(format!("{}  {}", i + 1, step.title()))
+                        .size(16.0)
+                        .color(if selected { pal.accent } else { pal.ink });
+                    let resp = ui.add_sized(
+                        [ui.available_width(), 30.0],
+                        egui::Button::selectable(selected, text),
+                    );
+                    if resp.clicked() {
+                        self.step = *step;
+                    }
+                    if !hint.is_empty() {
+                        ui.label(
+                            RichText::new(format!("     {hint}"))
+                                .small()
+                                .color(pal.muted),
+                        );
+                    }
+                    ui.add_space(2.0);
+                }
+            });
+    }
+
+    fn modals(&mut self, ctx: &egui::Context, pal: &Palette) {
+        let Some(modal) = self.modal.clone() else {
+            return;
+        };
+        let mut close = false;
+        let mut then: Option<Box<dyn FnOnce(&mut TwofoldApp)>> = None;
+        let response = egui::Modal::new(egui::Id::unique("twofold_modal")).show(ctx, |ui| {
+            ui.set_max_width(460.0);
+            match &modal {
+                Modal::ConfirmDesign {
+                    design,
+                    lost,
+                    typed,
+                } => {
+                    ui.heading("Change the design?");
+                    ui.label(format!(
+                        "The run sheet holds {typed} typed values. The new design makes a new run sheet; values move to the runs with the same settings."
+                    ));
+                    if *lost > 0 {
+                        ui.colored_label(
+                            pal.warn,
+                            format!(
+                                "{lost} typed values have no matching run in the new design and will leave the sheet. Undo (Ctrl+Z) brings them back."
+                            ),
+                        );
+                    } else {
+                        ui.label("Every typed value has a matching run in the new design.");
+                    }
+                    ui.horizontal(|ui| {
+                        if ui.button("Change the design").clicked() {
+                            let design = design.clone();
+                            then = Some(Box::new(move |app: &mut TwofoldApp| {
+                                app.apply_group(vec![
+                                    Edit::SetDesign(design),
+                                    Edit::RegenerateRuns,
+                                ]);
+                                app.refresh();
+                            }));
+                            close = true;
+                        }
+                        if ui.button("Keep the current design").clicked() {
+                            close = true;
+                        }
+                    });
+                }
+                Modal::Unsaved(after) => {
+                    ui.heading("Save changes first?");
+                    ui.label("The project has changes that are not saved to its file.");
+                    ui.horizontal(|ui| {
+                        if ui.button("Save").clicked() {
+                            let after = after.clone();
+                            then = Some(Box::new(move |app: &mut TwofoldApp| {
+                                if app.path.is_some() {
+                                    app.save();
+                                    if !app.history.is_dirty() {
+                                        app.proceed(after);
+                                    }
+                                } else {
+                                    app.start_dialog(FileAction::SaveAs);
+                                }
+                            }));
+                            close = true;
+                        }
+                        if ui.button("Discard changes").clicked() {
+                            let after = after.clone();
+                            then = Some(Box::new(move |app: &mut TwofoldApp| app.proceed(after)));
+                            close = true;
+                        }
+                        if ui.button("Cancel").clicked() {
+                            close = true;
+                        }
+                    });
+                }
+                Modal::Error(text) => {
+                    ui.heading("Something went wrong");
+                    ui.label(text);
+                    if ui.button("OK").clicked() {
+                        close = true;
+                    }
+                }
+                Modal::Safety => {
+                    ui.heading("Safety caution");
+                    ui.label(SAFETY_NOTE);
+                    if ui.button("Close").clicked() {
+                        close = true;
+                    }
+                }
+            }
+        });
+        if response.should_close() && !matches!(modal, Modal::ConfirmDesign { .. }) {
+            close = true;
+        }
+        if close {
+            self.modal = None;
+        }
+        if let Some(f) = then {
+            f(self);
+        }
+    }
+}
+
+fn response_picker(ui: &mut Ui, view: &View<'_>, out: &mut Vec<Command>) {
+    let p = view.project;
+    if p.responses.len() < 2 {
+        return;
+    }
+    ui.horizontal(|ui| {
+        ui.label("Response:");
+        for (i, r) in p.responses.iter().enumerate() {
+            if ui
+                .selectable_label(view.response == Some(i), &r.name)
+                .clicked()
+            {
+                out.push(Command::SelectResponse(i));
+            }
+        }
+    });
+    ui.separator();
+}
+
+/// A file name from a project name: letters, digits, `-` and `_`, others become `_`.
+fn file_stem(name: &str) -> String {
+    let s: String = name
+        .trim()
+        .chars()
+        .map(|c| {
+            if c.is_alphanumeric() || c == '-' || c == '_' {
+                c
+            } else {
+                '_'
+            }
+        })
+        .collect();
+    if s.is_empty() { "project".into() } else { s }
+}
+
+fn save_project(project: &Project, path: &Path) -> Result<(), String> {
+    let _ = (project, path);
+    Err("saving is not available in this build yet".into())
+}
+
+fn load_project(path: &Path) -> Result<Project, String> {
+    let _ = path;
+    Err("opening is not available in this build yet".into())
+}
+
+fn write_recent(store: &Path, recent: &[PathBuf]) -> std::io::Result<()> {
+    if let Some(dir) = store.parent() {
+        std::fs::create_dir_all(dir)?;
+    }
+    let text: String = recent
+        .iter()
+        .map(|p| format!("{}\n", p.display()))
+        .collect();
+    std::fs::write(store, text)
+}
+
+fn read_recent(store: &Path) -> Vec<PathBuf> {
+    std::fs::read_to_string(store)
+        .map(|t| {
+            t.lines()
+                .filter(|l| !l.trim().is_empty())
+                .map(PathBuf::from)
+                .filter(|p| p.exists())
+                .take(RECENT_MAX)
+                .collect()
+        })
+        .unwrap_or_default()
+}
+
+/// Where the list of recent files lives: the platform's configuration folder.
+fn recent_store() -> Option<PathBuf> {
+    let base = std::env::var_os("XDG_CONFIG_HOME")
+        .map(PathBuf::from)
+        .filter(|p| p.is_absolute())
+        .or_else(|| std::env::var_os("APPDATA").map(PathBuf::from))
+        .or_else(|| std::env::var_os("HOME").map(|h| PathBuf::from(h).join(".config")))?;
+    Some(base.join("twofold").join("recent.txt"))
+}
+
+/// The current time in UTC as ISO-8601 text (`2025-03-04T10:22:05Z`).
+pub fn now_iso() -> String {
+    let secs = std::time::SystemTime::now()
+        .duration_since(std::time::UNIX_EPOCH)
+        .map(|d| d.as_secs())
+        .unwrap_or(0);
+    iso_from_unix(secs)
+}
+
+/// ISO-8601 text of a Unix time, from the days-to-civil algorithm of H. Hinnant,
+/// "chrono-Compatible Low-Level Date Algorithms" (2013).
+pub fn iso_from_unix(secs: u64) -> String {
+    let days = (secs / 86_400) as i64;
+    let rem = secs % 86_400;
+    let z = days + 719_468;
+    let era = z.div_euclid(146_097);
+    let doe = z - era * 146_097;
+    let yoe = (doe - doe / 1460 + doe / 36_524 - doe / 146_096) / 365;
+    let y = yoe + era * 400;
+    let doy = doe - (365 * yoe + yoe / 4 - yoe / 100);
+    let mp = (5 * doy + 2) / 153;
+    let d = doy - (153 * mp + 2) / 5 + 1;
+    let m = if mp < 10 { mp + 3 } else { mp - 9 };
+    let y = if m <= 2 { y + 1 } else { y };
+    format!(
+        "{y:04}-{m:02}-{d:02}T{:02}:{:02}:{:02}Z",
+        rem / 3600,
+        (rem % 3600) / 60,
+        rem % 60
+    )
+}
+
+impl eframe::App for TwofoldApp {
+    fn ui(&mut self, ui: &mut Ui, _frame: &mut eframe::Frame) {
+        let ctx = ui.ctx().clone();
+        if ctx.input(|i| i.viewport().close_requested())
+            && !self.quit_confirmed
+            && self.history.is_dirty()
+        {
+            ctx.send_viewport_cmd(egui::ViewportCommand::CancelClose);
+            self.modal = Some(Modal::Unsaved(AfterUnsaved::Quit));
+        }
+        self.ui_in(ui);
+        if self.quit_confirmed {
+            ctx.send_viewport_cmd(egui::ViewportCommand::Close);
+        }
+        if self.pending_dialog.is_some() {
+            // Keep polling the dialog thread while it is open.
+            ctx.request_repaint_after(std::time::Duration::from_millis(100));
+        }
+    }
+}
 
 /// Opens the window on `path`, or on the embedded demo project; returns the process exit code.
-pub fn run_window(_path: Option<PathBuf>) -> i32 {
-    eprintln!("error: the window is not available yet");
-    1
+pub fn run_window(path: Option<PathBuf>) -> i32 {
+    let mut app = match &path {
+        Some(p) => match load_project(p) {
+            Ok(project) => {
+                TwofoldApp::with(History::new(project), Some(p.clone()), FilePicker::Native)
+            }
+            Err(e) => {
+                eprintln!("error: cannot open {}: {e}", p.display());
+                return 1;
+            }
+        },
+        None => TwofoldApp::with(
+            History::new(Project::new("Untitled")),
+            None,
+            FilePicker::Native,
+        ),
+    };
+    app.recent_store = recent_store();
+    if let Some(store) = &app.recent_store {
+        app.recent = read_recent(store);
+    }
+    let options = eframe::NativeOptions {
+        viewport: egui::ViewportBuilder::default()
+            .with_title(app.title())
+            .with_inner_size([1360.0, 860.0])
+            .with_min_inner_size([900.0, 600.0]),
+        renderer: eframe::Renderer::Glow,
+        ..Default::default()
+    };
+    match eframe::run_native("Twofold", options, Box::new(|_cc| Ok(Box::new(app)))) {
+        Ok(()) => 0,
+        Err(e) => {
+            eprintln!("error: the window could not start: {e}");
+            1
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn unix_times_print_as_iso_dates() {
+        // Known instants: the epoch, and 2000-03-01 (after a century leap day).
+        assert_eq!(iso_from_unix(0), "1970-01-01T00:00:00Z");
+        assert_eq!(iso_from_unix(951_868_800), "2000-03-01T00:00:00Z");
+        assert_eq!(iso_from_unix(1_709_210_096), "2024-02-29T12:34:56Z");
+    }
+
+    #[test]
+    fn file_names_come_from_project_names() {
+        assert_eq!(file_stem("Gloss trial / May"), "Gloss_trial___May");
+        assert_eq!(file_stem("  "), "project");
+    }
 }

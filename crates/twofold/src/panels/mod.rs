@@ -1,1 +1,118 @@
-//! (module being written)
+//! The panes of the window, one per file, each behind the tiny [`Pane`] trait.
+//!
+//! A pane reads the project (and cached analysis results) through a [`View`] and returns what the
+//! engineer asked for as [`Command`] values; the window applies them after drawing, in one place,
+//! so every change is undoable and autosaved. A pane owns only its own view state (text being
+//! typed, scroll targets, toggles).
+
+pub mod chart;
+pub mod design;
+pub mod effects;
+pub mod factors;
+pub mod interactions;
+pub mod model;
+pub mod plots;
+pub mod prediction;
+pub mod residuals;
+pub mod run_sheet;
+pub mod widgets;
+
+use crate::project::{DesignSettings, Edit, Problem, Project};
+use crate::theme::Palette;
+
+/// The steps of the bench loop, one pane each, in the order they are usually visited.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
+pub enum Step {
+    /// Factors and their levels.
+    Factors,
+    /// Choosing the design.
+    Design,
+    /// The run sheet.
+    Runs,
+    /// Ranked effects and the half-normal plot.
+    Effects,
+    /// Model summary: ANOVA, coefficients, equation.
+    Model,
+    /// Main-effect and interaction plots.
+    Plots,
+    /// Residual plots.
+    Residuals,
+    /// Predicted response and best settings.
+    Predict,
+}
+
+impl Step {
+    /// All steps in order.
+    pub const ALL: [Step; 8] = [
+        Step::Factors,
+        Step::Design,
+        Step::Runs,
+        Step::Effects,
+        Step::Model,
+        Step::Plots,
+        Step::Residuals,
+        Step::Predict,
+    ];
+
+    /// The name shown on the step rail.
+    pub fn title(self) -> &'static str {
+        match self {
+            Step::Factors => "Factors",
+            Step::Design => "Design",
+            Step::Runs => "Run sheet",
+            Step::Effects => "Effects",
+            Step::Model => "Model",
+            Step::Plots => "Factor plots",
+            Step::Residuals => "Residuals",
+            Step::Predict => "Predict",
+        }
+    }
+
+    /// Whether the step is about one response (so the response picker applies).
+    pub fn is_analysis(self) -> bool {
+        matches!(
+            self,
+            Step::Effects | Step::Model | Step::Plots | Step::Residuals | Step::Predict
+        )
+    }
+}
+
+/// What a pane asks the window to do; applied after all panes are drawn.
+#[must_use = "a command does nothing until the window applies it"]
+#[derive(Debug, Clone, PartialEq)]
+pub enum Command {
+    /// Apply one edit as one undo step.
+    Edit(Edit),
+    /// Apply several edits as one undo step (all or none).
+    Group(Vec<Edit>),
+    /// Replace the design settings and regenerate the run sheet; the window asks first when typed
+    /// values would be lost or moved.
+    ChangeDesign(DesignSettings),
+    /// Show another response in the analysis panes.
+    SelectResponse(usize),
+    /// Go to another step.
+    Goto(Step),
+}
+
+/// What a pane may read while drawing: the project and everything derived from it, computed once
+/// per change of the data.
+pub struct View<'a> {
+    /// The project as it is now.
+    pub project: &'a Project,
+    /// Revision of the project's content (changes with every edit, undo and redo).
+    pub revision: u64,
+    /// Problems of the project (validated once per change).
+    pub problems: &'a [Problem],
+    /// The response shown in the analysis panes, if there is one.
+    pub response: Option<usize>,
+    /// Colours of the current theme.
+    pub pal: Palette,
+    /// The current time as ISO-8601 text, recorded with entered values.
+    pub now: &'a str,
+}
+
+/// A pane of the window.
+pub trait Pane {
+    /// Draws the pane and pushes what the engineer asked for onto `out`.
+    fn ui(&mut self, ui: &mut egui::Ui, view: &View<'_>, out: &mut Vec<Command>);
+}

@@ -1,0 +1,325 @@
+//! A small painter for our plots: a frame with axes, round-numbered ticks and a mapping from data
+//! to screen, plus the marker shapes the plots share.
+//!
+//! We paint our own rather than use a general plotting widget because every point of the
+//! half-normal plot must be a clickable, labelled widget (reachable by keyboard and by tests), and
+//! because the plots are static pictures of one analysis: no pan or zoom to lose the reader.
+
+use egui::{Align2, Color32, FontId, Pos2, Rect, Sense, Shape, Stroke, Ui, Vec2, pos2, vec2};
+
+use crate::theme::Palette;
+
+/// Shapes of plot markers; a sign is always told by shape as well as colour.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Marker {
+    /// A filled circle.
+    Circle,
+    /// A filled square.
+    Square,
+    /// A triangle pointing up (positive effects).
+    Up,
+    /// A triangle pointing down (negative effects).
+    Down,
+    /// A diamond.
+    Diamond,
+}
+
+impl Marker {
+    /// The marker of an effect sign.
+    pub fn of_sign(positive: bool) -> Marker {
+        if positive { Marker::Up } else { Marker::Down }
+    }
+}
+
+/// Paints `marker` of half-size `r` at `c`; `hollow` draws only the outline.
+pub fn paint_marker(ui: &Ui, c: Pos2, marker: Marker, r: f32, color: Color32, hollow: bool) {
+    let painter = ui.painter();
+    let stroke = Stroke::new(1.5, color);
+    let fill = if hollow { Color32::TRANSPARENT } else { color };
+    match marker {
+        Marker::Circle => {
+            if hollow {
+                painter.circle_stroke(c, r, stroke);
+            } else {
+                painter.circle_filled(c, r, color);
+            }
+        }
+        Marker::Square => {
+            let rect = Rect::from_center_size(c, Vec2::splat(2.0 * r * 0.85));
+            painter.rect(rect, 0.0, fill, stroke, egui::StrokeKind::Middle);
+        }
+        Marker::Up | Marker::Down | Marker::Diamond => {
+            let pts = match marker {
+                Marker::Up => vec![
+                    pos2(c.x, c.y - r * 1.15),
+                    pos2(c.x + r, c.y + r * 0.7),
+                    pos2(c.x - r, c.y + r * 0.7),
+                ],
+                Marker::Down => vec![
+                    pos2(c.x, c.y + r * 1.15),
+                    pos2(c.x - r, c.y - r * 0.7),
+                    pos2(c.x + r, c.y - r * 0.7),
+                ],
+                _ => vec![
+                    pos2(c.x, c.y - r * 1.2),
+                    pos2(c.x + r, c.y),
+                    pos2(c.x, c.y + r * 1.2),
+                    pos2(c.x - r, c.y),
+                ],
+            };
+            painter.add(Shape::convex_polygon(pts, fill, stroke));
+        }
+    }
+}
+
+/// Round tick values covering `[lo, hi]`, about `target` of them (1, 2, 2.5 or 5 times a power
+/// of ten apart; a common plotting heuristic, no source).
+pub fn nice_ticks(lo: f64, hi: f64, target: usize) -> Vec<f64> {
+    if !(lo.is_finite() && hi.is_finite()) || hi <= lo || target == 0 {
+        return Vec::new();
+    }
+    let raw = (hi - lo) / target as f64;
+    let mag = 10f64.powf(raw.log10().floor());
+    let step = [1.0, 2.0, 2.5, 5.0, 10.0]
+        .iter()
+        .map(|m| m * mag)
+        .find(|s| *s >= raw)
+        .unwrap_or(10.0 * mag);
+    let first = (lo / step).ceil() as i64;
+    let last = (hi / step).floor() as i64;
+    (first..=last).map(|i| i as f64 * step).collect()
+}
+
+/// A tick label with as few decimals as the step needs.
+pub fn tick_label(v: f64, step: f64) -> String {
+    let decimals = if step >= 1.0 {
+        0
+    } else {
+        (-step.log10().floor()) as usize + usize::from(step.log10().fract().abs() > 0.35)
+    };
+    let s = format!("{v:.decimals$}");
+    if s.starts_with('-') && s.trim_start_matches(['-', '0', '.']).is_empty() {
+        // "-0.0" reads as a bug to a reader.
+        s.trim_start_matches('-').to_string()
+    } else {
+        s.replacen('-', "\u{2212}", 1)
+    }
+}
+
+/// A number for display: up to `sig` significant digits, no exponent for everyday magnitudes.
+pub fn fmt_num(v: f64, sig: usize) -> String {
+    if !v.is_finite() {
+        return "—".into();
+    }
+    if v == 0.0 {
+        return "0".into();
+    }
+    let mag = v.abs().log10().floor() as i32;
+    if !(-4..=7).contains(&mag) {
+        return format!("{v:.*e}", sig.saturating_sub(1));
+    }
+    let decimals = (sig as i32 - 1 - mag).max(0) as usize;
+    let s = format!("{v:.decimals$}");
+    let s = if s.contains('.') {
+        s.trim_end_matches('0').trim_end_matches('.').to_string()
+    } else {
+        s
+    };
+    s.replacen('-', "\u{2212}", 1)
+}
+
+/// Data ranges and the screen rectangle of one plot; maps data to screen.
+#[derive(Debug, Clone, Copy)]
+pub struct Frame {
+    /// The plotting area on screen (inside the axes).
+    pub rect: Rect,
+    /// Data range along x.
+    pub x: (f64, f64),
+    /// Data range along y.
+    pub y: (f64, f64),
+}
+
+impl Frame {
+    /// Screen position of a data point.
+    pub fn to_screen(&self, x: f64, y: f64) -> Pos2 {
+        let fx = ((x - self.x.0) / (self.x.1 - self.x.0)) as f32;
+        let fy = ((y - self.y.0) / (self.y.1 - self.y.0)) as f32;
+        pos2(
+            self.rect.left() + fx * self.rect.width(),
+            self.rect.bottom() - fy * self.rect.height(),
+        )
+    }
+}
+
+/// Widens a data range by a margin and away from zero width, so points never sit on the frame.
+pub fn padded(lo: f64, hi: f64, frac: f64) -> (f64, f64) {
+    let (lo, hi) = if lo.is_finite() && hi.is_finite() {
+        (lo.min(hi), lo.max(hi))
+    } else {
+        (0.0, 1.0)
+    };
+    let span = hi - lo;
+    let pad = if span > 0.0 {
+        span * frac
+    } else {
+        lo.abs().max(1.0) * 0.1
+    };
+    (lo - pad, hi + pad)
+}
+
+/// Options of an axis frame.
+pub struct AxesSpec<'a> {
+    /// Data range along x.
+    pub x: (f64, f64),
+    /// Data range along y.
+    pub y: (f64, f64),
+    /// Label under the x axis.
+    pub x_label: &'a str,
+    /// Label left of the y axis.
+    pub y_label: &'a str,
+    /// Tick labels of x at given positions instead of numbers (e.g. level names).
+    pub x_categories: Option<&'a [(f64, String)]>,
+    /// Whether to draw numeric x ticks (false for a categorical or unlabelled axis).
+    pub x_ticks: bool,
+}
+
+/// Allocates `size`, paints the background, grid, axes and labels, and returns the mapping and the
+/// response of the whole plot.
+pub fn axes(
+    ui: &mut Ui,
+    size: Vec2,
+    spec: &AxesSpec<'_>,
+    pal: &Palette,
+) -> (Frame, egui::Response) {
+    let (outer, response) = ui.allocate_exact_size(size, Sense::hover());
+    let small = FontId::proportional(12.0);
+    let left = 52.0;
+    let bottom = if spec.x_label.is_empty() { 24.0 } else { 40.0 };
+    let rect = Rect::from_min_max(
+        pos2(outer.left() + left, outer.top() + 8.0),
+        pos2(outer.right() - 12.0, outer.bottom() - bottom),
+    );
+    let frame = Frame {
+        rect,
+        x: spec.x,
+        y: spec.y,
+    };
+    if !ui.is_rect_visible(outer) {
+        return (frame, response);
+    }
+    let painter = ui.painter();
+    painter.rect_filled(rect, 2.0, pal.plot_bg);
+    let grid = Stroke::new(1.0, pal.grid);
+    let yt = nice_ticks(spec.y.0, spec.y.1, 5);
+    let ystep = if yt.len() > 1 { yt[1] - yt[0] } else { 1.0 };
+    for v in &yt {
+        let p = frame.to_screen(spec.x.0, *v);
+        painter.hline(rect.x_range(), p.y, grid);
+        painter.text(
+            pos2(rect.left() - 6.0, p.y),
+            Align2::RIGHT_CENTER,
+            tick_label(*v, ystep),
+            small.clone(),
+            pal.muted,
+        );
+    }
+    if let Some(cats) = spec.x_categories {
+        for (x, label) in cats {
+            let p = frame.to_screen(*x, spec.y.0);
+            painter.vline(p.x, rect.y_range(), grid);
+            painter.text(
+                pos2(p.x, rect.bottom() + 4.0),
+                Align2::CENTER_TOP,
+                label,
+                small.clone(),
+                pal.ink,
+            );
+        }
+    } else if spec.x_ticks {
+        let xt = nice_ticks(spec.x.0, spec.x.1, 6);
+        let xstep = if xt.len() > 1 { xt[1] - xt[0] } else { 1.0 };
+        for v in &xt {
+            let p = frame.to_screen(*v, spec.y.0);
+            painter.vline(p.x, rect.y_range(), grid);
+            painter.text(
+                pos2(p.x, rect.bottom() + 4.0),
+                Align2::CENTER_TOP,
+                tick_label(*v, xstep),
+                small.clone(),
+                pal.muted,
+            );
+        }
+    }
+    let axis = Stroke::new(1.0, pal.axis);
+    painter.line_segment([rect.left_bottom(), rect.right_bottom()], axis);
+    painter.line_segment([rect.left_bottom(), rect.left_top()], axis);
+    if !spec.x_label.is_empty() {
+        painter.text(
+            pos2(rect.center().x, outer.bottom() - 4.0),
+            Align2::CENTER_BOTTOM,
+            spec.x_label,
+            small.clone(),
+            pal.muted,
+        );
+    }
+    if !spec.y_label.is_empty() {
+        let galley = painter.layout_no_wrap(spec.y_label.to_string(), small, pal.muted);
+        let pos = pos2(outer.left() + 2.0, rect.center().y + galley.size().x / 2.0);
+        painter.add(
+            egui::epaint::TextShape::new(pos, galley, pal.muted)
+                .with_angle(-std::f32::consts::FRAC_PI_2),
+        );
+    }
+    (frame, response)
+}
+
+/// Paints a dashed line from `a` to `b`.
+pub fn dashed(ui: &Ui, a: Pos2, b: Pos2, stroke: Stroke) {
+    ui.painter()
+        .extend(Shape::dashed_line(&[a, b], stroke, 6.0, 4.0));
+}
+
+/// Size of a plot that fills the available width with the given height.
+pub fn fill_width(ui: &Ui, height: f32) -> Vec2 {
+    vec2(ui.available_width().max(200.0), height)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn ticks_are_round_and_inside_the_range() {
+        assert_eq!(
+            nice_ticks(0.0, 10.0, 5),
+            vec![0.0, 2.0, 4.0, 6.0, 8.0, 10.0]
+        );
+        let t = nice_ticks(-0.37, 1.21, 5);
+        assert!(t.iter().all(|v| (-0.37..=1.21).contains(v)));
+        assert_eq!(t.first().copied(), Some(-0.25));
+        assert!(nice_ticks(1.0, 1.0, 5).is_empty());
+        assert!(nice_ticks(f64::NAN, 1.0, 5).is_empty());
+    }
+
+    #[test]
+    fn numbers_print_without_noise() {
+        assert_eq!(fmt_num(12.3456, 4), "12.35");
+        assert_eq!(fmt_num(-0.5, 3), "\u{2212}0.5");
+        assert_eq!(fmt_num(2000.0, 3), "2000");
+        assert_eq!(fmt_num(0.0, 3), "0");
+        assert_eq!(fmt_num(f64::NAN, 3), "—");
+        assert_eq!(tick_label(-0.0, 0.5), "0.0");
+        assert_eq!(tick_label(-2.0, 1.0), "\u{2212}2");
+    }
+
+    #[test]
+    fn frame_maps_corners_to_corners() {
+        let f = Frame {
+            rect: Rect::from_min_max(pos2(10.0, 20.0), pos2(110.0, 220.0)),
+            x: (0.0, 1.0),
+            y: (-1.0, 1.0),
+        };
+        assert_eq!(f.to_screen(0.0, -1.0), pos2(10.0, 220.0));
+        assert_eq!(f.to_screen(1.0, 1.0), pos2(110.0, 20.0));
+    }
+}

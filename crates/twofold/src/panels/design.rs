@@ -1,0 +1,550 @@
+//! The design pane: the run sizes on offer for the current factors, generators typed by hand,
+//! centre points, replicates, blocks and seed, and the alias structure of the draft before it is
+//! committed.
+//!
+//! The options come from the core's minimum-aberration search, which may take a second or two for
+//! many factors, so in the window it runs on a worker thread and the table says "searching".
+
+use std::sync::mpsc::{Receiver, channel};
+
+use egui::{Grid, RichText, Ui};
+
+use super::widgets::{not_available, warning_box};
+use super::{Command, Pane, View};
+use crate::project::{BlockChoice, DesignSettings, Project};
+use twofold_core::alias::{AliasReport, alias_report, roman};
+use twofold_core::design::{FractionalDesign, Generator};
+use twofold_core::search::{DesignOption, SearchBudget, design_options};
+
+/// Largest run size offered in the table: bigger sheets are not practical at a bench.
+pub const MAX_OFFERED_RUNS: usize = 4096;
+
+/// How the design options are computed.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub enum Compute {
+    /// On a worker thread (the window).
+    #[default]
+    Background,
+    /// At once, in the frame that needs them (tests, where determinism beats smoothness).
+    Inline,
+}
+
+type OptionsResult = Result<Vec<DesignOption>, String>;
+
+/// View state of the design pane.
+#[derive(Debug, Default)]
+pub struct DesignPane {
+    /// Where the options are computed.
+    pub compute: Compute,
+    /// The settings being prepared, not yet applied.
+    draft: Option<DesignSettings>,
+    /// The project's design when the draft was started (to notice undo and other changes).
+    seen: Option<DesignSettings>,
+    /// Generator text being typed.
+    generator_text: String,
+    /// Options for a factor count, or the search in progress.
+    options: Option<(usize, OptionsResult)>,
+    pending: Option<(usize, Receiver<OptionsResult>)>,
+    /// Alias report of the draft, cached for one (factor count, generators) key.
+    preview: Option<(PreviewKey, Result<AliasReport, String>)>,
+}
+
+type PreviewKey = (usize, Option<u32>, Vec<String>);
+
+/// Accessible label of the button that picks an option of `runs` runs.
+pub fn pick_label(runs: usize) -> String {
+    format!("use {runs} runs")
+}
+
+impl DesignPane {
+    fn options_for(&mut self, ui: &Ui, k: usize) -> Option<&OptionsResult> {
+        if let Some((pk, rx)) = &self.pending {
+            if *pk == k {
+                match rx.try_recv() {
+                    Ok(result) => {
+                        self.options = Some((k, result));
+                        self.pending = None;
+                    }
+                    Err(std::sync::mpsc::TryRecvError::Empty) => {
+                        ui.ctx()
+                            .request_repaint_after(std::time::Duration::from_millis(100));
+                    }
+                    Err(std::sync::mpsc::TryRecvError::Disconnected) => self.pending = None,
+                }
+            } else {
+                self.pending = None;
+            }
+        }
+        let have = matches!(&self.options, Some((ok, _)) if *ok == k);
+        if !have && self.pending.is_none() {
+            match self.compute {
+                Compute::Inline => self.options = Some((k, search(k))),
+                Compute::Background => {
+                    let (tx, rx) = channel();
+                    let ctx = ui.ctx().clone();
+                    std::thread::spawn(move || {
+                        let _ = tx.send(search(k));
+                        ctx.request_repaint();
+                    });
+                    self.pending = Some((k, rx));
+                }
+            }
+        }
+        match &self.options {
+            Some((ok, r)) if *ok == k => Some(r),
+            _ => None,
+        }
+    }
+}
+
+fn search(k: usize) -> OptionsResult {
+    design_options(k, &SearchBudget::default())
+        .map(|v| {
+            v.into_iter()
+                .filter(|o| o.runs <= MAX_OFFERED_RUNS)
+                .collect()
+        })
+        .map_err(|e| e.to_string())
+}
+
+/// Runs of one replicate of the draft: `base_runs`, or 2^(k − generators), or 2^k.
+fn base_runs(draft: &DesignSettings, k: usize) -> Option<usize> {
+    if let Some(n) = draft.base_runs {
+        return Some(n as usize);
+    }
+    let p = draft.generators.len();
+    (k >= p && k - p < usize::BITS as usize - 1).then(|| 1usize << (k - p))
+}
+
+/// The alias report of the draft, or why there is none.
+fn preview_of(key: &PreviewKey) -> Result<AliasReport, String> {
+    let (k, runs, gens) = key;
+    let design = FractionalDesign::from_text(*k, runs.map(|n| n as usize), &gens.join(", "))
+        .map_err(|e| e.to_string())?;
+    Ok(alias_report(&design))
+}
+
+impl Pane for DesignPane {
+    fn ui(&mut self, ui: &mut Ui, view: &View<'_>, out: &mut Vec<Command>) {
+        let project = view.project;
+        let pal = view.pal;
+        let k = project.factors.len();
+        ui.heading("Design");
+        if k < 2 {
+            not_available(
+                ui,
+                &pal,
+                "A design needs at least two factors. Add them under Factors.",
+            );
+            return;
+        }
+        if self.seen.as_ref() != Some(&project.design) {
+            self.draft = Some(project.design.clone());
+            self.seen = Some(project.design.clone());
+            self.generator_text = project.design.generators.join(", ");
+        }
+        let mut draft = self.draft.clone().unwrap_or_else(|| project.design.clone());
+        egui::ScrollArea::vertical()
+            .auto_shrink([false, false])
+            .show(ui, |ui| {
+                ui.label(RichText::new(format!("Run sizes for {k} factors").as_str()).strong());
+                options_table(self, ui, view, k, &mut draft);
+                ui.add_space(6.0);
+                generators_row(self, ui, view, k, &mut draft);
+                ui.add_space(6.0);
+                extras(ui, project, &mut draft, &pal);
+                ui.add_space(8.0);
+                let total = summary(ui, &draft, k, project, &pal);
+                ui.add_space(4.0);
+                let unchanged =
+                    draft == project.design && !project.runs.is_empty() && !project.runs_outdated;
+                let planable = total.is_some() && !has_design_errors(project, &draft);
+                ui.horizontal(|ui| {
+                    let label = if project.runs.is_empty() {
+                        "Make the run sheet"
+                    } else {
+                        "Apply and remake the run sheet"
+                    };
+                    if ui
+                        .add_enabled(
+                            planable && !unchanged,
+                            egui::Button::new(RichText::new(label).strong()),
+                        )
+                        .clicked()
+                    {
+                        out.push(Command::ChangeDesign(draft.clone()));
+                    }
+                    if draft != project.design && ui.button("Discard draft").clicked() {
+                        draft = project.design.clone();
+                        self.generator_text = draft.generators.join(", ");
+                    }
+                    if unchanged {
+                        ui.weak("The run sheet follows this design.");
+                    }
+                });
+                ui.add_space(10.0);
+                alias_preview(self, ui, view, k, &draft);
+            });
+        self.draft = Some(draft);
+    }
+}
+
+fn has_design_errors(project: &Project, draft: &DesignSettings) -> bool {
+    (draft.centre_points_per_block > 0 && project.factors.iter().any(|f| !f.is_numeric()))
+        || draft.replicates == 0
+}
+
+fn options_table(
+    pane: &mut DesignPane,
+    ui: &mut Ui,
+    view: &View<'_>,
+    k: usize,
+    draft: &mut DesignSettings,
+) {
+    let pal = view.pal;
+    let options = match pane.options_for(ui, k) {
+        Some(Ok(o)) => o.clone(),
+        Some(Err(e)) => {
+            ui.colored_label(pal.error, format!("No options: {e}"));
+            return;
+        }
+        None => {
+            ui.horizontal(|ui| {
+                ui.spinner();
+                ui.label("Searching for the best fraction of each size…");
+            });
+            return;
+        }
+    };
+    let current_runs = base_runs(draft, k);
+    Grid::new("design_options")
+        .striped(true)
+        .num_columns(7)
+        .spacing([14.0, 4.0])
+        .show(ui, |ui| {
+            for h in [
+                "",
+                "Runs",
+                "Resolution",
+                "Word lengths (3, 4, …)",
+                "Clear 2FIs",
+                "One-at-a-time equivalent",
+                "Generators",
+            ] {
+                ui.label(RichText::new(h).strong().color(pal.muted));
+            }
+            ui.end_row();
+            for o in &options {
+                let gens: Vec<String> = o.generators.iter().map(Generator::to_string).collect();
+                let selected = current_runs == Some(o.runs) && draft.generators == gens;
+                let resp = ui.radio(selected, "");
+                let resp = resp.accessible_name(pick_label(o.runs));
+                if resp.clicked() {
+                    draft.generators = gens.clone();
+                    draft.base_runs = if o.generators.is_empty() {
+                        None
+                    } else {
+                        u32::try_from(o.runs).ok()
+                    };
+                    pane.generator_text = gens.join(", ");
+                }
+                ui.label(RichText::new(o.runs.to_string()).strong());
+                ui.label(match o.resolution {
+                    Some(r) => roman(r),
+                    None => "full".into(),
+                });
+                ui.label(if o.word_length_pattern.is_empty() || o.generators.is_empty() {
+                    "—".to_string()
+                } else {
+                    let shown: Vec<String> = o
+                        .word_length_pattern
+                        .iter()
+                        .take(6)
+                        .map(ToString::to_string)
+                        .collect();
+                    let more = if o.word_length_pattern.len() > 6 { ", …" } else { "" };
+                    format!("({}{more})", shown.join(", "))
+                });
+                ui.label(o.clear_two_factor_interactions.to_string());
+                ui.label(o.ofat_equivalent_runs.to_string()).on_hover_text(format!(
+                    "Measuring one factor at a time would need about {} runs for the same precision of every main effect.",
+                    o.ofat_equivalent_runs
+                ));
+                let g = if gens.is_empty() {
+                    "none (full factorial)".to_string()
+                } else {
+                    gens.join(", ")
+                };
+                let label = ui.label(g);
+                if !o.proven {
+                    label.on_hover_text("Best found in the time allowed; not proven minimum aberration.");
+                }
+                ui.end_row();
+            }
+        });
+}
+
+fn generators_row(
+    pane: &mut DesignPane,
+    ui: &mut Ui,
+    view: &View<'_>,
+    k: usize,
+    draft: &mut DesignSettings,
+) {
+    let pal = view.pal;
+    ui.horizontal(|ui| {
+        ui.label("Or type generators:");
+        let resp = ui
+            .add(
+                egui::TextEdit::singleline(&mut pane.generator_text)
+                    .hint_text("e.g. E=ABCD, F=-BCD")
+                    .desired_width(260.0),
+            )
+            .accessible_name("generators");
+        if resp.changed() {
+            // Half-typed text keeps the last good generators; the error shows beside the field.
+            if let Ok(gens) = Generator::parse_list(&pane.generator_text, k) {
+                draft.generators = gens.iter().map(Generator::to_string).collect();
+                draft.base_runs = if gens.is_empty() {
+                    None
+                } else {
+                    u32::try_from(1usize << (k - gens.len().min(k))).ok()
+                };
+            }
+        }
+        if let Err(e) = Generator::parse_list(&pane.generator_text, k) {
+            ui.colored_label(pal.error, e.to_string());
+        }
+    });
+}
+
+fn extras(ui: &mut Ui, project: &Project, draft: &mut DesignSettings, pal: &crate::theme::Palette) {
+    let all_numeric = project.factors.iter().all(|f| f.is_numeric());
+    Grid::new("design_extras")
+        .num_columns(2)
+        .spacing([12.0, 6.0])
+        .show(ui, |ui| {
+            ui.label("Centre points per block");
+            ui.horizontal(|ui| {
+                ui.add_enabled(
+                    all_numeric,
+                    egui::DragValue::new(&mut draft.centre_points_per_block).range(0..=32),
+                );
+                if !all_numeric {
+                    ui.weak("only when every factor is numeric");
+                    draft.centre_points_per_block = 0;
+                } else if draft.centre_points_per_block == 0 {
+                    ui.weak("none: curvature cannot be checked");
+                }
+            });
+            ui.end_row();
+            ui.label("Replicates");
+            ui.add(egui::DragValue::new(&mut draft.replicates).range(1..=16));
+            ui.end_row();
+            ui.label("Blocks");
+            let count = match &draft.blocks {
+                BlockChoice::Count(n) => *n,
+                BlockChoice::Generators(g) => 1u32 << g.len().min(8),
+            };
+            egui::ComboBox::from_id_salt("block_count")
+                .selected_text(if count <= 1 {
+                    "one block".to_string()
+                } else {
+                    format!("{count} blocks")
+                })
+                .show_ui(ui, |ui| {
+                    for n in [1u32, 2, 4, 8, 16] {
+                        let text = if n == 1 {
+                            "one block".to_string()
+                        } else {
+                            format!("{n} blocks")
+                        };
+                        if ui.selectable_label(count == n, text).clicked() {
+                            draft.blocks = BlockChoice::Count(n);
+                        }
+                    }
+                });
+            ui.end_row();
+            ui.label("Run order");
+            ui.horizontal(|ui| {
+                ui.checkbox(&mut draft.randomize, "randomised");
+                ui.add_enabled_ui(draft.randomize, |ui| {
+                    ui.label("seed");
+                    ui.add(egui::DragValue::new(&mut draft.seed));
+                    if ui.button("new seed").clicked() {
+                        draft.seed = fresh_seed(draft.seed);
+                    }
+                });
+                if !draft.randomize {
+                    ui.colored_label(
+                        pal.warn,
+                        "standard order: time trends will bias the effects",
+                    );
+                }
+            });
+            ui.end_row();
+        });
+}
+
+/// A new seed from the clock, different from `old`.
+fn fresh_seed(old: u64) -> u64 {
+    let t = std::time::SystemTime::now()
+        .duration_since(std::time::UNIX_EPOCH)
+        .map(|d| d.as_nanos() as u64)
+        .unwrap_or(0);
+    // Keep seeds short enough to read aloud and write on a sheet.
+    let s = t % 1_000_000;
+    if s == old { s + 1 } else { s }
+}
+
+fn summary(
+    ui: &mut Ui,
+    draft: &DesignSettings,
+    k: usize,
+    project: &Project,
+    pal: &crate::theme::Palette,
+) -> Option<usize> {
+    let n = base_runs(draft, k)?;
+    let blocks = match &draft.blocks {
+        BlockChoice::Count(b) => (*b).max(1) as usize,
+        BlockChoice::Generators(g) => 1usize << g.len().min(8),
+    };
+    let reps = draft.replicates.max(1) as usize;
+    let centre = draft.centre_points_per_block as usize * blocks * reps;
+    let total = n * reps + centre;
+    ui.label(
+        RichText::new(format!(
+            "{n} runs{}{}  =  {total} runs in all",
+            if reps > 1 {
+                format!(" × {reps} replicates")
+            } else {
+                String::new()
+            },
+            if centre > 0 {
+                format!(" + {centre} centre points")
+            } else {
+                String::new()
+            }
+        ))
+        .size(17.0)
+        .strong(),
+    );
+    if total > MAX_OFFERED_RUNS {
+        ui.colored_label(pal.warn, format!("{total} runs is a very large sheet."));
+    }
+    if project.typed_value_count() > 0 && draft != &project.design {
+        ui.colored_label(
+            pal.warn,
+            "The run sheet has typed values: you will be asked before it is remade.",
+        );
+    }
+    Some(total)
+}
+
+fn alias_preview(
+    pane: &mut DesignPane,
+    ui: &mut Ui,
+    view: &View<'_>,
+    k: usize,
+    draft: &DesignSettings,
+) {
+    let pal = view.pal;
+    let key: PreviewKey = (k, draft.base_runs, draft.generators.clone());
+    if pane.preview.as_ref().map(|p| &p.0) != Some(&key) {
+        let report = preview_of(&key);
+        pane.preview = Some((key, report));
+    }
+    let Some((_, report)) = &pane.preview else {
+        return;
+    };
+    ui.label(
+        RichText::new("Alias structure of this design")
+            .strong()
+            .size(17.0),
+    );
+    let report = match report {
+        Ok(r) => r,
+        Err(e) => {
+            ui.colored_label(pal.error, e);
+            return;
+        }
+    };
+    if report.defining_relation.is_empty() {
+        ui.label("Full factorial: every effect is estimated on its own, nothing is aliased.");
+        return;
+    }
+    let res = report
+        .resolution
+        .map(|r| format!("resolution {}", roman(r)))
+        .unwrap_or_default();
+    let words: Vec<String> = report
+        .defining_relation
+        .iter()
+        .take(12)
+        .map(ToString::to_string)
+        .collect();
+    let more = if report.defining_relation.len() > 12 {
+        format!(" … ({} words)", report.defining_relation.len())
+    } else {
+        String::new()
+    };
+    ui.label(format!(
+        "Defining relation: I = {}{more}   ({res})",
+        words.join(" = ")
+    ));
+    let warned = report.main_effects_aliased_with_interactions();
+    if !warned.is_empty() {
+        let names: Vec<String> = warned
+            .iter()
+            .take(8)
+            .map(|(t, a)| {
+                let list: Vec<String> = a.iter().take(3).map(ToString::to_string).collect();
+                format!("{} with {}", factor_name(view.project, *t), list.join(", "))
+            })
+            .collect();
+        warning_box(
+            ui,
+            &pal,
+            &format!(
+                "Main effects are mixed up with two-factor interactions: {}. If one of those interactions is real, the main effect you see is not the factor's own effect. Use this design only to screen, or pick more runs.",
+                names.join("; ")
+            ),
+        );
+    }
+    let clear = &report.clear_two_factor_interactions;
+    ui.label(format!(
+        "Clear main effects: {} of {k}.  Clear two-factor interactions: {} of {}.",
+        report.clear_main_effects.len(),
+        clear.len(),
+        k * (k - 1) / 2
+    ));
+    egui::CollapsingHeader::new("Aliases of main effects and two-factor interactions")
+        .default_open(k <= 7)
+        .show(ui, |ui| {
+            Grid::new("alias_grid").striped(true).show(ui, |ui| {
+                for (term, aliases) in report.aliases.iter().take(400) {
+                    ui.label(RichText::new(term.label()).strong());
+                    if aliases.is_empty() {
+                        ui.weak("clear (only longer terms)");
+                    } else {
+                        let list: Vec<String> = aliases.iter().map(ToString::to_string).collect();
+                        let text = format!("= {}", list.join(" = "));
+                        if aliases.iter().any(|a| a.term.order() <= 2) && term.order() <= 2 {
+                            ui.colored_label(pal.warn, text);
+                        } else {
+                            ui.label(text);
+                        }
+                    }
+                    ui.end_row();
+                }
+            });
+        });
+}
+
+fn factor_name(project: &Project, term: twofold_core::term::Term) -> String {
+    let i = term.factors().next().unwrap_or(0);
+    match project.factors.get(i) {
+        Some(f) => format!("{} ({})", term.label(), f.name),
+        None => term.label(),
+    }
+}

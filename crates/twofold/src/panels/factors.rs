@@ -1,0 +1,277 @@
+//! The factors pane: add, remove, rename and reorder factors; unit; numeric levels or two labels;
+//! an optional safe operating range, with a warning whenever a level leaves it.
+
+use egui::{Grid, RichText, Ui};
+
+use super::widgets::{number_field, plain_number, text_field, warning_box};
+use super::{Command, Pane, View};
+use crate::project::{
+    Edit, Factor, FactorField, FactorKind, Field, MAX_FACTORS, MIN_FACTORS, Severity,
+};
+use twofold_core::term::LETTERS;
+
+/// View state of the factors pane (none beyond what egui keeps for the text fields).
+#[derive(Debug, Default)]
+pub struct FactorsPane {}
+
+impl Pane for FactorsPane {
+    fn ui(&mut self, ui: &mut Ui, view: &View<'_>, out: &mut Vec<Command>) {
+        let Self {} = self;
+        let project = view.project;
+        let pal = view.pal;
+        ui.heading("Factors");
+        ui.label(
+            RichText::new(format!(
+                "The settings you will vary: {MIN_FACTORS} to {MAX_FACTORS} factors, each at a low and a high level.",
+            ))
+            .color(pal.muted),
+        );
+        for p in view.problems.iter().filter(|p| p.field == Field::Factors) {
+            ui.colored_label(pal.error, &p.message);
+        }
+        if project.runs_outdated {
+            warning_box(
+                ui,
+                &pal,
+                "The factors changed after the run sheet was made: open Design and apply it again to update the runs.",
+            );
+        }
+        ui.add_space(6.0);
+        egui::ScrollArea::vertical()
+            .auto_shrink([false, true])
+            .show(ui, |ui| {
+                factor_grid(ui, view, out);
+                ui.add_space(8.0);
+                let next = project.factors.len();
+                ui.add_enabled_ui(next < MAX_FACTORS, |ui| {
+                    if ui
+                        .button("＋ Add factor")
+                        .on_hover_text("Adds a numeric factor at the end of the list.")
+                        .clicked()
+                    {
+                        let letter = LETTERS.get(next).copied().unwrap_or('?');
+                        out.push(Command::Edit(Edit::AddFactor(Factor::numeric(
+                            &format!("Factor {letter}"),
+                            "",
+                            0.0,
+                            1.0,
+                        ))));
+                    }
+                });
+            });
+    }
+}
+
+fn factor_grid(ui: &mut Ui, view: &View<'_>, out: &mut Vec<Command>) {
+    let project = view.project;
+    let pal = view.pal;
+    let n = project.factors.len();
+    if n == 0 {
+        ui.label("No factors yet. Add the first one below.");
+        return;
+    }
+    Grid::new("factor_grid")
+        .num_columns(9)
+        .spacing([10.0, 6.0])
+        .striped(true)
+        .show(ui, |ui| {
+            for h in [
+                "",
+                "Name",
+                "Unit",
+                "Kind",
+                "Low (−1)",
+                "High (+1)",
+                "Safe range",
+                "",
+                "",
+            ] {
+                ui.label(RichText::new(h).color(pal.muted).strong());
+            }
+            ui.end_row();
+            for (index, f) in project.factors.iter().enumerate() {
+                let id = ui.scope_id().with(("factor", index));
+                let letter = LETTERS.get(index).copied().unwrap_or('?');
+                ui.label(RichText::new(letter.to_string()).strong().size(17.0));
+                if let Some(name) = text_field(ui, id.with("name"), &f.name, 170.0, "name") {
+                    out.push(Command::Edit(Edit::RenameFactor { index, name }));
+                }
+                let unit_enabled = f.is_numeric();
+                ui.add_enabled_ui(unit_enabled, |ui| {
+                    if let Some(unit) = text_field(ui, id.with("unit"), &f.unit, 60.0, "unit") {
+                        out.push(Command::Edit(Edit::SetFactorUnit { index, unit }));
+                    }
+                });
+                kind_picker(ui, id, index, f, out);
+                levels(ui, id, index, f, out);
+                safe_range(ui, id, index, f, out);
+                ui.horizontal(|ui| {
+                    if ui
+                        .add_enabled(index > 0, egui::Button::new("↑"))
+                        .on_hover_text("Move up (takes the previous letter)")
+                        .clicked()
+                    {
+                        out.push(Command::Edit(Edit::MoveFactor {
+                            from: index,
+                            to: index - 1,
+                        }));
+                    }
+                    if ui
+                        .add_enabled(index + 1 < n, egui::Button::new("↓"))
+                        .on_hover_text("Move down (takes the next letter)")
+                        .clicked()
+                    {
+                        out.push(Command::Edit(Edit::MoveFactor {
+                            from: index,
+                            to: index + 1,
+                        }));
+                    }
+                    if ui
+                        .button("✕")
+                        .on_hover_text(format!("Remove factor {letter} (undo brings it back)"))
+                        .clicked()
+                    {
+                        out.push(Command::Edit(Edit::RemoveFactor { index }));
+                    }
+                });
+                problems_cell(ui, view, index);
+                ui.end_row();
+            }
+        });
+}
+
+fn kind_picker(ui: &mut Ui, id: egui::Id, index: usize, f: &Factor, out: &mut Vec<Command>) {
+    let numeric = f.is_numeric();
+    egui::ComboBox::from_id_salt(id.with("kind"))
+        .selected_text(if numeric { "numeric" } else { "two labels" })
+        .width(100.0)
+        .show_ui(ui, |ui| {
+            if ui.selectable_label(numeric, "numeric").clicked() && !numeric {
+                let kind = match &f.kind {
+                    FactorKind::Categorical {
+                        low_label,
+                        high_label,
+                    } => {
+                        let lo = low_label.trim().parse::<f64>().ok();
+                        let hi = high_label.trim().parse::<f64>().ok();
+                        match (lo, hi) {
+                            (Some(low), Some(high)) => FactorKind::Numeric { low, high },
+                            _ => FactorKind::Numeric {
+                                low: 0.0,
+                                high: 1.0,
+                            },
+                        }
+                    }
+                    other => other.clone(),
+                };
+                out.push(Command::Edit(Edit::SetFactorKind { index, kind }));
+            }
+            if ui.selectable_label(!numeric, "two labels").clicked() && numeric {
+                let kind = match &f.kind {
+                    FactorKind::Numeric { low, high } => FactorKind::Categorical {
+                        low_label: plain_number(*low),
+                        high_label: plain_number(*high),
+                    },
+                    other => other.clone(),
+                };
+                out.push(Command::Edit(Edit::SetFactorKind { index, kind }));
+            }
+        });
+}
+
+fn levels(ui: &mut Ui, id: egui::Id, index: usize, f: &Factor, out: &mut Vec<Command>) {
+    match &f.kind {
+        FactorKind::Numeric { low, high } => {
+            let lo = number_field(ui, id.with("low"), Some(*low), 80.0, "low");
+            let hi = number_field(ui, id.with("high"), Some(*high), 80.0, "high");
+            if lo.changed.is_some() || hi.changed.is_some() {
+                out.push(Command::Edit(Edit::SetFactorKind {
+                    index,
+                    kind: FactorKind::Numeric {
+                        low: lo.changed.unwrap_or(*low),
+                        high: hi.changed.unwrap_or(*high),
+                    },
+                }));
+            }
+        }
+        FactorKind::Categorical {
+            low_label,
+            high_label,
+        } => {
+            let lo = text_field(ui, id.with("low_label"), low_label, 80.0, "setting");
+            let hi = text_field(ui, id.with("high_label"), high_label, 80.0, "setting");
+            if lo.is_some() || hi.is_some() {
+                out.push(Command::Edit(Edit::SetFactorKind {
+                    index,
+                    kind: FactorKind::Categorical {
+                        low_label: lo.unwrap_or_else(|| low_label.clone()),
+                        high_label: hi.unwrap_or_else(|| high_label.clone()),
+                    },
+                }));
+            }
+        }
+    }
+}
+
+fn safe_range(ui: &mut Ui, id: egui::Id, index: usize, f: &Factor, out: &mut Vec<Command>) {
+    ui.horizontal(|ui| {
+        let FactorKind::Numeric { low, high } = f.kind else {
+            ui.weak("—");
+            return;
+        };
+        let mut on = f.safe_range.is_some();
+        if ui
+            .checkbox(&mut on, "")
+            .on_hover_text("Declare the range the process is known to tolerate")
+            .changed()
+        {
+            let range = on.then(|| (low.min(high), low.max(high)));
+            out.push(Command::Edit(Edit::SetSafeRange { index, range }));
+        }
+        if let Some((lo, hi)) = f.safe_range {
+            let a = number_field(ui, id.with("safe_lo"), Some(lo), 60.0, "lowest");
+            ui.label("to");
+            let b = number_field(ui, id.with("safe_hi"), Some(hi), 60.0, "highest");
+            if a.changed.is_some() || b.changed.is_some() {
+                out.push(Command::Edit(Edit::SetSafeRange {
+                    index,
+                    range: Some((a.changed.unwrap_or(lo), b.changed.unwrap_or(hi))),
+                }));
+            }
+        } else {
+            ui.weak("none declared");
+        }
+    });
+}
+
+fn problems_cell(ui: &mut Ui, view: &View<'_>, index: usize) {
+    let pal = view.pal;
+    ui.vertical(|ui| {
+        for p in view.problems {
+            let Field::Factor { index: i, part } = p.field else {
+                continue;
+            };
+            if i != index {
+                continue;
+            }
+            match p.severity {
+                Severity::Error => {
+                    ui.colored_label(pal.error, format!("✖ {}", p.message));
+                }
+                Severity::Warning => {
+                    let prefix = if part == FactorField::Levels || part == FactorField::SafeRange {
+                        "⚠ Outside safe range:"
+                    } else {
+                        "⚠"
+                    };
+                    let text = if p.message.contains("safe range") {
+                        format!("{prefix} {}", p.message)
+                    } else {
+                        format!("⚠ {}", p.message)
+                    };
+                    ui.label(RichText::new(text).color(pal.warn).strong());
+                }
+            }
+        }
+    });
+}

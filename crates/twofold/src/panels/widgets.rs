@@ -1,0 +1,131 @@
+//! Small widgets shared by the panes: text and number fields that report changes as values, and
+//! the boxes that carry warnings in plain words.
+
+use egui::{Color32, Id, RichText, TextEdit, Ui};
+
+use crate::project::{Cell, CellValue};
+use crate::theme::Palette;
+
+/// A one-line text field over `current`; returns the new text when the engineer changed it.
+///
+/// The field edits a copy; the caller turns a change into an edit, so the project is only changed
+/// in one place.
+pub fn text_field(ui: &mut Ui, id: Id, current: &str, width: f32, hint: &str) -> Option<String> {
+    let mut text = current.to_string();
+    let resp = ui.add(
+        TextEdit::singleline(&mut text)
+            .id(id)
+            .desired_width(width)
+            .hint_text(hint),
+    );
+    (resp.changed() && text != current).then_some(text)
+}
+
+/// The result of drawing a [`number_field`].
+pub struct NumberInput {
+    /// The new value, when the text reads as a number different from the current one.
+    pub changed: Option<f64>,
+    /// Why the text is not a number, when it is not.
+    pub error: Option<String>,
+    /// The field's response.
+    pub response: egui::Response,
+}
+
+/// A number field over `value`. While the engineer types, and as long as the text is not a
+/// number, the typed text is kept (and marked) rather than replaced by the stored value, so a slip
+/// is visible and nothing typed is silently thrown away.
+pub fn number_field(
+    ui: &mut Ui,
+    id: Id,
+    value: Option<f64>,
+    width: f32,
+    hint: &str,
+) -> NumberInput {
+    let buf_id = id.with("typed");
+    let stored = value.map(plain_number).unwrap_or_default();
+    let mut text: String = ui
+        .data(|d| d.get_temp::<String>(buf_id))
+        .unwrap_or_else(|| stored.clone());
+    let parsed = |t: &str| Cell::new(t).value();
+    let before_error = matches!(parsed(&text), CellValue::Bad { .. });
+    let mut edit = TextEdit::singleline(&mut text)
+        .id(id)
+        .desired_width(width)
+        .hint_text(hint);
+    if before_error {
+        edit = edit.text_color(ui.visuals().error_fg_color);
+    }
+    let response = ui.add(edit);
+    let (changed, error) = match parsed(&text) {
+        CellValue::Number(x) => ((value != Some(x) && response.changed()).then_some(x), None),
+        CellValue::Empty => (None, None),
+        CellValue::Bad { reason } => (None, Some(reason)),
+    };
+    let keep = response.has_focus() || error.is_some();
+    ui.data_mut(|d| {
+        if keep {
+            d.insert_temp(buf_id, text);
+        } else {
+            d.remove::<String>(buf_id);
+        }
+    });
+    let response = match &error {
+        Some(reason) => response.on_hover_text(format!("Not a number: {reason}")),
+        None => response,
+    };
+    NumberInput {
+        changed,
+        error,
+        response,
+    }
+}
+
+/// A number as the engineer would type it back (shortest form that reads back the same).
+pub fn plain_number(v: f64) -> String {
+    if v == v.trunc() && v.abs() < 1e15 {
+        format!("{}", v as i64)
+    } else {
+        format!("{v}")
+    }
+}
+
+/// A highlighted box with a warning in plain words.
+pub fn warning_box(ui: &mut Ui, pal: &Palette, text: &str) {
+    egui::Frame::new()
+        .fill(pal.warn_bg)
+        .stroke(egui::Stroke::new(1.0, pal.warn))
+        .corner_radius(3.0)
+        .inner_margin(egui::Margin::symmetric(8, 5))
+        .show(ui, |ui| {
+            ui.label(RichText::new(format!("⚠ {text}")).color(pal.warn));
+        });
+}
+
+/// A quiet box for a state that is not available yet, with the reason.
+pub fn not_available(ui: &mut Ui, pal: &Palette, text: &str) {
+    egui::Frame::new()
+        .stroke(egui::Stroke::new(1.0, pal.grid))
+        .corner_radius(3.0)
+        .inner_margin(egui::Margin::symmetric(10, 8))
+        .show(ui, |ui| {
+            ui.label(RichText::new(text).color(pal.muted));
+        });
+}
+
+/// A small coloured tag, e.g. a status.
+pub fn tag(ui: &mut Ui, text: &str, color: Color32) -> egui::Response {
+    ui.label(RichText::new(text).color(color).strong())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn plain_numbers_read_back_the_same() {
+        for v in [180.0, -3.0, 0.1, 2.5, 1e-7, 12345.678] {
+            assert_eq!(plain_number(v).parse::<f64>().ok(), Some(v), "{v}");
+        }
+        assert_eq!(plain_number(180.0), "180");
+    }
+}
