@@ -260,8 +260,9 @@ impl Project {
                 }
             }
             Edit::RegenerateRuns => {
-                let runs = regenerate_runs(self)?;
+                let (runs, used) = regenerate_runs(self)?;
                 self.runs = runs;
+                self.design = used;
                 self.runs_outdated = false;
             }
             Edit::AddResponse(def) => {

@@ -154,6 +154,10 @@ pub struct DesignSettings {
     /// How the runs are split into blocks.
     #[serde(default)]
     pub blocks: BlockChoice,
+    /// Whether each replicate runs as its own set of blocks (block numbers continue across
+    /// replicates), e.g. one replicate per day.
+    #[serde(default)]
+    pub replicates_as_blocks: bool,
     /// Whether the run order is randomised (from `seed`) or follows the standard order.
     #[serde(default = "default_true")]
     pub randomize: bool,
@@ -174,6 +178,7 @@ impl Default for DesignSettings {
             centre_points_per_block: 0,
             replicates: 1,
             blocks: BlockChoice::default(),
+            replicates_as_blocks: false,
             randomize: true,
             seed: 1,
         }

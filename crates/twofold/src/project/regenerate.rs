@@ -8,35 +8,121 @@
 
 use std::collections::HashMap;
 
-use super::model::{DesignSettings, Project, RunRecord};
+use super::cell::Cell;
+use super::model::{BlockChoice, DesignSettings, Project, RunRecord, RunStatus};
+use super::validate::{Field, Severity};
+use twofold_core::term::Term;
 
 /// Why the run sheet could not be generated.
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]
 #[non_exhaustive]
 pub enum PlanError {
-    /// The core's planning is not part of this build yet.
-    #[error("run generation is not available in this build")]
-    Unavailable,
+    /// The factors or the design settings have errors; the first one is given.
+    #[error("{0}")]
+    Invalid(String),
+    /// The design (factor count, run size, generators) is not a valid two-level design.
+    #[error(transparent)]
+    Design(#[from] twofold_core::design::DesignError),
+    /// The search for a fraction of the chosen size could not run.
+    #[error(transparent)]
+    Search(#[from] twofold_core::search::SearchError),
+    /// A block generator could not be read.
+    #[error("block generator: {0}")]
+    BlockTerm(#[from] twofold_core::term::TermError),
+    /// Replicates, blocks or centre points could not be laid out.
+    #[error(transparent)]
+    Layout(#[from] twofold_core::plan::PlanError),
 }
 
 /// The run sheet the project's factors and design settings give, with typed data carried over
-/// from the current sheet.
-pub(crate) fn regenerate_runs(project: &Project) -> Result<Vec<RunRecord>, PlanError> {
-    regenerate_with(project, &project.design)
+/// from the current sheet, and the design settings as used (generators filled in when the
+/// fraction was found by the search, so the file records exactly what was run).
+pub(crate) fn regenerate_runs(
+    project: &Project,
+) -> Result<(Vec<RunRecord>, DesignSettings), PlanError> {
+    let (mut fresh, used) = plan_runs(project, &project.design)?;
+    carry_over(&project.runs, &mut fresh);
+    Ok((fresh, used))
 }
 
-fn regenerate_with(
+/// Fresh, empty runs for `design` over the project's factors and responses, and the settings as
+/// used (see [`regenerate_runs`]).
+///
+/// Empty generators with `base_runs` below 2^k call the minimum-aberration search with its
+/// default time budget (proven optimal within it up to 64 runs), so this may take up to about two
+/// seconds for large designs.
+fn plan_runs(
     project: &Project,
     design: &DesignSettings,
-) -> Result<Vec<RunRecord>, PlanError> {
-    let mut fresh = plan_runs(project, design)?;
-    carry_over(&project.runs, &mut fresh);
-    Ok(fresh)
-}
+) -> Result<(Vec<RunRecord>, DesignSettings), PlanError> {
+    use twofold_core::design::FractionalDesign;
+    use twofold_core::plan::{Blocking, PlanSpec, build_plan};
+    use twofold_core::search::{SearchBudget, minimum_aberration};
 
-/// Fresh, empty runs for `design` over the project's factors and responses.
-fn plan_runs(_project: &Project, _design: &DesignSettings) -> Result<Vec<RunRecord>, PlanError> {
-    Err(PlanError::Unavailable)
+    let mut check = project.clone();
+    check.design = design.clone();
+    if let Some(p) = check.validate().into_iter().find(|p| {
+        p.severity == Severity::Error
+            && !matches!(
+                p.field,
+                Field::ResponseName { .. } | Field::ResponseModel { .. }
+            )
+    }) {
+        return Err(PlanError::Invalid(p.message));
+    }
+    let k = project.factors.len();
+    let runs = design.base_runs.map(|r| r as usize);
+    let full = 1usize.checked_shl(k as u32).unwrap_or(usize::MAX);
+    let fraction = if design.generators.iter().all(|g| g.trim().is_empty()) {
+        match runs {
+            Some(n) if n != full => minimum_aberration(k, n, &SearchBudget::default())?.design,
+            _ => FractionalDesign::full(k)?,
+        }
+    } else {
+        FractionalDesign::from_text(k, runs, &design.generators.join(","))?
+    };
+    let blocking = match &design.blocks {
+        BlockChoice::Count(n) if *n <= 1 => Blocking::None,
+        BlockChoice::Count(n) => Blocking::Count(*n as usize),
+        BlockChoice::Generators(g) => Blocking::Generators(
+            g.iter()
+                .filter(|t| !t.trim().is_empty())
+                .map(|t| Term::parse(t, k))
+                .collect::<Result<_, _>>()?,
+        ),
+    };
+    let mut used = design.clone();
+    used.generators = fraction.generator_labels();
+    let spec = PlanSpec {
+        design: fraction,
+        centre_points: design.centre_points_per_block as usize,
+        replicates: design.replicates as usize,
+        blocking,
+        replicates_as_blocks: design.replicates_as_blocks,
+        seed: design.seed,
+        randomise: design.randomize,
+    };
+    let plan = build_plan(&spec)?;
+    let responses = project.responses.len();
+    let mut out: Vec<RunRecord> = plan
+        .runs
+        .into_iter()
+        .map(|r| RunRecord {
+            // The core caps a plan at 2^20 runs, well inside u32.
+            std_order: u32::try_from(r.std_order).unwrap_or(u32::MAX),
+            run_order: u32::try_from(r.run_order).unwrap_or(u32::MAX),
+            block: r.block,
+            centre: r.centre,
+            replicate: r.replicate,
+            levels: r.levels,
+            values: vec![Cell::default(); responses],
+            status: RunStatus::ToDo,
+            note: String::new(),
+            entered_at: None,
+        })
+        .collect();
+    out.sort_by_key(|r| r.std_order);
+    Ok((out, used))
 }
 
 /// Key matching an old run to a new one.
@@ -85,7 +171,7 @@ impl Project {
     /// planned, nothing would be regenerated, so nothing is at stake: 0.
     pub fn design_change_would_discard(&self, design: &DesignSettings) -> usize {
         match plan_runs(self, design) {
-            Ok(mut fresh) => carry_over(&self.runs, &mut fresh),
+            Ok((mut fresh, _)) => carry_over(&self.runs, &mut fresh),
             Err(_) => 0,
         }
     }
