@@ -22,7 +22,7 @@ use serde::{Deserialize, Serialize};
 pub fn defining_relation(design: &FractionalDesign) -> Vec<SignedTerm> {
     let mut words = defining_group(design);
     words.retain(|w| !w.term.is_identity());
-    words.sort_by(|a, b| a.term.cmp(&b.term));
+    words.sort_by_key(|w| w.term);
     words
 }
 
@@ -124,7 +124,7 @@ fn aliases_in_group(group: &[SignedTerm], term: Term, max_order: usize) -> Vec<S
         .map(|w| w.times(SignedTerm::plus(term)))
         .filter(|a| a.term.order() <= max_order && !a.term.is_identity())
         .collect();
-    out.sort_by(|a, b| a.term.cmp(&b.term));
+    out.sort_by_key(|w| w.term);
     out
 }
 
@@ -196,7 +196,7 @@ pub fn alias_report(design: &FractionalDesign) -> AliasReport {
         .copied()
         .filter(|w| !w.term.is_identity())
         .collect();
-    defining.sort_by(|a, b| a.term.cmp(&b.term));
+    defining.sort_by_key(|w| w.term);
     let mut wlp = vec![0usize; k.saturating_sub(2)];
     for w in &defining {
         let len = w.term.order();

@@ -113,7 +113,7 @@ pub fn fold_over(design: &FractionalDesign, kind: FoldKind) -> Result<FoldOver, 
         FractionalDesign::from_defining_words(design.factor_count(), &kept)?
     };
     let mut broken_words = broken;
-    broken_words.sort_by(|a, b| a.term.cmp(&b.term));
+    broken_words.sort_by_key(|w| w.term);
     let follow_up_runs = design.coded_runs().iter().map(|r| kind.apply(r)).collect();
     Ok(FoldOver {
         kind,
