@@ -1,9 +1,1214 @@
-//! The `analyze` subcommand (being written).
+//! The `analyze` subcommand: effects, Lenth's method, half-normal positions, a model fit and its
+//! ANOVA for one response of a coded table.
+//!
+//! ```text
+//! twofold analyze --csv FILE [--response NAME] [--terms A,C,AC] [--transform T] [--json]
+//! ```
+//!
+//! The CSV file is a coded table: a header row, one column per factor named by its letter in
+//! order (`A`, `B`, `C`, ...; cells −1, 0 or +1, all 0 = centre point), an optional `block`
+//! column, then one or more response columns; an empty response cell is a missing value. The
+//! factor columns are the leading run of headers `A`, `B`, ... in sequence; the first other
+//! header ends them.
+//!
+//! The work is split so that other front ends can reuse it: [`read_coded_csv`] validates a file
+//! into a [`CodedTable`], [`analyse`] turns checked [`Observations`] into an [`Analysis`] of core
+//! results, and [`analysis_json`] / [`analysis_text`] render one.
 
+use std::collections::BTreeSet;
+use std::fmt::Write as _;
 use std::io::Write;
+use std::path::PathBuf;
+
+use serde_json::{Value, json};
+use twofold_core::anova::{
+    self, FitError, ModelFit, ModelSpec, SumsOfSquaresKind, fit_model, format_number,
+};
+use twofold_core::data::{DataError, Observations};
+use twofold_core::effects::{EffectMethod, EffectTable, EffectsError, estimate_effects};
+use twofold_core::halfnormal::{HalfNormalPoint, NormalPoint, half_normal, normal_probability};
+use twofold_core::lenth::{Lenth, LenthError, Significance, lenth};
+use twofold_core::term::{Term, factor_index, factor_letter};
+use twofold_core::transform::{Transform, TransformError};
+
+use super::{EXIT_BAD_INPUT, EXIT_FAILURE};
+
+/// Usage text printed by `--help`.
+pub const USAGE: &str = "\
+usage: twofold analyze --csv FILE [options]
+
+Effects, Lenth's margins, half-normal positions, a model fit and its ANOVA for one response of a
+coded table (header row: factor columns A, B, C, ... with cells -1, 0 or +1, an optional `block`
+column, then response columns; an empty response cell is a missing value).
+
+options:
+  --csv FILE          the coded table to analyse
+  --response NAME     the response column (default: the first one)
+  --terms LIST        model terms, comma-separated, e.g. A,C,D,AC,AD
+                      (default: the effects beyond Lenth's margin of error, kept hierarchical)
+  --transform T       none, ln, log10, sqrt, inverse or power:L (e.g. power:0.5)
+  --json              print the results as one JSON object
+  -h, --help          print this help
+";
+
+/// The options of one `analyze` call, validated.
+#[derive(Debug, Clone, PartialEq)]
+pub struct AnalyzeArgs {
+    /// The coded table.
+    pub csv: PathBuf,
+    /// The response column; `None` = the first.
+    pub response: Option<String>,
+    /// Model terms as typed; `None` = chosen by Lenth's method.
+    pub terms: Option<Vec<String>>,
+    /// Transform of the response.
+    pub transform: Transform,
+    /// Print JSON instead of the text report.
+    pub json: bool,
+}
+
+/// What the command line asked for.
+#[derive(Debug, Clone, PartialEq)]
+pub enum Request {
+    /// Print the usage.
+    Help,
+    /// Analyse a table.
+    Analyze(AnalyzeArgs),
+}
+
+/// Reads the arguments after `analyze`. Errors are one-line messages.
+pub fn parse_args(args: &[String]) -> Result<Request, String> {
+    let mut csv: Option<PathBuf> = None;
+    let mut response: Option<String> = None;
+    let mut terms: Option<Vec<String>> = None;
+    let mut transform: Option<Transform> = None;
+    let mut json = false;
+    let mut i = 0;
+    while i < args.len() {
+        let arg = args[i].as_str();
+        let (name, inline) = match arg.split_once('=') {
+            Some((n, v)) if n.starts_with("--") => (n, Some(v.to_string())),
+            _ => (arg, None),
+        };
+        let takes_value = matches!(name, "--csv" | "--response" | "--terms" | "--transform");
+        let value = if takes_value {
+            match inline {
+                Some(v) => Some(v),
+                None => {
+                    i += 1;
+                    match args.get(i) {
+                        Some(v) if !v.starts_with("--") => Some(v.clone()),
+                        _ => return Err(format!("option `{name}` needs a value")),
+                    }
+                }
+            }
+        } else {
+            if inline.is_some() {
+                return Err(format!("option `{name}` takes no value"));
+            }
+            None
+        };
+        match (name, value) {
+            ("-h" | "--help", _) => return Ok(Request::Help),
+            ("--json", _) => {
+                if json {
+                    return Err("option `--json` given twice".into());
+                }
+                json = true;
+            }
+            ("--csv", Some(v)) => set_once(&mut csv, PathBuf::from(v), "--csv")?,
+            ("--response", Some(v)) => set_once(&mut response, v, "--response")?,
+            ("--terms", Some(v)) => set_once(&mut terms, split_terms(&v)?, "--terms")?,
+            ("--transform", Some(v)) => {
+                set_once(&mut transform, parse_transform(&v)?, "--transform")?;
+            }
+            (other, _) if other.starts_with('-') => {
+                return Err(format!(
+                    "unknown option `{other}` for `analyze` (see --help)"
+                ));
+            }
+            (other, _) => {
+                return Err(format!(
+                    "unexpected argument `{other}`: project files are not read by `analyze` yet; give a coded table with --csv FILE"
+                ));
+            }
+        }
+        i += 1;
+    }
+    let Some(csv) = csv else {
+        return Err("`analyze` needs a coded table: --csv FILE (see --help)".into());
+    };
+    Ok(Request::Analyze(AnalyzeArgs {
+        csv,
+        response,
+        terms,
+        transform: transform.unwrap_or_default(),
+        json,
+    }))
+}
+
+fn set_once<T>(slot: &mut Option<T>, value: T, name: &str) -> Result<(), String> {
+    if slot.is_some() {
+        return Err(format!("option `{name}` given twice"));
+    }
+    *slot = Some(value);
+    Ok(())
+}
+
+fn split_terms(list: &str) -> Result<Vec<String>, String> {
+    let parts: Vec<String> = list.split(',').map(|s| s.trim().to_string()).collect();
+    if parts.iter().any(String::is_empty) {
+        return Err(format!(
+            "--terms `{list}`: empty term (write terms separated by commas, e.g. A,C,AC)"
+        ));
+    }
+    Ok(parts)
+}
+
+/// Reads a transform name: `none`, `ln`, `log10`, `sqrt`, `inverse` or `power:L`.
+pub fn parse_transform(text: &str) -> Result<Transform, String> {
+    let t = text.trim().to_ascii_lowercase();
+    let tr = match t.as_str() {
+        "none" => Transform::None,
+        "ln" => Transform::Ln,
+        "log10" => Transform::Log10,
+        "sqrt" => Transform::Sqrt,
+        "inverse" => Transform::Inverse,
+        _ => match t.strip_prefix("power:") {
+            Some(l) => {
+                let lambda: f64 = l.trim().parse().map_err(|_| {
+                    format!("--transform `{text}`: `{l}` is not a number (e.g. power:0.5)")
+                })?;
+                Transform::Power(lambda)
+            }
+            None => {
+                return Err(format!(
+                    "--transform `{text}`: use none, ln, log10, sqrt, inverse or power:L"
+                ));
+            }
+        },
+    };
+    tr.validate()
+        .map_err(|e| format!("--transform `{text}`: {e}"))?;
+    Ok(tr)
+}
+
+/// Why a coded table cannot be read. Every message is one line naming the row and column.
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+#[non_exhaustive]
+pub enum TableError {
+    /// Nothing in the file.
+    #[error("the file is empty")]
+    Empty,
+    /// A header but no data.
+    #[error("the file has a header row but no data rows")]
+    NoRows,
+    /// The CSV layer could not read a line.
+    #[error("line {line}: {message}")]
+    Csv {
+        /// 1-based line in the file.
+        line: u64,
+        /// What went wrong.
+        message: String,
+    },
+    /// The first column is not factor `A`.
+    #[error("header, column 1: the first column must be factor `A` (found `{found}`)")]
+    NoFactors {
+        /// The header found.
+        found: String,
+    },
+    /// No response column.
+    #[error("header: no response column after the factor columns (A to {last})")]
+    NoResponse {
+        /// The last factor letter.
+        last: char,
+    },
+    /// An empty column name.
+    #[error("header, column {column}: the column name is empty")]
+    EmptyName {
+        /// 1-based column.
+        column: usize,
+    },
+    /// A repeated column name.
+    #[error("header, column {column}: `{name}` is already the name of column {first}")]
+    DuplicateName {
+        /// 1-based column.
+        column: usize,
+        /// The name.
+        name: String,
+        /// 1-based column where it first appears.
+        first: usize,
+    },
+    /// A data row with the wrong number of cells.
+    #[error("row {row} (line {line}): {found} cells, but the header has {expected} columns")]
+    RowLength {
+        /// 1-based data row.
+        row: usize,
+        /// 1-based line in the file.
+        line: u64,
+        /// Cells found.
+        found: usize,
+        /// Columns in the header.
+        expected: usize,
+    },
+    /// A cell that cannot be used.
+    #[error("row {row} (line {line}), column `{column}`: {problem}")]
+    Cell {
+        /// 1-based data row.
+        row: usize,
+        /// 1-based line in the file.
+        line: u64,
+        /// The column name.
+        column: String,
+        /// What is wrong with it.
+        problem: String,
+    },
+}
+
+/// One response column of a coded table.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ResponseColumn {
+    /// The header.
+    pub name: String,
+    /// One value per run; `None` = empty cell.
+    pub values: Vec<Option<f64>>,
+}
+
+/// A validated coded table: factor settings −1/0/+1, optional blocks, responses.
+#[derive(Debug, Clone, PartialEq)]
+pub struct CodedTable {
+    /// Number of factors (A.. in order).
+    pub factor_count: usize,
+    /// Coded settings, one row per run.
+    pub levels: Vec<Vec<f64>>,
+    /// Block number of each run (1 = first label met); empty without a block column.
+    pub blocks: Vec<u32>,
+    /// Block labels as written, by block number − 1.
+    pub block_labels: Vec<String>,
+    /// Response columns, in file order.
+    pub responses: Vec<ResponseColumn>,
+    /// 1-based file line of each run.
+    pub lines: Vec<u64>,
+}
+
+impl CodedTable {
+    /// The observations of response `index`.
+    pub fn observations(&self, index: usize) -> Result<Observations, DataError> {
+        let values = self
+            .responses
+            .get(index)
+            .map(|r| r.values.clone())
+            .unwrap_or_default();
+        Observations::new(
+            self.factor_count,
+            self.levels.clone(),
+            self.blocks.clone(),
+            values,
+            Vec::new(),
+        )
+    }
+
+    /// "row R (line L)" for 1-based run `run`.
+    pub fn locate(&self, run: usize) -> String {
+        match self.lines.get(run.wrapping_sub(1)) {
+            Some(line) => format!("row {run} (line {line})"),
+            None => format!("row {run}"),
+        }
+    }
+}
+
+/// Reads and checks a coded table from the bytes of a CSV file (see the module documentation).
+pub fn read_coded_csv(bytes: &[u8]) -> Result<CodedTable, TableError> {
+    let bytes = bytes.strip_prefix(b"\xEF\xBB\xBF").unwrap_or(bytes);
+    let mut reader = csv::ReaderBuilder::new()
+        .has_headers(false)
+        .flexible(true)
+        .trim(csv::Trim::All)
+        .from_reader(bytes);
+    let mut rows: Vec<(u64, Vec<String>)> = Vec::new();
+    for record in reader.records() {
+        let record = record.map_err(|e| {
+            let line = e.position().map_or(0, csv::Position::line);
+            let message = match e.kind() {
+                csv::ErrorKind::Utf8 { .. } => "the text is not valid UTF-8".to_string(),
+                _ => e.to_string(),
+            };
+            TableError::Csv { line, message }
+        })?;
+        let line = record.position().map_or(0, csv::Position::line);
+        let cells: Vec<String> = record.iter().map(str::to_string).collect();
+        // Blank rows (also `,,,` from spreadsheets) carry nothing.
+        if cells.iter().all(String::is_empty) {
+            continue;
+        }
+        rows.push((line, cells));
+    }
+    let mut rows = rows.into_iter();
+    let Some((_, header)) = rows.next() else {
+        return Err(TableError::Empty);
+    };
+    // Trailing empty header cells (a trailing comma) are not columns.
+    let mut header = header;
+    while header.last().is_some_and(String::is_empty) {
+        header.pop();
+    }
+    for (c, name) in header.iter().enumerate() {
+        if name.is_empty() {
+            return Err(TableError::EmptyName { column: c + 1 });
+        }
+        if let Some(first) = header[..c]
+            .iter()
+            .position(|h| h.eq_ignore_ascii_case(name))
+        {
+            return Err(TableError::DuplicateName {
+                column: c + 1,
+                name: name.clone(),
+                first: first + 1,
+            });
+        }
+    }
+    let factor_count = header
+        .iter()
+        .enumerate()
+        .take_while(|(i, h)| {
+            let mut chars = h.chars();
+            match (chars.next(), chars.next()) {
+                (Some(ch), None) => factor_index(ch) == Some(*i),
+                _ => false,
+            }
+        })
+        .count();
+    if factor_count == 0 {
+        return Err(TableError::NoFactors {
+            found: header.first().cloned().unwrap_or_default(),
+        });
+    }
+    let has_block = header
+        .get(factor_count)
+        .is_some_and(|h| h.eq_ignore_ascii_case("block"));
+    let first_response = factor_count + usize::from(has_block);
+    if header.len() <= first_response {
+        return Err(TableError::NoResponse {
+            last: factor_letter(factor_count - 1).unwrap_or('A'),
+        });
+    }
+    let mut table = CodedTable {
+        factor_count,
+        levels: Vec::new(),
+        blocks: Vec::new(),
+        block_labels: Vec::new(),
+        responses: header[first_response..]
+            .iter()
+            .map(|name| ResponseColumn {
+                name: name.clone(),
+                values: Vec::new(),
+            })
+            .collect(),
+        lines: Vec::new(),
+    };
+    let width = header.len();
+    for (index, (line, mut cells)) in rows.enumerate() {
+        let row = index + 1;
+        // Trailing empty cells past the header are harmless.
+        while cells.len() > width && cells.last().is_some_and(String::is_empty) {
+            cells.pop();
+        }
+        if cells.len() != width {
+            return Err(TableError::RowLength {
+                row,
+                line,
+                found: cells.len(),
+                expected: width,
+            });
+        }
+        let cell_error = |c: usize, problem: String| TableError::Cell {
+            row,
+            line,
+            column: header[c].clone(),
+            problem,
+        };
+        let mut settings = Vec::with_capacity(factor_count);
+        for (c, text) in cells.iter().enumerate().take(factor_count) {
+            if text.is_empty() {
+                return Err(cell_error(
+                    c,
+                    "empty factor setting (write -1, 0 or +1)".into(),
+                ));
+            }
+            let v: f64 = text
+                .parse()
+                .map_err(|_| cell_error(c, format!("`{text}` is not a number")))?;
+            if v != -1.0 && v != 0.0 && v != 1.0 {
+                return Err(cell_error(
+                    c,
+                    format!("`{text}` is not a coded level (-1, 0 or +1)"),
+                ));
+            }
+            // Normalise -0 to 0 so centre points compare equal.
+            settings.push(if v == 0.0 { 0.0 } else { v });
+        }
+        if has_block {
+            let label = &cells[factor_count];
+            if label.is_empty() {
+                return Err(cell_error(factor_count, "empty block label".into()));
+            }
+            let id = match table.block_labels.iter().position(|b| b == label) {
+                Some(p) => p,
+                None => {
+                    table.block_labels.push(label.clone());
+                    table.block_labels.len() - 1
+                }
+            };
+            table.blocks.push(id as u32 + 1);
+        }
+        for (j, resp) in table.responses.iter_mut().enumerate() {
+            let c = first_response + j;
+            let text = &cells[c];
+            let value = if text.is_empty() {
+                None
+            } else {
+                let v: f64 = text.parse().map_err(|_| {
+                    cell_error(
+                        c,
+                        format!(
+                            "`{text}` is not a number (leave the cell empty for a missing value)"
+                        ),
+                    )
+                })?;
+                if !v.is_finite() {
+                    return Err(cell_error(c, format!("`{text}` is not a finite number")));
+                }
+                Some(v)
+            };
+            resp.values.push(value);
+        }
+        table.levels.push(settings);
+        table.lines.push(line);
+    }
+    if table.levels.is_empty() {
+        return Err(TableError::NoRows);
+    }
+    Ok(table)
+}
+
+/// How the model terms were chosen.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[non_exhaustive]
+pub enum ModelSelection {
+    /// Given by the caller.
+    Given,
+    /// The effects beyond Lenth's margin of error, closed under hierarchy.
+    LenthMargin,
+    /// Lenth's method was undefined, so the main effects were fitted.
+    MainEffects,
+}
+
+impl ModelSelection {
+    fn key(self) -> &'static str {
+        match self {
+            ModelSelection::Given => "given",
+            ModelSelection::LenthMargin => "beyond_lenth_me_hierarchical",
+            ModelSelection::MainEffects => "main_effects_lenth_undefined",
+        }
+    }
+}
+
+/// Why an analysis cannot be done.
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+#[non_exhaustive]
+pub enum AnalysisError {
+    /// The response transform does not apply to some values.
+    #[error(transparent)]
+    Transform(#[from] TransformError),
+    /// The table has no usable effects.
+    #[error(transparent)]
+    Effects(#[from] EffectsError),
+    /// A model term is aliased with the mean in this design.
+    #[error(
+        "term `{term}` is aliased with the mean in this design (its column is constant), so it cannot be a model term"
+    )]
+    TermAliasedWithMean {
+        /// The term.
+        term: String,
+    },
+    /// The model cannot be fitted.
+    #[error(transparent)]
+    Fit(#[from] FitError),
+    /// The transformed response fails the table checks (not expected).
+    #[error(transparent)]
+    Data(#[from] DataError),
+}
+
+/// The core results of one analysis, ready to render.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Analysis {
+    /// Response name.
+    pub response: String,
+    /// Transform applied before the analysis.
+    pub transform: Transform,
+    /// Number of factors.
+    pub factor_count: usize,
+    /// Runs in the table.
+    pub run_count: usize,
+    /// Runs without a value.
+    pub missing: usize,
+    /// Runs excluded.
+    pub excluded: usize,
+    /// Effects, one per estimable alias chain.
+    pub effects: EffectTable,
+    /// Lenth's method on the effects, or why it is undefined.
+    pub lenth: Result<Lenth, LenthError>,
+    /// Half-normal plot data.
+    pub half_normal: Vec<HalfNormalPoint>,
+    /// Normal probability plot data.
+    pub normal: Vec<NormalPoint>,
+    /// How the model terms were chosen.
+    pub selection: ModelSelection,
+    /// Terms added to keep the chosen model hierarchical.
+    pub added_for_hierarchy: Vec<Term>,
+    /// Notes on the terms (e.g. a term fitted as its chain representative).
+    pub term_notes: Vec<String>,
+    /// The model fit with its ANOVA.
+    pub model: ModelFit,
+}
+
+/// Analyses one response: transform, effects, Lenth, half-normal positions, then the model given
+/// by `terms` (each mapped to its alias-chain representative) or, when `terms` is `None`, the
+/// effects beyond Lenth's ME closed under hierarchy (the main effects when Lenth is undefined).
+pub fn analyse(
+    obs: &Observations,
+    response: &str,
+    transform: Transform,
+    terms: Option<&[Term]>,
+) -> Result<Analysis, AnalysisError> {
+    let transformed = transform.apply_column(obs.response())?;
+    let obs = obs.with_response(transformed)?;
+    let effects = estimate_effects(&obs)?;
+    let lenth_result = lenth(&effects.contrasts());
+    let hn = half_normal(&effects.effects);
+    let normal = normal_probability(&effects.effects);
+    let aliasing = &effects.aliasing;
+
+    let mut term_notes = Vec::new();
+    let mut chosen: BTreeSet<Term> = BTreeSet::new();
+    let selection;
+    let mut added = Vec::new();
+    match terms {
+        Some(given) => {
+            selection = ModelSelection::Given;
+            for &t in given {
+                if t.is_identity() {
+                    continue;
+                }
+                if aliasing.is_aliased_with_mean(t) {
+                    return Err(AnalysisError::TermAliasedWithMean { term: t.label() });
+                }
+                match aliasing.representative_of(t) {
+                    Some(rep) if rep.term != t => {
+                        term_notes.push(format!("{t} is fitted as its alias {rep}"));
+                        chosen.insert(rep.term);
+                    }
+                    _ => {
+                        chosen.insert(t);
+                    }
+                }
+            }
+        }
+        None => {
+            let flagged: Vec<Term> = match &lenth_result {
+                Ok(l) => {
+                    selection = ModelSelection::LenthMargin;
+                    effects
+                        .effects
+                        .iter()
+                        .filter(|e| l.classify(e.effect) != Significance::WithinMe)
+                        .map(|e| e.term)
+                        .collect()
+                }
+                Err(_) => {
+                    selection = ModelSelection::MainEffects;
+                    effects
+                        .effects
+                        .iter()
+                        .filter(|e| e.term.order() == 1)
+                        .map(|e| e.term)
+                        .collect()
+                }
+            };
+            let flagged_set: BTreeSet<Term> = flagged.iter().copied().collect();
+            for t in anova::hierarchical_closure(&flagged) {
+                // A lower-order term may be aliased: fit its chain's representative once.
+                if aliasing.is_aliased_with_mean(t) {
+                    continue;
+                }
+                let rep = aliasing.representative_of(t).map_or(t, |r| r.term);
+                if chosen.insert(rep) && !flagged_set.contains(&rep) {
+                    added.push(rep);
+                }
+            }
+        }
+    }
+    let spec = ModelSpec::new(chosen.into_iter().collect()).hierarchical(false);
+    let model = fit_model(&obs, &spec)?;
+    let used = obs.used_runs().len();
+    let missing = obs.response().iter().filter(|v| v.is_none()).count();
+    let excluded = obs.run_count() - used - missing;
+    Ok(Analysis {
+        response: response.to_string(),
+        transform,
+        factor_count: obs.factor_count(),
+        run_count: obs.run_count(),
+        missing,
+        excluded,
+        effects,
+        lenth: lenth_result,
+        half_normal: hn,
+        normal,
+        selection,
+        added_for_hierarchy: added,
+        term_notes,
+        model,
+    })
+}
+
+fn transform_key(t: Transform) -> String {
+    match t {
+        Transform::None => "none".into(),
+        Transform::Ln => "ln".into(),
+        Transform::Log10 => "log10".into(),
+        Transform::Sqrt => "sqrt".into(),
+        Transform::Inverse => "inverse".into(),
+        Transform::Power(l) => format!("power:{l}"),
+        // Transforms added later are written as they display.
+        other => other.to_string(),
+    }
+}
+
+fn method_key(m: EffectMethod) -> &'static str {
+    match m {
+        EffectMethod::FastTransform => "fast_transform",
+        EffectMethod::LeastSquares => "least_squares",
+        _ => "other",
+    }
+}
+
+fn significance_key(s: Significance) -> &'static str {
+    match s {
+        Significance::WithinMe => "within_me",
+        Significance::BeyondMe => "beyond_me",
+        Significance::BeyondSme => "beyond_sme",
+        _ => "other",
+    }
+}
+
+fn labels(terms: &[Term]) -> Vec<String> {
+    terms.iter().map(|t| t.label()).collect()
+}
+
+/// The analysis as one JSON object. Keys: `response`, `transform`, `factors`, `runs`, `method`,
+/// `defining_relation`, `effects` (`term`, `aliases`, `effect`, `coefficient`, `lenth`),
+/// `not_estimable`, `confounded_with_blocks`, `lenth` (`pse`, `me`, `sme`, `df`, `s0`, `m`,
+/// `t_me`, `t_sme`, `gamma`, or null with `lenth_note`), `half_normal` (`term`, `effect`,
+/// `abs_effect`, `rank`, `quantile`), `normal_probability`, `model` (`terms`, `coefficients`
+/// in the order of `terms`, `intercept`, `coefficient_details`, `r2`, `adj_r2`, `pred_r2`,
+/// `sigma`, `df_residual`, `selection`, `added_for_hierarchy`, `notes`, `unestimable`), `anova`
+/// (`source`, `df`, `ss`, `ms`, `f`, `p`) and `curvature` (`ss`, `f`, `p`, or null). Undefined
+/// numbers are null.
+pub fn analysis_json(a: &Analysis) -> Value {
+    let lenth_ok = a.lenth.as_ref().ok();
+    let effects: Vec<Value> = a
+        .effects
+        .effects
+        .iter()
+        .map(|e| {
+            json!({
+                "term": e.term.label(),
+                "aliases": e.aliases.iter().map(ToString::to_string).collect::<Vec<_>>(),
+                "effect": e.effect,
+                "coefficient": e.coefficient,
+                "lenth": lenth_ok.map(|l| significance_key(l.classify(e.effect))),
+            })
+        })
+        .collect();
+    let lenth_value = match &a.lenth {
+        Ok(l) => json!({
+            "pse": l.pse, "me": l.me, "sme": l.sme, "df": l.df, "s0": l.s0, "m": l.m,
+            "t_me": l.t_me, "t_sme": l.t_sme, "gamma": l.gamma,
+        }),
+        Err(_) => Value::Null,
+    };
+    let m = &a.model;
+    let anova_rows: Vec<Value> = m
+        .anova
+        .iter()
+        .map(|r| {
+            json!({
+                "source": r.source.to_string(), "df": r.df, "ss": r.ss, "ms": r.ms, "f": r.f,
+                "p": r.p,
+            })
+        })
+        .collect();
+    let details: Vec<Value> = std::iter::once(&m.intercept)
+        .chain(&m.coefficients)
+        .map(|c| {
+            json!({
+                "term": c.term.label(), "estimate": c.estimate, "std_error": c.std_error,
+                "t": c.t, "p": c.p,
+            })
+        })
+        .collect();
+    let mut obj = json!({
+        "response": a.response,
+        "transform": transform_key(a.transform),
+        "factors": a.factor_count,
+        "runs": {
+            "total": a.run_count,
+            "factorial_used": a.effects.factorial_runs,
+            "centre_used": a.effects.centre_runs,
+            "missing": a.missing,
+            "excluded": a.excluded,
+        },
+        "method": method_key(a.effects.method),
+        "defining_relation": a.effects.aliasing.defining_words().iter().map(ToString::to_string).collect::<Vec<_>>(),
+        "effects": effects,
+        "not_estimable": labels(&a.effects.not_estimable),
+        "confounded_with_blocks": labels(&a.effects.confounded_with_blocks),
+        "lenth": lenth_value,
+        "half_normal": a.half_normal.iter().map(|p| json!({
+            "term": p.term.label(), "effect": p.effect, "abs_effect": p.abs_effect,
+            "rank": p.rank, "quantile": p.quantile,
+        })).collect::<Vec<_>>(),
+        "normal_probability": a.normal.iter().map(|p| json!({
+            "term": p.term.label(), "effect": p.effect, "rank": p.rank, "quantile": p.quantile,
+        })).collect::<Vec<_>>(),
+        "model": {
+            "terms": labels(&m.terms),
+            "coefficients": m.coefficients.iter().map(|c| c.estimate).collect::<Vec<_>>(),
+            "intercept": m.intercept.estimate,
+            "coefficient_details": details,
+            "r2": m.r2,
+            "adj_r2": m.adj_r2,
+            "pred_r2": m.pred_r2,
+            "sigma": m.sigma,
+            "df_residual": m.df_residual,
+            "selection": a.selection.key(),
+            "added_for_hierarchy": labels(&a.added_for_hierarchy),
+            "notes": a.term_notes,
+            "unestimable": m.unestimable.iter().map(|u| u.column.to_string()).collect::<Vec<_>>(),
+        },
+        "anova": anova_rows,
+        "curvature": m.curvature.map(|c| json!({ "ss": c.ss, "f": c.f, "p": c.p })),
+    });
+    if let (Err(e), Some(map)) = (&a.lenth, obj.as_object_mut()) {
+        map.insert("lenth_note".into(), Value::String(e.to_string()));
+    }
+    obj
+}
+
+fn num(x: f64) -> String {
+    format_number(x)
+}
+
+fn opt(x: Option<f64>) -> String {
+    x.map_or_else(|| "-".to_string(), format_number)
+}
+
+/// The analysis as a readable text report.
+pub fn analysis_text(a: &Analysis) -> String {
+    let mut s = String::new();
+    let e = &a.effects;
+    let _ = writeln!(
+        s,
+        "Response {} ({}); {} factors, {} runs: {} two-level and {} centre runs used, {} missing, {} excluded",
+        a.response,
+        a.transform,
+        a.factor_count,
+        a.run_count,
+        e.factorial_runs,
+        e.centre_runs,
+        a.missing,
+        a.excluded
+    );
+    let words = e.aliasing.defining_words();
+    if !words.is_empty() {
+        let w: Vec<String> = words.iter().map(ToString::to_string).collect();
+        let _ = writeln!(
+            s,
+            "Defining relation (read from the columns): I = {}",
+            w.join(" = ")
+        );
+    }
+    let method = match e.method {
+        EffectMethod::FastTransform => "Yates' algorithm",
+        _ => "least squares",
+    };
+    let _ = writeln!(s, "\nEffects ({method})");
+    let _ = writeln!(
+        s,
+        "  {:<8} {:>12} {:>12}  {:<11} aliases",
+        "term", "effect", "coefficient", "Lenth"
+    );
+    for eff in &e.effects {
+        let verdict = match &a.lenth {
+            Ok(l) => match l.classify(eff.effect) {
+                Significance::BeyondSme => "beyond SME",
+                Significance::BeyondMe => "beyond ME",
+                _ => "",
+            },
+            Err(_) => "",
+        };
+        let aliases: Vec<String> = eff.aliases.iter().map(ToString::to_string).collect();
+        let _ = writeln!(
+            s,
+            "  {:<8} {:>12} {:>12}  {:<11} {}",
+            eff.term.label(),
+            num(eff.effect),
+            num(eff.coefficient),
+            verdict,
+            aliases.join(" = ")
+        );
+    }
+    if !e.not_estimable.is_empty() {
+        let _ = writeln!(
+            s,
+            "Not estimable from the runs at hand: {}",
+            labels(&e.not_estimable).join(", ")
+        );
+    }
+    if !e.confounded_with_blocks.is_empty() {
+        let _ = writeln!(
+            s,
+            "Confounded with blocks: {}",
+            labels(&e.confounded_with_blocks).join(", ")
+        );
+    }
+    if e.layout_dependent > 0 {
+        let _ = writeln!(
+            s,
+            "The plan is not a regular fraction: {} further chains are partially aliased and not shown",
+            e.layout_dependent
+        );
+    }
+    match &a.lenth {
+        Ok(l) => {
+            let _ = writeln!(
+                s,
+                "\nLenth: PSE {} (s0 {}, m {}, d {}), ME {}, SME {}",
+                num(l.pse),
+                num(l.s0),
+                l.m,
+                num(l.df),
+                num(l.me),
+                num(l.sme)
+            );
+        }
+        Err(err) => {
+            let _ = writeln!(s, "\nLenth: {err}");
+        }
+    }
+    let _ = writeln!(s, "\nHalf-normal plot positions (smallest |effect| first)");
+    for p in &a.half_normal {
+        let _ = writeln!(
+            s,
+            "  {:<8} |effect| {:>12}  quantile {}",
+            p.term.label(),
+            num(p.abs_effect),
+            num(p.quantile)
+        );
+    }
+    let m = &a.model;
+    let how = match a.selection {
+        ModelSelection::Given => "as given",
+        ModelSelection::LenthMargin => "effects beyond Lenth's ME, kept hierarchical",
+        _ => "main effects, because Lenth's method is undefined",
+    };
+    let model_terms = if m.terms.is_empty() {
+        "mean only".to_string()
+    } else {
+        labels(&m.terms).join(" + ")
+    };
+    let _ = writeln!(s, "\nModel: {model_terms} ({how})");
+    for note in &a.term_notes {
+        let _ = writeln!(s, "  note: {note}");
+    }
+    if !a.added_for_hierarchy.is_empty() {
+        let _ = writeln!(
+            s,
+            "  added for hierarchy: {}",
+            labels(&a.added_for_hierarchy).join(", ")
+        );
+    }
+    for u in &m.unestimable {
+        let _ = writeln!(s, "  not estimable in the fit: {}", u.column);
+    }
+    let _ = writeln!(
+        s,
+        "  {:<8} {:>12} {:>12} {:>10} {:>10}",
+        "term", "coefficient", "std error", "t", "p"
+    );
+    for c in std::iter::once(&m.intercept).chain(&m.coefficients) {
+        let _ = writeln!(
+            s,
+            "  {:<8} {:>12} {:>12} {:>10} {:>10}",
+            if c.term.is_identity() {
+                "intercept".to_string()
+            } else {
+                c.term.label()
+            },
+            num(c.estimate),
+            opt(c.std_error),
+            opt(c.t),
+            opt(c.p)
+        );
+    }
+    let kind = match m.sums_of_squares_kind {
+        SumsOfSquaresKind::Orthogonal => "orthogonal",
+        _ => "adjusted",
+    };
+    let _ = writeln!(s, "\nAnalysis of variance ({kind} sums of squares)");
+    let _ = writeln!(
+        s,
+        "  {:<12} {:>4} {:>12} {:>12} {:>10} {:>10}",
+        "source", "df", "SS", "MS", "F", "p"
+    );
+    for r in &m.anova {
+        let _ = writeln!(
+            s,
+            "  {:<12} {:>4} {:>12} {:>12} {:>10} {:>10}",
+            r.source.to_string(),
+            r.df,
+            num(r.ss),
+            opt(r.ms),
+            opt(r.f),
+            opt(r.p)
+        );
+    }
+    let _ = writeln!(
+        s,
+        "R² {}, adjusted R² {}, predicted R² {}, sigma {}",
+        opt(m.r2),
+        opt(m.adj_r2),
+        opt(m.pred_r2),
+        opt(m.sigma)
+    );
+    if let Some(c) = &m.curvature {
+        let _ = writeln!(
+            s,
+            "Curvature: SS {}, F {}, p {} ({} centre runs)",
+            num(c.ss),
+            opt(c.f),
+            opt(c.p),
+            c.centre_runs
+        );
+    }
+    s
+}
+
+/// Turns an analysis error into a one-line message, naming rows through the table.
+fn analysis_message(err: &AnalysisError, table: &CodedTable, response: &str) -> String {
+    match err {
+        AnalysisError::Transform(TransformError::Domain {
+            transform,
+            needs,
+            runs,
+        }) => match runs.first() {
+            Some((run, value)) => {
+                let more = if runs.len() > 1 {
+                    format!(" (and {} more)", runs.len() - 1)
+                } else {
+                    String::new()
+                };
+                format!(
+                    "{}, column `{response}`: {transform} needs {needs} responses, found {value}{more}",
+                    table.locate(*run)
+                )
+            }
+            None => err.to_string(),
+        },
+        AnalysisError::Effects(EffectsError::PartialCentre { run }) => format!(
+            "{}: some factors are at 0 and others at -1 or +1; only full centre points (every factor at 0) can be analysed",
+            table.locate(*run)
+        ),
+        AnalysisError::Effects(EffectsError::TooFewRuns { used }) => format!(
+            "column `{response}`: only {used} two-level run(s) have a value; at least 2 are needed"
+        ),
+        AnalysisError::Fit(FitError::TooFewRuns { runs, parameters }) => format!(
+            "column `{response}`: the model needs {parameters} parameters but only {runs} runs have a value; choose fewer terms"
+        ),
+        other => other.to_string(),
+    }
+}
 
 /// Runs `twofold analyze` with the arguments after the subcommand name.
-pub fn run(_args: &[String], _out: &mut dyn Write, err: &mut dyn Write) -> i32 {
-    let _ = writeln!(err, "error: `analyze` is not available yet");
-    super::EXIT_FAILURE
+pub fn run(args: &[String], out: &mut dyn Write, err: &mut dyn Write) -> i32 {
+    let request = match parse_args(args) {
+        Ok(r) => r,
+        Err(message) => return bad_input(err, &message),
+    };
+    let a = match request {
+        Request::Help => {
+            return match out.write_all(USAGE.as_bytes()) {
+                Ok(()) => 0,
+                Err(_) => EXIT_FAILURE,
+            };
+        }
+        Request::Analyze(a) => a,
+    };
+    let bytes = match std::fs::read(&a.csv) {
+        Ok(b) => b,
+        Err(e) => {
+            return bad_input(err, &format!("cannot read `{}`: {e}", a.csv.display()));
+        }
+    };
+    let table = match read_coded_csv(&bytes) {
+        Ok(t) => t,
+        Err(e) => return bad_input(err, &format!("{}: {e}", a.csv.display())),
+    };
+    let index = match &a.response {
+        None => 0,
+        Some(name) => match table.responses.iter().position(|r| &r.name == name) {
+            Some(i) => i,
+            None => {
+                let names: Vec<&str> = table.responses.iter().map(|r| r.name.as_str()).collect();
+                return bad_input(
+                    err,
+                    &format!(
+                        "unknown response `{name}` (the file has: {})",
+                        names.join(", ")
+                    ),
+                );
+            }
+        },
+    };
+    let response = table.responses[index].name.clone();
+    let terms = match &a.terms {
+        None => None,
+        Some(list) => {
+            let mut v = Vec::new();
+            for label in list {
+                match Term::parse(label, table.factor_count) {
+                    Ok(t) => v.push(t),
+                    Err(e) => return bad_input(err, &format!("--terms: {e}")),
+                }
+            }
+            Some(v)
+        }
+    };
+    let obs = match table.observations(index) {
+        Ok(o) => o,
+        Err(e) => return bad_input(err, &format!("column `{response}`: {e}")),
+    };
+    let analysis = match analyse(&obs, &response, a.transform, terms.as_deref()) {
+        Ok(x) => x,
+        Err(e) => return bad_input(err, &analysis_message(&e, &table, &response)),
+    };
+    let text = if a.json {
+        match serde_json::to_string_pretty(&analysis_json(&analysis)) {
+            Ok(s) => s + "\n",
+            Err(e) => {
+                let _ = writeln!(err, "error: could not write the results as JSON: {e}");
+                return EXIT_FAILURE;
+            }
+        }
+    } else {
+        analysis_text(&analysis)
+    };
+    match out.write_all(text.as_bytes()) {
+        Ok(()) => 0,
+        Err(_) => EXIT_FAILURE,
+    }
+}
+
+fn bad_input(err: &mut dyn Write, message: &str) -> i32 {
+    // One line, whatever the message holds.
+    let line = message.replace(['\n', '\r'], " ");
+    let _ = writeln!(err, "error: {line}");
+    EXIT_BAD_INPUT
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn args(list: &[&str]) -> Vec<String> {
+        list.iter().map(|s| s.to_string()).collect()
+    }
+
+    #[test]
+    fn arguments_are_read_strictly() {
+        let ok = parse_args(&args(&[
+            "--csv",
+            "t.csv",
+            "--json",
+            "--transform=power:0.5",
+        ]))
+        .unwrap();
+        let Request::Analyze(a) = ok else {
+            panic!("expected an analysis request")
+        };
+        assert!(a.json);
+        assert_eq!(a.transform, Transform::Power(0.5));
+        let cases: &[(&[&str], &str)] = &[
+            (&["--csv"], "option `--csv` needs a value"),
+            (&["--csv", "a", "--bogus"], "unknown option `--bogus`"),
+            (&["--json"], "needs a coded table"),
+            (&["--csv", "a", "--csv", "b"], "given twice"),
+            (&["--csv", "a", "--terms", "A,,B"], "empty term"),
+            (&["--csv", "a", "--transform", "cube"], "use none, ln"),
+            (&["--csv", "a", "--transform", "power:0"], "power of 0"),
+            (&["--csv", "a", "--json=yes"], "takes no value"),
+            (&["project.ron"], "project files are not read"),
+        ];
+        for (list, needle) in cases {
+            let e = parse_args(&args(list)).unwrap_err();
+            assert!(e.contains(needle), "{list:?}: {e}");
+        }
+        assert_eq!(parse_args(&args(&["-h"])).unwrap(), Request::Help);
+    }
+
+    #[test]
+    fn table_reads_factors_block_and_responses() {
+        let text = "A,B,block,y,z\n-1,-1,day1,3.5,\n1,-1,day1,4,1\n-1,1,day2,,2\n1,1,day2,7,3\n0,0,day1,5,\n";
+        let t = read_coded_csv(text.as_bytes()).unwrap();
+        assert_eq!(t.factor_count, 2);
+        assert_eq!(t.blocks, vec![1, 1, 2, 2, 1]);
+        assert_eq!(t.block_labels, vec!["day1", "day2"]);
+        assert_eq!(t.responses[0].values[2], None);
+        assert_eq!(t.responses[1].name, "z");
+        assert_eq!(t.lines, vec![2, 3, 4, 5, 6]);
+    }
+
+    #[test]
+    fn bad_tables_name_row_and_column() {
+        let cases: &[(&str, &str)] = &[
+            ("", "the file is empty"),
+            ("A,B,y\n", "no data rows"),
+            ("x,y\n1,2\n", "first column must be factor `A`"),
+            ("A,B\n1,1\n", "no response column"),
+            (
+                "A,B,y\n1,2,3\n",
+                "row 1 (line 2), column `B`: `2` is not a coded level",
+            ),
+            (
+                "A,B,y\n1,1,3\n1,q,3\n",
+                "row 2 (line 3), column `B`: `q` is not a number",
+            ),
+            (
+                "A,B,y\n1,1,inf\n",
+                "row 1 (line 2), column `y`: `inf` is not a finite number",
+            ),
+            ("A,B,y\n1,1,abc\n", "column `y`: `abc` is not a number"),
+            (
+                "A,B,y\n1,1\n",
+                "row 1 (line 2): 2 cells, but the header has 3 columns",
+            ),
+            ("A,B,y,y\n1,1,2,3\n", "`y` is already the name of column 3"),
+            ("A,B,block,y\n1,1,,3\n", "column `block`: empty block label"),
+            ("A,B,y\n1,,3\n", "column `B`: empty factor setting"),
+        ];
+        for (text, needle) in cases {
+            let e = read_coded_csv(text.as_bytes()).unwrap_err().to_string();
+            assert!(e.contains(needle), "{text:?}: {e}");
+            assert!(!e.contains('\n'));
+        }
+    }
 }
