@@ -5,11 +5,14 @@
 //! - [`validate`]: per-field errors and warnings ([`Problem`]).
 //! - [`edit`]: every change as a value ([`Edit`]) applied by [`Project::apply`].
 //! - [`history`]: undo/redo, dirty flag and the data revision caches key on ([`History`]).
+//! - [`io`], [`migrate`]: the project file, read with migration and written atomically.
 //! - [`regenerate`]: the run sheet from the design, keeping typed values that survive.
 
 pub mod cell;
 pub mod edit;
 pub mod history;
+pub mod io;
+pub mod migrate;
 pub mod model;
 pub mod regenerate;
 pub mod validate;
@@ -17,6 +20,7 @@ pub mod validate;
 pub use cell::{Cell, CellValue};
 pub use edit::{Edit, EditError};
 pub use history::History;
+pub use io::{FileError, load_project, project_from_str, project_to_string, save_project};
 pub use model::{
     BlockChoice, DesignSettings, FORMAT_VERSION, Factor, FactorKind, Level, MAX_FACTORS,
     MIN_FACTORS, ModelSettings, Project, ResponseDef, ResponseTransform, RunRecord, RunStatus,
