@@ -7,6 +7,8 @@
 //! from the published data; "from memory" marks printed figures recalled without the book at
 //! hand. Tolerance: half a unit in the last published place (`prec::close_to_places`).
 
+#![cfg(test)]
+
 use crate::util::assert_close;
 use twofold_core::Term;
 use twofold_core::anova::{Column, ModelFit, ModelSpec, Source, SumsOfSquaresKind, fit_model};

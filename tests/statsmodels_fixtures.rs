@@ -7,7 +7,9 @@
 //! `fixtures/make_statsmodels_fixtures.py`, which builds its design matrix from patsy formulas,
 //! independently of this crate; the JSON it wrote is committed beside it. Inputs are generated
 //! there with a fixed seed (test inputs, not demonstrations). Tolerance: `prec::LIBRARY_REL`
-//! (1e-8 relative, absolute near zero) unless a check says otherwise.
+//! (1e-8, relative to the larger magnitude, see `agree`) unless a check says otherwise.
+
+#![cfg(test)]
 
 use serde::Deserialize;
 use twofold_core::Term;

@@ -534,7 +534,7 @@ pub(crate) fn t_quantile(p: f64, df: usize) -> Option<f64> {
     let mut x = dist.inverse_cdf(p);
     for _ in 0..4 {
         let d = dist.pdf(x);
-        if !(d > 0.0) || !x.is_finite() {
+        if d.is_nan() || d <= 0.0 || !x.is_finite() {
             break;
         }
         let step = (dist.cdf(x) - p) / d;

@@ -450,18 +450,13 @@ mod tests {
         let fit = fit_of(4, &y, &["A", "C", "D", "AC", "AD"]);
         for goal in [Goal::Maximise, Goal::Minimise] {
             let opt = best_settings(&fit, goal, &Transform::None, 0.95).unwrap();
-            let mut best = f64::NAN;
-            for c in full(3) {
-                let x = [c[0], 0.0, c[1], c[2]];
-                let v = fit.value_at(&x);
-                let better = match goal {
-                    Goal::Maximise => !(v <= best),
-                    _ => !(v >= best),
-                };
-                if better {
-                    best = v;
-                }
-            }
+            let values = full(3)
+                .into_iter()
+                .map(|c| fit.value_at(&[c[0], 0.0, c[1], c[2]]));
+            let best = match goal {
+                Goal::Maximise => values.fold(f64::NEG_INFINITY, f64::max),
+                _ => values.fold(f64::INFINITY, f64::min),
+            };
             assert!((opt.prediction.value - best).abs() < 1e-9, "{goal:?}");
             assert_eq!(opt.unused_factors, vec![1]);
             assert_eq!(opt.settings[1], None);

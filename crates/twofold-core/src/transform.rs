@@ -84,7 +84,7 @@ impl Transform {
     pub fn validate(&self) -> Result<(), TransformError> {
         match *self {
             Transform::Power(l) if !l.is_finite() => Err(TransformError::BadPower(l)),
-            Transform::Power(l) if l == 0.0 => Err(TransformError::ZeroPower),
+            Transform::Power(0.0) => Err(TransformError::ZeroPower),
             _ => Ok(()),
         }
     }
