@@ -558,6 +558,30 @@ fn least_squares(x: &DMatrix<f64>, v: &DVector<f64>) -> Option<DVector<f64>> {
 
 /// Fits `spec` to the used runs of `obs`. See the module documentation for the model, the order
 /// of the columns and the ANOVA table.
+///
+/// # Example
+/// Montgomery, Example 6-1 (fill height, 2^3 with two replicates; verified): SS(A) = 36.00 and
+/// the pure error is 5.00 on 8 df.
+/// ```
+/// use twofold_core::Term;
+/// use twofold_core::anova::{ModelSpec, Source, fit_model};
+/// use twofold_core::data::Observations;
+///
+/// let y = [-3., 0., -1., 2., -1., 2., 1., 6., -1., 1., 0., 3., 0., 1., 1., 5.];
+/// let levels = (0..16usize)
+///     .map(|r| (0..3).map(|f| if (r % 8) >> f & 1 == 1 { 1.0 } else { -1.0 }).collect())
+///     .collect();
+/// let obs = Observations::new(3, levels, vec![], y.iter().map(|&v| Some(v)).collect(), vec![])?;
+/// let spec = ModelSpec::new(vec![Term::main(0), Term::main(1), Term::main(2)]);
+/// let fit = fit_model(&obs, &spec)?;
+/// let ss_a = fit.anova_row(Source::Term(Term::main(0))).map_or(f64::NAN, |r| r.ss);
+/// // Tolerance 1e-9: sums of squares of small integers, exact up to rounding.
+/// assert!((ss_a - 36.0).abs() < 1e-9);
+/// let pure = fit.anova_row(Source::PureError).map_or((0, f64::NAN), |r| (r.df, r.ss));
+/// assert_eq!(pure.0, 8);
+/// assert!((pure.1 - 5.0).abs() < 1e-9);
+/// # Ok::<(), Box<dyn std::error::Error>>(())
+/// ```
 pub fn fit_model(obs: &Observations, spec: &ModelSpec) -> Result<ModelFit, FitError> {
     let k = obs.factor_count();
     let mut chosen: BTreeSet<Term> = BTreeSet::new();

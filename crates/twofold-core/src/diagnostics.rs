@@ -95,10 +95,14 @@ pub fn diagnostics(fit: &ModelFit) -> Diagnostics {
     let p = fit.parameter_count;
     let df = fit.df_residual;
     let s2 = fit.ms_residual;
-    let runs = (0..n)
-        .map(|i| {
-            let e = fit.residuals[i];
-            let h = fit.leverage[i];
+    // Zipped rather than indexed: the fit's columns are public and have one entry per used run.
+    let runs = fit
+        .runs
+        .iter()
+        .zip(&fit.observed)
+        .zip(&fit.fitted)
+        .zip(fit.residuals.iter().zip(&fit.leverage))
+        .map(|(((&run, &observed), &fitted), (&e, &h))| {
             let free = h < 1.0 - LEVERAGE_ONE;
             let studentized = match s2 {
                 Some(s2) if free && s2 > 0.0 => Some(e / (s2 * (1.0 - h)).sqrt()),
@@ -112,9 +116,9 @@ pub fn diagnostics(fit: &ModelFit) -> Diagnostics {
             });
             let cooks_distance = studentized.map(|r| r * r * h / (p as f64 * (1.0 - h)));
             RunDiagnostics {
-                run: fit.runs[i],
-                observed: fit.observed[i],
-                fitted: fit.fitted[i],
+                run,
+                observed,
+                fitted,
                 residual: e,
                 leverage: h,
                 studentized,
