@@ -6,6 +6,8 @@
 //! - [`edit`]: every change as a value ([`Edit`]) applied by [`Project::apply`].
 //! - [`history`]: undo/redo, dirty flag and the data revision caches key on ([`History`]).
 //! - [`io`], [`migrate`]: the project file, read with migration and written atomically.
+//! - [`recovery`]: recovery copies a second after each edit, offered on start.
+//! - [`recent`], [`places`]: the recent-files list and the per-user folders.
 //! - [`regenerate`]: the run sheet from the design, keeping typed values that survive.
 
 pub mod cell;
@@ -14,6 +16,9 @@ pub mod history;
 pub mod io;
 pub mod migrate;
 pub mod model;
+pub mod places;
+pub mod recent;
+pub mod recovery;
 pub mod regenerate;
 pub mod validate;
 
@@ -25,6 +30,8 @@ pub use model::{
     BlockChoice, DesignSettings, FORMAT_VERSION, Factor, FactorKind, Level, MAX_FACTORS,
     MIN_FACTORS, ModelSettings, Project, ResponseDef, ResponseTransform, RunRecord, RunStatus,
 };
+pub use recent::RecentFiles;
+pub use recovery::{RecoveryDebouncer, RecoveryOffer, RecoveryStore};
 pub use regenerate::PlanError;
 pub use validate::{FactorField, Field, Problem, Severity};
 
