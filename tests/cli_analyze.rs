@@ -1,1 +1,435 @@
-//! (checks being written)
+//! The headless `analyze` command, run in-process on coded CSV tables written to the temporary
+//! directory: JSON keys and numbers against published examples, and bad input refused with a
+//! one-line message and exit code 2.
+//!
+//! Tolerances: published values printed to `d` decimals are matched to half a unit in the `d`-th
+//! place; values computed with numpy are matched to 1e-9.
+
+use crate::util::assert_close;
+use serde_json::Value;
+use std::path::PathBuf;
+use std::sync::atomic::{AtomicUsize, Ordering};
+
+static COUNTER: AtomicUsize = AtomicUsize::new(0);
+
+/// A CSV file under the temporary directory, removed when dropped.
+struct TempCsv(PathBuf);
+
+impl TempCsv {
+    fn new(contents: &str) -> TempCsv {
+        let n = COUNTER.fetch_add(1, Ordering::SeqCst);
+        let path = std::env::temp_dir().join(format!(
+            "twofold-cli-analyze-{}-{n}.csv",
+            std::process::id()
+        ));
+        std::fs::write(&path, contents).expect("write temporary CSV");
+        TempCsv(path)
+    }
+
+    fn path(&self) -> String {
+        self.0.display().to_string()
+    }
+}
+
+impl Drop for TempCsv {
+    fn drop(&mut self) {
+        let _ = std::fs::remove_file(&self.0);
+    }
+}
+
+/// Runs `twofold analyze ARGS...`, returning (exit code, stdout, stderr).
+fn analyze(args: &[&str]) -> (i32, String, String) {
+    let mut full = vec!["analyze".to_string()];
+    full.extend(args.iter().map(|s| s.to_string()));
+    let mut out = Vec::new();
+    let mut err = Vec::new();
+    let code = twofold_app::cli::run(&full, &mut out, &mut err);
+    (
+        code,
+        String::from_utf8(out).expect("utf-8 stdout"),
+        String::from_utf8(err).expect("utf-8 stderr"),
+    )
+}
+
+fn analyze_json(csv: &TempCsv, extra: &[&str]) -> Value {
+    let path = csv.path();
+    let mut args = vec!["--csv", path.as_str(), "--json"];
+    args.extend_from_slice(extra);
+    let (code, out, err) = analyze(&args);
+    assert_eq!(code, 0, "stderr: {err}");
+    assert!(err.is_empty(), "stderr: {err}");
+    serde_json::from_str(&out).expect("valid JSON")
+}
+
+/// A coded table in standard order for `k` factors (first factor fastest) with one or more
+/// response columns.
+fn coded_csv(k: usize, names: &[&str], columns: &[&[&str]]) -> String {
+    let letters = ["A", "B", "C", "D", "E"];
+    let mut s = letters[..k].join(",");
+    for n in names {
+        s.push(',');
+        s.push_str(n);
+    }
+    s.push('\n');
+    let runs = columns[0].len();
+    for i in 0..runs {
+        let settings: Vec<&str> = (0..k)
+            .map(|f| {
+                if (i % (1 << k)) >> f & 1 == 1 {
+                    "1"
+                } else {
+                    "-1"
+                }
+            })
+            .collect();
+        s.push_str(&settings.join(","));
+        for c in columns {
+            s.push(',');
+            s.push_str(c[i]);
+        }
+        s.push('\n');
+    }
+    s
+}
+
+/// Montgomery, *Design and Analysis of Experiments*, Example 6-2 (filtration rate).
+const FILTRATION: [&str; 16] = [
+    "45", "71", "48", "65", "68", "60", "80", "65", "43", "100", "45", "104", "75", "86", "70",
+    "96",
+];
+
+/// Montgomery, Example 8-2 (integrated-circuit yield), responses in standard order of A–D.
+const IC_YIELD: [&str; 16] = [
+    "8", "9", "34", "52", "16", "22", "45", "60", "6", "10", "30", "50", "15", "21", "44", "63",
+];
+
+fn number(v: &Value, what: &str) -> f64 {
+    v.as_f64()
+        .unwrap_or_else(|| panic!("{what} is not a number: {v}"))
+}
+
+fn find<'a>(array: &'a Value, key: &str, name: &str) -> &'a Value {
+    array
+        .as_array()
+        .expect("array")
+        .iter()
+        .find(|e| e[key] == name)
+        .unwrap_or_else(|| panic!("no entry {key} = {name}"))
+}
+
+#[test]
+fn filtration_rate_json_has_effects_lenth_half_normal_model_and_anova() {
+    let csv = TempCsv::new(&coded_csv(4, &["filtration"], &[&FILTRATION]));
+    let v = analyze_json(&csv, &[]);
+    for key in [
+        "response",
+        "effects",
+        "lenth",
+        "half_normal",
+        "model",
+        "anova",
+        "curvature",
+        "not_estimable",
+    ] {
+        assert!(v.get(key).is_some(), "missing key {key}");
+    }
+    assert_eq!(v["response"], "filtration");
+    assert_eq!(v["effects"].as_array().expect("effects").len(), 15);
+    // Montgomery, Example 6-2: effects (three decimals) and Lenth's margins.
+    let a = find(&v["effects"], "term", "A");
+    assert_close(number(&a["effect"], "A effect"), 21.625, 0.0005, "A");
+    assert_close(
+        number(&a["coefficient"], "A coef"),
+        10.8125,
+        0.00005,
+        "A coefficient",
+    );
+    assert_eq!(a["aliases"], serde_json::json!([]));
+    let ac = find(&v["effects"], "term", "AC");
+    assert_close(number(&ac["effect"], "AC"), -18.125, 0.0005, "AC");
+    assert_close(number(&v["lenth"]["pse"], "pse"), 2.625, 0.0005, "PSE");
+    assert_close(number(&v["lenth"]["me"], "me"), 6.74778, 0.000005, "ME");
+    assert_close(number(&v["lenth"]["sme"], "sme"), 13.69896, 0.000005, "SME");
+    assert_close(number(&v["lenth"]["df"], "df"), 5.0, 1e-12, "d");
+    // Half-normal: largest |effect| A last, at Φ⁻¹(0.5 + 0.5·14.5/15) = 2.128045 (scipy).
+    let hn = v["half_normal"].as_array().expect("half_normal");
+    assert_eq!(hn.len(), 15);
+    assert_eq!(hn[14]["term"], "A");
+    assert_close(number(&hn[14]["abs_effect"], "abs"), 21.625, 1e-12, "|A|");
+    assert_close(
+        number(&hn[14]["quantile"], "q"),
+        2.128045,
+        0.0000005,
+        "A quantile",
+    );
+    // Default model: the effects beyond ME (A, C, D, AC, AD; same source), already hierarchical.
+    assert_eq!(
+        v["model"]["terms"],
+        serde_json::json!(["A", "C", "D", "AC", "AD"])
+    );
+    let coefs = v["model"]["coefficients"].as_array().expect("coefficients");
+    assert_close(number(&coefs[0], "A coef"), 10.8125, 1e-9, "A coefficient");
+    // ANOVA of that model from the published effects: SS = 16·effect²/4, e.g. A 1870.5625;
+    // residual = total 5730.9375 − model 5535.8125 = 195.125 on 10 df.
+    let anova = &v["anova"];
+    assert_close(
+        number(&find(anova, "source", "A")["ss"], "SS A"),
+        1870.5625,
+        1e-9,
+        "SS A",
+    );
+    let residual = find(anova, "source", "Residual");
+    assert_eq!(residual["df"], 10);
+    assert_close(
+        number(&residual["ss"], "SS res"),
+        195.125,
+        1e-9,
+        "SS residual",
+    );
+    assert_close(
+        number(&v["model"]["r2"], "r2"),
+        5535.8125 / 5730.9375,
+        1e-9,
+        "R²",
+    );
+    assert!(v["model"].get("adj_r2").is_some() && v["model"].get("pred_r2").is_some());
+    assert!(v["model"]["sigma"].is_number());
+    assert!(v["curvature"].is_null());
+    assert_eq!(v["not_estimable"], serde_json::json!([]));
+}
+
+#[test]
+fn ic_yield_fraction_typed_in_gives_published_anova() {
+    // Montgomery, Example 8-2: E = ABCD typed in as a column; model A + B + C + AB. Published:
+    // SS A 495.0625, B 4590.0625, C 473.0625, AB 189.0625, error 28.1875 on 11 df; F 193.20,
+    // 1791.24, 184.61, 73.78.
+    let e_column: Vec<String> = (0..16)
+        .map(|i: usize| {
+            if i.count_ones() % 2 == 0 {
+                "1".to_string()
+            } else {
+                "-1".to_string()
+            }
+        })
+        .collect();
+    let e_refs: Vec<&str> = e_column.iter().map(String::as_str).collect();
+    let text = coded_csv(4, &["E", "yield"], &[&e_refs, &IC_YIELD]);
+    let csv = TempCsv::new(&text);
+    // The header `A,B,C,D,E,yield` makes E the fifth factor.
+    let v = analyze_json(&csv, &["--terms", "A,B,C,AB"]);
+    assert_eq!(v["factors"], 5);
+    assert_eq!(v["defining_relation"], serde_json::json!(["ABCDE"]));
+    assert_eq!(v["generators"], serde_json::json!(["E = ABCD"]));
+    let a = find(&v["effects"], "term", "A");
+    assert_eq!(a["aliases"], serde_json::json!(["BCDE"]));
+    assert_close(number(&a["effect"], "A"), 11.125, 0.0005, "A effect");
+    let ab = find(&v["effects"], "term", "AB");
+    assert_eq!(ab["aliases"], serde_json::json!(["CDE"]));
+    for (source, ss, f) in [
+        ("A", 495.0625, 193.20),
+        ("B", 4590.0625, 1791.24),
+        ("C", 473.0625, 184.61),
+        ("AB", 189.0625, 73.78),
+    ] {
+        let row = find(&v["anova"], "source", source);
+        assert_close(number(&row["ss"], source), ss, 0.00005, source);
+        assert_close(number(&row["f"], source), f, 0.005, source);
+    }
+    let residual = find(&v["anova"], "source", "Residual");
+    assert_eq!(residual["df"], 11);
+    assert_close(number(&residual["ss"], "res"), 28.1875, 0.00005, "error SS");
+}
+
+#[test]
+fn typing_an_alias_as_a_model_term_fits_its_chain() {
+    let e_column: Vec<String> = (0..16)
+        .map(|i: usize| if i.count_ones() % 2 == 0 { "1" } else { "-1" }.to_string())
+        .collect();
+    let e_refs: Vec<&str> = e_column.iter().map(String::as_str).collect();
+    let csv = TempCsv::new(&coded_csv(4, &["E", "yield"], &[&e_refs, &IC_YIELD]));
+    let v = analyze_json(&csv, &["--terms", "A,B,CDE"]);
+    assert_eq!(v["model"]["terms"], serde_json::json!(["A", "B", "AB"]));
+    assert!(
+        v["model"]["notes"][0]
+            .as_str()
+            .expect("note")
+            .contains("CDE")
+    );
+}
+
+#[test]
+fn replicated_design_reports_lack_of_fit() {
+    // Montgomery, Example 6-1 (two replicates, listed one after the other). Reduced model A, B,
+    // C, AB: lack of fit 2.25 on 3 df, F 1.20, p 0.370; pure error 5.00 on 8 df.
+    let y = [
+        "-3", "0", "-1", "2", "-1", "2", "1", "6", "-1", "1", "0", "3", "0", "1", "1", "5",
+    ];
+    let csv = TempCsv::new(&coded_csv(3, &["fill"], &[&y]));
+    let v = analyze_json(&csv, &["--terms", "A,B,C,AB"]);
+    assert_eq!(v["method"], "fast_transform");
+    let lof = find(&v["anova"], "source", "Lack of fit");
+    assert_eq!(lof["df"], 3);
+    assert_close(number(&lof["ss"], "lof"), 2.25, 0.005, "lack of fit SS");
+    assert_close(number(&lof["f"], "lof F"), 1.20, 0.005, "lack of fit F");
+    assert_close(number(&lof["p"], "lof p"), 0.370, 0.0005, "lack of fit p");
+    let pe = find(&v["anova"], "source", "Pure error");
+    assert_eq!(pe["df"], 8);
+    assert_close(number(&pe["ss"], "pe"), 5.00, 0.005, "pure error SS");
+}
+
+#[test]
+fn centre_points_give_the_curvature_test() {
+    // Montgomery, Example 6-6: corners 39.3, 40.9, 40.0, 41.5 and five centres. Curvature SS
+    // 0.0027 (four decimals), F 0.063; exact p 0.8137 (REFERENCES, computed).
+    let text = "A,B,y\n-1,-1,39.3\n1,-1,40.9\n-1,1,40.0\n1,1,41.5\n0,0,40.3\n0,0,40.5\n0,0,40.7\n0,0,40.2\n0,0,40.6\n";
+    let csv = TempCsv::new(text);
+    let v = analyze_json(&csv, &["--terms", "A,B,AB"]);
+    assert_eq!(v["runs"]["centre_used"], 5);
+    let c = &v["curvature"];
+    assert_close(number(&c["ss"], "curv ss"), 0.0027, 0.00005, "curvature SS");
+    assert_close(number(&c["f"], "curv F"), 0.063, 0.0005, "curvature F");
+    assert_close(number(&c["p"], "curv p"), 0.8137, 0.00005, "curvature p");
+    let a = find(&v["effects"], "term", "A");
+    assert_close(
+        number(&a["effect"], "A"),
+        1.55,
+        1e-12,
+        "A effect from corners",
+    );
+}
+
+#[test]
+fn missing_value_is_reported_as_not_estimable() {
+    let mut y = FILTRATION;
+    y[5] = "";
+    let csv = TempCsv::new(&coded_csv(4, &["filtration"], &[&y]));
+    let v = analyze_json(&csv, &[]);
+    assert_eq!(v["method"], "least_squares");
+    assert_eq!(v["not_estimable"], serde_json::json!(["ABCD"]));
+    assert_eq!(v["runs"]["missing"], 1);
+    assert_eq!(v["effects"].as_array().expect("effects").len(), 14);
+}
+
+#[test]
+fn response_and_transform_options_select_and_transform() {
+    let csv = TempCsv::new(&coded_csv(
+        4,
+        &["filtration", "yield"],
+        &[&FILTRATION, &IC_YIELD],
+    ));
+    let v = analyze_json(&csv, &["--response", "yield", "--transform", "ln"]);
+    assert_eq!(v["response"], "yield");
+    assert_eq!(v["transform"], "ln");
+    // Effects of ln(yield) on the 2^4 layout, computed with numpy:
+    //   ly = np.log(y); c = np.prod(X[:, cols], axis=1); ly[c > 0].mean() - ly[c < 0].mean()
+    for (term, value) in [
+        ("A", 0.3582338262273037),
+        ("B", 1.3289926933660268),
+        ("AB", 0.03735016943677305),
+    ] {
+        let e = find(&v["effects"], "term", term);
+        assert_close(number(&e["effect"], term), value, 1e-9, term);
+    }
+}
+
+#[test]
+fn text_report_is_readable() {
+    let csv = TempCsv::new(&coded_csv(4, &["filtration"], &[&FILTRATION]));
+    let path = csv.path();
+    let (code, out, err) = analyze(&["--csv", &path]);
+    assert_eq!(code, 0, "{err}");
+    assert!(out.contains("Lenth: PSE 2.625"), "{out}");
+    assert!(out.contains("Model: A + C + D + AC + AD"), "{out}");
+    assert!(out.contains("Analysis of variance"), "{out}");
+}
+
+#[test]
+fn help_prints_usage() {
+    let (code, out, _) = analyze(&["--help"]);
+    assert_eq!(code, 0);
+    assert!(out.contains("--csv FILE"));
+}
+
+#[test]
+fn bad_input_is_refused_with_one_line_naming_row_and_column() {
+    let square = "A,B,y\n-1,-1,1\n1,-1,2\n-1,1,3\n1,1,4\n";
+    // (file contents, extra arguments, expected part of the message)
+    let cases: &[(&str, &[&str], &str)] = &[
+        (
+            "A,B,y\n-1,-1,1\n1,-1,abc\n",
+            &[],
+            "row 2 (line 3), column `y`: `abc` is not a number",
+        ),
+        (
+            "A,B,y\n-1,-1,1\n1,-1,inf\n",
+            &[],
+            "row 2 (line 3), column `y`: `inf` is not a finite number",
+        ),
+        (
+            "A,B,y\n-1,-1,1\n1,2,5\n",
+            &[],
+            "row 2 (line 3), column `B`: `2` is not a coded level",
+        ),
+        (
+            "A,B,y\n-1,-1,1\n1,0.5,5\n",
+            &[],
+            "row 2 (line 3), column `B`: `0.5` is not a coded level",
+        ),
+        (square, &["--response", "z"], "unknown response `z`"),
+        (
+            "A,B,y\n-1,-1,1\n1,-1,2\n-1,1,\n1,1,4\n",
+            &["--terms", "A,B,AB"],
+            "the model needs 4 parameters but only 3 runs",
+        ),
+        ("", &[], "the file is empty"),
+        ("A,B,y\n", &[], "no data rows"),
+        (square, &["--frobnicate"], "unknown option `--frobnicate`"),
+        (square, &["--terms", "A,E"], "--terms: `E` in `E`"),
+        (
+            "A,B,y\n-1,-1,1\n1,-1,2\n-1,0,3\n1,1,4\n",
+            &[],
+            "row 3 (line 4): some factors are at 0",
+        ),
+        (
+            "A,B,y\n-1,-1,1\n1,-1,-2\n-1,1,3\n1,1,4\n",
+            &["--transform", "ln"],
+            "row 2 (line 3), column `y`: ln needs positive responses",
+        ),
+        (
+            "A,B,y\n-1,-1,1\n1,-1,2\n",
+            &["--transform", "power:x"],
+            "--transform `power:x`",
+        ),
+        ("A,B,y\n-1,-1,1\n1,-1\n", &[], "row 2 (line 3): 2 cells"),
+        ("x,y\n1,2\n", &[], "first column must be factor `A`"),
+        (
+            "A,B,C,y\n-1,-1,-1,1\n1,1,1,2\n",
+            &["--terms", "AB"],
+            "aliased with the mean",
+        ),
+    ];
+    for (contents, extra, expected) in cases {
+        let csv = TempCsv::new(contents);
+        let path = csv.path();
+        let mut args = vec!["--csv", path.as_str(), "--json"];
+        args.extend_from_slice(extra);
+        let (code, out, err) = analyze(&args);
+        assert_eq!(code, 2, "{contents:?} {extra:?}: exit code, stderr {err}");
+        assert!(out.is_empty(), "{contents:?}: nothing on stdout, got {out}");
+        assert!(err.contains(expected), "{contents:?} {extra:?}: {err}");
+        assert_eq!(err.trim_end().lines().count(), 1, "one line: {err}");
+        assert!(err.starts_with("error: "), "{err}");
+    }
+}
+
+#[test]
+fn missing_file_is_bad_input() {
+    let path = std::env::temp_dir().join(format!(
+        "twofold-cli-analyze-{}-does-not-exist.csv",
+        std::process::id()
+    ));
+    let p = path.display().to_string();
+    let (code, _, err) = analyze(&["--csv", &p]);
+    assert_eq!(code, 2);
+    assert!(err.contains("cannot read"), "{err}");
+}

@@ -349,6 +349,12 @@ impl AliasStructure {
                 }
             }
         }
+        let generators = s.generators();
+        if generators.len() <= FULL_RELATION_MAX_GENERATORS {
+            // Few words: list the whole defining relation, whatever their length, as the
+            // products of the generator words.
+            defining = all_products(&generators.iter().map(|g| g.word()).collect::<Vec<_>>());
+        }
         defining.sort_by_key(|w| w.term);
         s.defining = defining;
         s.complete = groups.len() == wanted_chains;
@@ -422,9 +428,36 @@ impl AliasStructure {
     }
 
     /// Words whose column is constant, i.e. aliased with the mean `I` (the defining relation of
-    /// a fraction, with signs), up to the label order, in trade order. Empty for a full factorial.
+    /// a fraction, with signs), in trade order. Every word is listed when there are at most
+    /// [`FULL_RELATION_MAX_GENERATORS`] generators (63 words); otherwise the words up to the
+    /// label order. Empty for a full factorial.
     pub fn defining_words(&self) -> &[SignedTerm] {
         &self.defining
+    }
+
+    /// Each factor outside the basis written as a signed product of basis factors (`E = ABCD`),
+    /// in factor order: the generators of the layout as read from its columns.
+    pub fn generators(&self) -> Vec<Generator> {
+        self.factor_keys
+            .iter()
+            .enumerate()
+            .filter(|(f, _)| !self.basis.contains(f))
+            .map(|(f, key)| {
+                let product = self
+                    .basis
+                    .iter()
+                    .enumerate()
+                    .filter(|(j, _)| key.bits >> j & 1 == 1)
+                    .fold(Term::IDENTITY, |acc, (_, &b)| acc.times(Term::main(b)));
+                Generator {
+                    factor: f,
+                    product: SignedTerm {
+                        term: product,
+                        negative: key.negative,
+                    },
+                }
+            })
+            .collect()
     }
 
     /// The key of any term: which product of basis factors has its column, and the sign.
@@ -479,6 +512,49 @@ impl AliasStructure {
     pub fn cell_of(&self, row: &[f64]) -> u32 {
         basis_cell(row, &self.basis)
     }
+}
+
+/// A factor column written as a signed product of basis factor columns, e.g. `E = ABCD` or
+/// `D = -AB` (a product of no factors, `C = I`, means the factor is constant).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct Generator {
+    /// The factor (0-based).
+    pub factor: usize,
+    /// The signed product of basis factors equal to its column.
+    pub product: SignedTerm,
+}
+
+impl Generator {
+    /// The word of the defining relation it gives: `E = ABCD` gives `I = ABCDE`.
+    pub fn word(&self) -> SignedTerm {
+        SignedTerm {
+            term: Term::main(self.factor).times(self.product.term),
+            negative: self.product.negative,
+        }
+    }
+
+    /// The generator written out, e.g. `E = ABCD`.
+    pub fn label(&self) -> String {
+        format!("{} = {}", Term::main(self.factor), self.product)
+    }
+}
+
+/// With at most this many generators the whole defining relation (`2^p − 1` words) is listed.
+pub const FULL_RELATION_MAX_GENERATORS: usize = 6;
+
+/// Every non-empty product of the given words (signs multiplied).
+fn all_products(words: &[SignedTerm]) -> Vec<SignedTerm> {
+    (1usize..1 << words.len())
+        .map(|mask| {
+            words
+                .iter()
+                .enumerate()
+                .filter(|(j, _)| mask >> j & 1 == 1)
+                .fold(SignedTerm::plus(Term::IDENTITY), |acc, (_, w)| {
+                    acc.times(*w)
+                })
+        })
+        .collect()
 }
 
 /// Alias chains of the factorial rows of `levels` (see [`AliasStructure::from_levels`]); the
@@ -669,6 +745,30 @@ mod tests {
     }
 
     #[test]
+    fn defining_relations_match_published_word_length_patterns() {
+        // Montgomery, table of selected 2^(k-p) designs (REFERENCES): 2^(6-2) with E = ABC,
+        // F = BCD has pattern (0, 3, 0, 0); 2^(7-3) with E = ABC, F = BCD, G = ACD has
+        // (0, 7, 0, 0, 0). Here the generators are not given: only the columns.
+        for (gens, k, pattern) in [
+            (vec![("ABC", false), ("BCD", false)], 6, vec![0, 3, 0, 0]),
+            (
+                vec![("ABC", false), ("BCD", false), ("ACD", false)],
+                7,
+                vec![0, 7, 0, 0, 0],
+            ),
+        ] {
+            let rows = fraction(4, &gens);
+            let s = AliasStructure::from_levels(&rows, k, 3);
+            let mut counts = vec![0; k - 2];
+            for w in s.defining_words() {
+                counts[w.term.order() - 3] += 1;
+            }
+            assert_eq!(counts, pattern, "k = {k}");
+            assert_eq!(s.chains().len(), 15);
+        }
+    }
+
+    #[test]
     fn negative_generator_gives_negative_aliases() {
         // 2^(3-1) with C = -AB: I = -ABC, A = -BC, B = -AC, C = -AB (common practice, no source).
         let rows = fraction(2, &[("AB", true)]);
@@ -676,6 +776,8 @@ mod tests {
         let labels: Vec<String> = s.chains().iter().map(AliasChain::label).collect();
         assert_eq!(labels, ["A = -BC", "B = -AC", "C = -AB"]);
         assert_eq!(s.defining_words()[0].to_string(), "-ABC");
+        let gens: Vec<String> = s.generators().iter().map(Generator::label).collect();
+        assert_eq!(gens, ["C = -AB"]);
         assert_eq!(s.representative_of(t("BC")).unwrap().to_string(), "-A");
         assert_eq!(s.representative_of(t("ABC")), None);
     }

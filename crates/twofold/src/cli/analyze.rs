@@ -705,7 +705,7 @@ fn labels(terms: &[Term]) -> Vec<String> {
 }
 
 /// The analysis as one JSON object. Keys: `response`, `transform`, `factors`, `runs`, `method`,
-/// `defining_relation`, `effects` (`term`, `aliases`, `effect`, `coefficient`, `lenth`),
+/// `defining_relation`, `generators`, `effects` (`term`, `aliases`, `effect`, `coefficient`, `lenth`),
 /// `not_estimable`, `confounded_with_blocks`, `lenth` (`pse`, `me`, `sme`, `df`, `s0`, `m`,
 /// `t_me`, `t_sme`, `gamma`, or null with `lenth_note`), `half_normal` (`term`, `effect`,
 /// `abs_effect`, `rank`, `quantile`), `normal_probability`, `model` (`terms`, `coefficients`
@@ -769,6 +769,7 @@ pub fn analysis_json(a: &Analysis) -> Value {
         },
         "method": method_key(a.effects.method),
         "defining_relation": a.effects.aliasing.defining_words().iter().map(ToString::to_string).collect::<Vec<_>>(),
+        "generators": a.effects.aliasing.generators().iter().map(|g| g.label()).collect::<Vec<_>>(),
         "effects": effects,
         "not_estimable": labels(&a.effects.not_estimable),
         "confounded_with_blocks": labels(&a.effects.confounded_with_blocks),
