@@ -318,7 +318,7 @@ impl Project {
                 let before = model.terms.len();
                 model
                     .terms
-                    .retain(|t| Term::parse(t, k).map_or(true, |x| x != parsed));
+                    .retain(|t| Term::parse(t, k) != Ok(parsed));
                 if model.terms.len() == before {
                     model.terms.push(parsed.label());
                 }
@@ -417,4 +417,439 @@ fn sort_terms(labels: &mut [String], factor_count: usize) {
         Ok(t) => (0, Some(t)),
         Err(_) => (1, None),
     });
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::project::{BlockChoice, Cell, History, ModelSettings};
+
+    /// Three numeric factors, 2^3 with two centre points, one response with some values typed.
+    fn planned() -> Project {
+        let mut p = Project::new("Cure trial");
+        p.factors
+            .push(Factor::numeric("Temperature", "°C", 160.0, 200.0));
+        p.factors.push(Factor::numeric("Time", "min", 10.0, 20.0));
+        p.factors
+            .push(Factor::numeric("Thickness", "µm", 60.0, 90.0));
+        p.responses.push(ResponseDef::new("Gloss", "GU"));
+        p.design.centre_points_per_block = 2;
+        p.apply(Edit::RegenerateRuns).unwrap();
+        for (i, run) in p.runs.iter_mut().enumerate() {
+            run.values[0] = Cell::new(format!("{}", 80 + i));
+        }
+        p
+    }
+
+    /// Index of each edit kind, so the test below fails to compile when a kind is added and
+    /// fails to pass when one is left out.
+    fn kind(e: &Edit) -> usize {
+        match e {
+            Edit::SetName(_) => 0,
+            Edit::SetDescription(_) => 1,
+            Edit::AddFactor(_) => 2,
+            Edit::RemoveFactor { .. } => 3,
+            Edit::RenameFactor { .. } => 4,
+            Edit::MoveFactor { .. } => 5,
+            Edit::SetFactorUnit { .. } => 6,
+            Edit::SetFactorKind { .. } => 7,
+            Edit::SetSafeRange { .. } => 8,
+            Edit::SetDesign(_) => 9,
+            Edit::RegenerateRuns => 10,
+            Edit::AddResponse(_) => 11,
+            Edit::RenameResponse { .. } => 12,
+            Edit::SetResponseUnit { .. } => 13,
+            Edit::RemoveResponse { .. } => 14,
+            Edit::SetCell { .. } => 15,
+            Edit::SetStatus { .. } => 16,
+            Edit::SetNote { .. } => 17,
+            Edit::ToggleTerm { .. } => 18,
+            Edit::SetTerms { .. } => 19,
+            Edit::SetHierarchical { .. } => 20,
+            Edit::SetTransform { .. } => 21,
+        }
+    }
+    const KINDS: usize = 22;
+
+    #[test]
+    fn every_edit_kind_changes_and_undoes_and_redoes() {
+        let mut more_runs = planned().design;
+        more_runs.replicates = 2;
+        let mut outdated = planned();
+        outdated.design.seed = 99;
+        outdated.runs_outdated = true;
+        let cases: Vec<(Project, Edit)> = vec![
+            (planned(), Edit::SetName("Renamed".into())),
+            (planned(), Edit::SetDescription("Lot 42".into())),
+            (
+                planned(),
+                Edit::AddFactor(Factor::numeric("Humidity", "%", 30.0, 60.0)),
+            ),
+            (planned(), Edit::RemoveFactor { index: 1 }),
+            (
+                planned(),
+                Edit::RenameFactor {
+                    index: 0,
+                    name: "Oven".into(),
+                },
+            ),
+            (planned(), Edit::MoveFactor { from: 0, to: 2 }),
+            (
+                planned(),
+                Edit::SetFactorUnit {
+                    index: 0,
+                    unit: "K".into(),
+                },
+            ),
+            (
+                planned(),
+                Edit::SetFactorKind {
+                    index: 2,
+                    kind: FactorKind::Categorical {
+                        low_label: "thin".into(),
+                        high_label: "thick".into(),
+                    },
+                },
+            ),
+            (
+                planned(),
+                Edit::SetSafeRange {
+                    index: 0,
+                    range: Some((150.0, 210.0)),
+                },
+            ),
+            (planned(), Edit::SetDesign(more_runs)),
+            (outdated, Edit::RegenerateRuns),
+            (
+                planned(),
+                Edit::AddResponse(ResponseDef::new("Hardness", "H")),
+            ),
+            (
+                planned(),
+                Edit::RenameResponse {
+                    index: 0,
+                    name: "Gloss 60°".into(),
+                },
+            ),
+            (
+                planned(),
+                Edit::SetResponseUnit {
+                    index: 0,
+                    unit: "gloss units".into(),
+                },
+            ),
+            (planned(), Edit::RemoveResponse { index: 0 }),
+            (
+                planned(),
+                Edit::SetCell {
+                    run: 3,
+                    response: 0,
+                    text: "12,5x".into(),
+                    at: Some("2025-03-04T10:22:05Z".into()),
+                },
+            ),
+            (
+                planned(),
+                Edit::SetStatus {
+                    run: 2,
+                    status: RunStatus::Excluded {
+                        reason: "door open".into(),
+                    },
+                },
+            ),
+            (
+                planned(),
+                Edit::SetNote {
+                    run: 0,
+                    note: "new lot".into(),
+                },
+            ),
+            (
+                planned(),
+                Edit::ToggleTerm {
+                    response: 0,
+                    term: "ba".into(),
+                },
+            ),
+            (
+                planned(),
+                Edit::SetTerms {
+                    response: 0,
+                    terms: vec!["C".into(), "A".into()],
+                },
+            ),
+            (
+                planned(),
+                Edit::SetHierarchical {
+                    response: 0,
+                    on: false,
+                },
+            ),
+            (
+                planned(),
+                Edit::SetTransform {
+                    response: 0,
+                    transform: ResponseTransform::Ln,
+                },
+            ),
+        ];
+        let mut seen = [false; KINDS];
+        for (start, edit) in cases {
+            seen[kind(&edit)] = true;
+            let label = format!("{edit:?}");
+            let mut h = History::new(start.clone());
+            h.apply(edit).unwrap_or_else(|e| panic!("{label}: {e}"));
+            let after = h.project().clone();
+            assert_ne!(after, start, "{label} changed nothing");
+            assert!(
+                after.check_structure().is_ok(),
+                "{label} broke the structure"
+            );
+            assert!(h.undo(), "{label}");
+            assert_eq!(h.project(), &start, "{label}: undo");
+            assert!(h.redo(), "{label}");
+            assert_eq!(h.project(), &after, "{label}: redo");
+        }
+        assert!(
+            seen.iter().all(|&s| s),
+            "every edit kind is tested: {seen:?}"
+        );
+    }
+
+    #[test]
+    fn regenerated_sheet_is_the_design() {
+        let p = planned();
+        assert_eq!(p.runs.len(), 10);
+        assert_eq!(p.runs.iter().filter(|r| r.centre).count(), 2);
+        assert!(!p.runs_outdated);
+        let mut orders: Vec<u32> = p.runs.iter().map(|r| r.run_order).collect();
+        orders.sort_unstable();
+        assert_eq!(orders, (1..=10).collect::<Vec<_>>());
+        assert!(p.runs.windows(2).all(|w| w[0].std_order < w[1].std_order));
+        // Every corner of the cube once.
+        let mut corners: Vec<Vec<i8>> = p
+            .runs
+            .iter()
+            .filter(|r| !r.centre)
+            .map(|r| r.levels.clone())
+            .collect();
+        corners.sort();
+        corners.dedup();
+        assert_eq!(corners.len(), 8);
+    }
+
+    #[test]
+    fn regenerating_keeps_values_of_surviving_runs() {
+        let mut p = planned();
+        let typed = p.typed_value_count();
+        assert_eq!(typed, 10);
+        // Another seed: same runs, new order; nothing is lost.
+        let mut d = p.design.clone();
+        d.seed = 12345;
+        assert_eq!(p.design_change_would_discard(&d), 0);
+        // One centre point fewer: one typed centre value has no partner.
+        let mut fewer = p.design.clone();
+        fewer.centre_points_per_block = 1;
+        assert_eq!(p.design_change_would_discard(&fewer), 1);
+        // Half fraction: 4 corners survive, 4 corners and no centre point lost... centre points
+        // stay (2 per block).
+        let mut half = p.design.clone();
+        half.generators = vec!["C=AB".into()];
+        assert_eq!(p.design_change_would_discard(&half), 4);
+
+        let before: Vec<(Vec<i8>, String)> = p
+            .runs
+            .iter()
+            .map(|r| (r.levels.clone(), r.values[0].text.clone()))
+            .collect();
+        p.runs[0].note = "kept".into();
+        let kept_levels = p.runs[0].levels.clone();
+        p.apply(Edit::SetDesign(d)).unwrap();
+        assert!(p.runs_outdated);
+        p.apply(Edit::RegenerateRuns).unwrap();
+        assert!(!p.runs_outdated);
+        assert_eq!(p.typed_value_count(), typed);
+        for (levels, text) in before.iter().filter(|(l, _)| l.iter().any(|&v| v != 0)) {
+            let now = p.runs.iter().find(|r| &r.levels == levels).unwrap();
+            assert_eq!(&now.values[0].text, text, "{levels:?}");
+        }
+        assert_eq!(
+            p.runs
+                .iter()
+                .find(|r| r.levels == kept_levels)
+                .unwrap()
+                .note,
+            "kept"
+        );
+    }
+
+    #[test]
+    fn search_fills_generators_when_only_a_run_size_is_given() {
+        let mut p = Project::new("screen");
+        for name in ["A", "B", "C", "D", "E"] {
+            p.factors.push(Factor::numeric(name, "", -1.0, 1.0));
+        }
+        p.design.base_runs = Some(16);
+        p.apply(Edit::RegenerateRuns).unwrap();
+        assert_eq!(p.runs.len(), 16);
+        assert_eq!(p.design.generators.len(), 1, "{:?}", p.design.generators);
+        // Resolution V: the generator's word has all five letters.
+        let g = &p.design.generators[0];
+        assert_eq!(
+            g.chars().filter(|c| c.is_ascii_alphabetic()).count(),
+            5,
+            "{g}"
+        );
+    }
+
+    #[test]
+    fn plan_errors_are_reported_and_change_nothing() {
+        let mut p = planned();
+        let before = p.clone();
+        p.factors[0].kind = FactorKind::Categorical {
+            low_label: "a".into(),
+            high_label: "b".into(),
+        };
+        let err = p.apply(Edit::RegenerateRuns).unwrap_err();
+        assert_eq!(
+            err.to_string(),
+            "cannot generate the runs: centre points need every factor to be numeric"
+        );
+        let mut p = before.clone();
+        p.design.generators = vec!["C=A".into()];
+        let err = p.clone().apply(Edit::RegenerateRuns).unwrap_err();
+        assert!(
+            err.to_string()
+                .starts_with("cannot generate the runs: generator"),
+            "{err}"
+        );
+        p.design.generators.clear();
+        p.design.blocks = BlockChoice::Generators(vec!["AX".into()]);
+        let err = p.clone().apply(Edit::RegenerateRuns).unwrap_err();
+        assert!(err.to_string().contains("block generator"), "{err}");
+        assert_eq!(p.design_change_would_discard(&p.design.clone()), 0);
+    }
+
+    #[test]
+    fn factor_changes_keep_runs_consistent_and_move_terms() {
+        let mut p = planned();
+        p.responses[0].model = ModelSettings {
+            terms: vec!["A".into(), "C".into(), "AC".into(), "BC".into()],
+            ..ModelSettings::default()
+        };
+        let mut q = p.clone();
+        q.apply(Edit::RemoveFactor { index: 1 }).unwrap();
+        assert_eq!(
+            q.responses[0].model.terms,
+            ["A", "B", "AB"],
+            "C became B; BC dropped"
+        );
+        assert!(q.runs.iter().all(|r| r.levels.len() == 2));
+        assert!(q.runs_outdated);
+        let mut q = p.clone();
+        q.apply(Edit::MoveFactor { from: 0, to: 2 }).unwrap();
+        assert_eq!(q.factors[2].name, "Temperature");
+        assert_eq!(q.responses[0].model.terms, ["B", "C", "AB", "BC"]);
+        for (a, b) in p.runs.iter().zip(&q.runs) {
+            assert_eq!(b.levels, vec![a.levels[1], a.levels[2], a.levels[0]]);
+        }
+        let mut q = p.clone();
+        q.apply(Edit::AddFactor(Factor::numeric("D", "", 0.0, 1.0)))
+            .unwrap();
+        assert!(
+            q.runs
+                .iter()
+                .all(|r| r.levels.len() == 4 && r.levels[3] == 0)
+        );
+        assert_eq!(
+            q.design_change_would_discard(&q.design.clone()),
+            8,
+            "corners change, centres stay"
+        );
+    }
+
+    #[test]
+    fn term_toggle_normalises_and_rejects_unknown_letters() {
+        let mut p = planned();
+        p.apply(Edit::ToggleTerm {
+            response: 0,
+            term: "cb".into(),
+        })
+        .unwrap();
+        p.apply(Edit::ToggleTerm {
+            response: 0,
+            term: "A".into(),
+        })
+        .unwrap();
+        assert_eq!(p.responses[0].model.terms, ["A", "BC"]);
+        p.apply(Edit::ToggleTerm {
+            response: 0,
+            term: "BC".into(),
+        })
+        .unwrap();
+        assert_eq!(p.responses[0].model.terms, ["A"]);
+        let err = p
+            .apply(Edit::ToggleTerm {
+                response: 0,
+                term: "AD".into(),
+            })
+            .unwrap_err();
+        assert!(matches!(err, EditError::BadTerm(_)), "{err}");
+        assert_eq!(
+            p.apply(Edit::SetHierarchical {
+                response: 4,
+                on: true
+            }),
+            Err(EditError::NoSuchResponse(4))
+        );
+    }
+
+    #[test]
+    fn too_many_factors() {
+        let mut p = Project::new("big");
+        for i in 0..MAX_FACTORS {
+            p.apply(Edit::AddFactor(Factor::numeric(
+                &format!("F{i}"),
+                "",
+                0.0,
+                1.0,
+            )))
+            .unwrap();
+        }
+        assert_eq!(
+            p.apply(Edit::AddFactor(Factor::numeric("x", "", 0.0, 1.0))),
+            Err(EditError::TooManyFactors)
+        );
+    }
+
+    #[test]
+    fn cell_entry_records_time_and_keeps_bad_text() {
+        let mut p = planned();
+        p.apply(Edit::SetCell {
+            run: 1,
+            response: 0,
+            text: "12,5x".into(),
+            at: Some("t1".into()),
+        })
+        .unwrap();
+        assert_eq!(p.runs[1].values[0].text, "12,5x");
+        assert_eq!(p.runs[1].entered_at.as_deref(), Some("t1"));
+        p.apply(Edit::SetCell {
+            run: 1,
+            response: 0,
+            text: "".into(),
+            at: None,
+        })
+        .unwrap();
+        assert_eq!(p.runs[1].entered_at.as_deref(), Some("t1"));
+        assert_eq!(
+            p.apply(Edit::SetCell {
+                run: 99,
+                response: 0,
+                text: "1".into(),
+                at: None
+            }),
+            Err(EditError::NoSuchRun(99))
+        );
+    }
 }

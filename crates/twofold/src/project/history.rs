@@ -93,6 +93,17 @@ impl History {
         Ok(())
     }
 
+    /// Applies several edits as one undoable step (e.g. new design settings and the regenerated
+    /// sheet). All or nothing: when one fails, nothing changes and its error is returned.
+    pub fn apply_all(&mut self, edits: Vec<Edit>) -> Result<(), EditError> {
+        let mut next = self.project.clone();
+        for edit in edits {
+            next.apply(edit)?;
+        }
+        self.replace(next);
+        Ok(())
+    }
+
     /// Whether there is a step to undo.
     pub fn can_undo(&self) -> bool {
         !self.undo.is_empty()
@@ -151,5 +162,94 @@ impl History {
         }
         self.redo.clear();
         self.revision = fresh_revision();
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::project::Factor;
+
+    fn base() -> Project {
+        let mut p = Project::new("t");
+        p.factors.push(Factor::numeric("A", "", 0.0, 1.0));
+        p.factors.push(Factor::numeric("B", "", 0.0, 1.0));
+        p
+    }
+
+    #[test]
+    fn dirty_flag_follows_saved_state_through_undo_and_redo() {
+        let mut h = History::new(base());
+        let r0 = h.revision();
+        assert!(!h.is_dirty());
+        h.apply(Edit::SetName("one".into())).unwrap();
+        let r1 = h.revision();
+        assert_ne!(r0, r1);
+        assert!(h.is_dirty());
+        assert!(h.undo());
+        assert_eq!(h.revision(), r0, "undo restores the earlier revision");
+        assert!(!h.is_dirty(), "back at the saved content");
+        assert!(h.redo());
+        assert_eq!(h.revision(), r1);
+        h.mark_saved();
+        assert!(!h.is_dirty());
+        assert!(h.undo());
+        assert!(h.is_dirty());
+        assert!(!h.can_undo());
+        assert!(!h.undo());
+        h.apply(Edit::SetName("two".into())).unwrap();
+        assert!(!h.can_redo(), "a new edit clears redo");
+        assert!(!h.redo());
+        let r2 = h.revision();
+        assert!(r2 != r0 && r2 != r1, "revisions never repeat");
+    }
+
+    #[test]
+    fn failed_or_empty_edits_record_no_step() {
+        let mut h = History::new(base());
+        let r = h.revision();
+        assert!(h.apply(Edit::RemoveFactor { index: 9 }).is_err());
+        h.apply(Edit::SetName("t".into())).unwrap();
+        assert_eq!(h.revision(), r);
+        assert!(!h.can_undo());
+        let err = h.apply_all(vec![
+            Edit::SetName("x".into()),
+            Edit::SetNote {
+                run: 3,
+                note: "n".into(),
+            },
+        ]);
+        assert_eq!(err, Err(EditError::NoSuchRun(3)));
+        assert_eq!(h.project().name, "t", "all or nothing");
+        h.apply_all(vec![
+            Edit::SetName("x".into()),
+            Edit::SetDescription("d".into()),
+        ])
+        .unwrap();
+        assert!(h.undo());
+        assert_eq!(h.project(), &base(), "a group is one step");
+    }
+
+    #[test]
+    fn undo_is_bounded() {
+        let mut h = History::new(base());
+        h.set_limit(3);
+        for i in 0..10 {
+            h.apply(Edit::SetName(format!("n{i}"))).unwrap();
+        }
+        let mut steps = 0;
+        while h.undo() {
+            steps += 1;
+        }
+        assert_eq!(steps, 3);
+        assert_eq!(h.project().name, "n6");
+    }
+
+    #[test]
+    fn revisions_are_unique_across_histories() {
+        let a = History::new(base());
+        let b = History::new(base());
+        assert_ne!(a.revision(), b.revision());
+        assert!(History::new_unsaved(base()).is_dirty());
     }
 }

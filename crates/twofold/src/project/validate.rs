@@ -82,7 +82,10 @@ impl Project {
             push(
                 Severity::Error,
                 Field::Factors,
-                format!("{n} factors: a design needs {MIN_FACTORS} to {MAX_FACTORS}"),
+                format!(
+                    "{n} factor{}: a design needs {MIN_FACTORS} to {MAX_FACTORS}",
+                    if n == 1 { "" } else { "s" }
+                ),
             );
         }
         for (index, f) in self.factors.iter().enumerate() {
@@ -220,5 +223,102 @@ fn unit_space(unit: &str) -> String {
         String::new()
     } else {
         format!("{unit} ")
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::project::{Factor, ResponseDef};
+
+    fn two() -> Project {
+        let mut p = Project::new("t");
+        p.factors
+            .push(Factor::numeric("Temperature", "°C", 160.0, 200.0));
+        p.factors
+            .push(Factor::categorical("Supplier", "North", "South"));
+        p
+    }
+
+    #[test]
+    fn clean_project_has_no_problems() {
+        assert_eq!(two().validate(), vec![]);
+    }
+
+    #[test]
+    fn level_outside_safe_range_is_a_warning_per_level() {
+        let mut p = two();
+        p.factors[0].safe_range = Some((150.0, 190.0));
+        let problems = p.validate();
+        assert_eq!(problems.len(), 1, "{problems:?}");
+        assert_eq!(problems[0].severity, Severity::Warning);
+        assert_eq!(
+            problems[0].field,
+            Field::Factor {
+                index: 0,
+                part: FactorField::Levels
+            }
+        );
+        assert_eq!(
+            problems[0].message,
+            "high level 200 °C is outside the safe range 150 to 190"
+        );
+        p.factors[0].safe_range = Some((170.0, 180.0));
+        let w: Vec<_> = p
+            .validate()
+            .into_iter()
+            .filter(|q| q.severity == Severity::Warning)
+            .collect();
+        assert_eq!(w.len(), 2);
+        assert!(w[0].message.starts_with("low level 160"));
+        p.factors[0].safe_range = Some((160.0, 200.0));
+        assert_eq!(p.validate(), vec![], "the ends of the range are inside it");
+        p.factors[0].safe_range = Some((200.0, 160.0));
+        assert_eq!(p.validate()[0].severity, Severity::Error);
+    }
+
+    #[test]
+    fn errors_per_field() {
+        let mut p = two();
+        p.factors
+            .push(Factor::numeric(" temperature ", "", 1.0, 1.0));
+        p.factors.push(Factor::categorical("", "x", "x"));
+        p.factors[1].safe_range = Some((0.0, 1.0));
+        p.design.centre_points_per_block = 2;
+        p.design.replicates = 0;
+        p.responses.push(ResponseDef::new("", ""));
+        p.responses.push(ResponseDef::new("Gloss", ""));
+        p.responses.push(ResponseDef::new("gloss", ""));
+        p.responses[1].model.terms = vec!["AZ".into()];
+        let got: Vec<(Severity, Field)> = p
+            .validate()
+            .into_iter()
+            .map(|q| (q.severity, q.field))
+            .collect();
+        let f = |index, part| Field::Factor { index, part };
+        let e = Severity::Error;
+        assert_eq!(
+            got,
+            vec![
+                (e, f(1, FactorField::SafeRange)),
+                (e, f(2, FactorField::Name)),
+                (e, f(2, FactorField::Levels)),
+                (e, f(3, FactorField::Name)),
+                (e, f(3, FactorField::Levels)),
+                (e, Field::Design),
+                (e, Field::Design),
+                (e, Field::ResponseName { index: 0 }),
+                (e, Field::ResponseModel { index: 1 }),
+                (e, Field::ResponseName { index: 2 }),
+            ]
+        );
+    }
+
+    #[test]
+    fn factor_count_limits() {
+        let mut p = Project::new("t");
+        p.factors.push(Factor::numeric("A", "", 0.0, 1.0));
+        assert_eq!(p.validate()[0].field, Field::Factors);
+        assert_eq!(p.validate()[0].message, "1 factor: a design needs 2 to 25");
     }
 }
