@@ -12,7 +12,7 @@ use std::sync::mpsc::{Receiver, channel};
 
 use egui::{Key, KeyboardShortcut, Modifiers, RichText, Ui};
 
-use crate::panels::design::DesignPane;
+use crate::panels::design::{Compute, DesignPane};
 use crate::panels::effects::EffectsPane;
 use crate::panels::factors::FactorsPane;
 use crate::panels::interactions::PlotsPane;
@@ -179,6 +179,8 @@ pub struct TwofoldApp {
     sent_title: String,
     clock: fn() -> String,
     quit_confirmed: bool,
+    /// Compute searches in the frame (tests) rather than on worker threads.
+    inline_compute: bool,
 }
 
 /// Most recent files remembered.
@@ -212,6 +214,7 @@ impl TwofoldApp {
             sent_title: String::new(),
             clock: now_iso,
             quit_confirmed: false,
+            inline_compute: false,
         }
     }
 
@@ -220,6 +223,8 @@ impl TwofoldApp {
     pub fn new_for_test(project: Project) -> TwofoldApp {
         let mut app = TwofoldApp::with(History::new(project), None, FilePicker::Fixed(None));
         app.clock = || "2025-01-01T09:00:00Z".to_string();
+        app.inline_compute = true;
+        app.panes.design.compute = Compute::Inline;
         app
     }
 
@@ -377,6 +382,9 @@ impl TwofoldApp {
     /// Draws the whole window into `ui` and applies what the engineer did.
     pub fn ui_in(&mut self, ui: &mut Ui) {
         let ctx = ui.ctx().clone();
+        if self.applied_theme.is_none() {
+            theme::install_fonts(&ctx);
+        }
         if self.applied_theme != Some(self.theme) {
             theme::apply(&ctx, self.theme);
             self.applied_theme = Some(self.theme);
@@ -487,6 +495,9 @@ impl TwofoldApp {
         self.path = path;
         self.coalesce = None;
         self.panes = Panes::default();
+        if self.inline_compute {
+            self.panes.design.compute = Compute::Inline;
+        }
         self.derived = Derived::of(self.history.project(), self.history.revision());
         self.response = None;
         self.refresh();
@@ -983,13 +994,11 @@ fn file_stem(name: &str) -> String {
 }
 
 fn save_project(project: &Project, path: &Path) -> Result<(), String> {
-    let _ = (project, path);
-    Err("saving is not available in this build yet".into())
+    crate::project::save_project(path, project).map_err(|e| e.to_string())
 }
 
 fn load_project(path: &Path) -> Result<Project, String> {
-    let _ = path;
-    Err("opening is not available in this build yet".into())
+    crate::project::load_project(path).map_err(|e| e.to_string())
 }
 
 fn write_recent(store: &Path, recent: &[PathBuf]) -> std::io::Result<()> {

@@ -9,7 +9,58 @@
 //! blue-slate for a dim room. Body text is larger than egui's default so that a laptop on a bench
 //! stays readable from a step away.
 
-use egui::{Color32, CornerRadius, FontFamily, FontId, Stroke, TextStyle};
+use std::sync::Arc;
+
+use egui::{
+    Color32, CornerRadius, FontData, FontDefinitions, FontFamily, FontId, Stroke, TextStyle,
+};
+
+/// DejaVu Sans Condensed, regular (licence in `assets/fonts/`): a regular weight reads better at
+/// arm's length than egui's light default, and it has the symbols we draw (warning sign, arrows,
+/// check marks), so nothing shows as an empty box.
+static FACE_REGULAR: &[u8] = include_bytes!("../../../assets/fonts/DejaVuSansCondensed.ttf");
+/// DejaVu Sans Condensed, bold.
+static FACE_BOLD: &[u8] = include_bytes!("../../../assets/fonts/DejaVuSansCondensed-Bold.ttf");
+
+/// The family of bold text (headings, the next-run card, values at arm's length).
+pub fn bold_family() -> FontFamily {
+    FontFamily::Name("twofold-bold".into())
+}
+
+/// A bold font of `size` points.
+pub fn bold(size: f32) -> FontId {
+    FontId::new(size, bold_family())
+}
+
+/// Installs our faces ahead of egui's defaults (which stay as fallbacks).
+pub fn install_fonts(ctx: &egui::Context) {
+    let mut fonts = FontDefinitions::default();
+    fonts.font_data.insert(
+        "twofold-regular".into(),
+        Arc::new(FontData::from_static(FACE_REGULAR)),
+    );
+    fonts.font_data.insert(
+        "twofold-bold".into(),
+        Arc::new(FontData::from_static(FACE_BOLD)),
+    );
+    let fallbacks = fonts
+        .families
+        .get(&FontFamily::Proportional)
+        .cloned()
+        .unwrap_or_default();
+    let mut proportional = vec!["twofold-regular".to_string()];
+    proportional.extend(fallbacks.iter().cloned());
+    fonts
+        .families
+        .insert(FontFamily::Proportional, proportional);
+    let mut bold = vec!["twofold-bold".to_string(), "twofold-regular".to_string()];
+    bold.extend(fallbacks);
+    fonts.families.insert(bold_family(), bold);
+    if let Some(mono) = fonts.families.get_mut(&FontFamily::Monospace) {
+        mono.push("twofold-regular".into());
+    }
+    ctx.set_fonts(fonts);
+}
 
 /// The Okabe–Ito colours, by their published names.
 pub mod okabe_ito {

@@ -329,7 +329,8 @@ fn extras(ui: &mut Ui, project: &Project, draft: &mut DesignSettings, pal: &crat
                 ui.add_enabled(
                     all_numeric,
                     egui::DragValue::new(&mut draft.centre_points_per_block).range(0..=32),
-                );
+                )
+                .accessible_name("centre points per block");
                 if !all_numeric {
                     ui.weak("only when every factor is numeric");
                     draft.centre_points_per_block = 0;
@@ -339,7 +340,8 @@ fn extras(ui: &mut Ui, project: &Project, draft: &mut DesignSettings, pal: &crat
             });
             ui.end_row();
             ui.label("Replicates");
-            ui.add(egui::DragValue::new(&mut draft.replicates).range(1..=16));
+            ui.add(egui::DragValue::new(&mut draft.replicates).range(1..=16))
+                .accessible_name("replicates");
             ui.end_row();
             ui.label("Blocks");
             let count = match &draft.blocks {
@@ -363,14 +365,17 @@ fn extras(ui: &mut Ui, project: &Project, draft: &mut DesignSettings, pal: &crat
                             draft.blocks = BlockChoice::Count(n);
                         }
                     }
-                });
+                })
+                .response
+                .accessible_name("blocks");
             ui.end_row();
             ui.label("Run order");
             ui.horizontal(|ui| {
                 ui.checkbox(&mut draft.randomize, "randomised");
                 ui.add_enabled_ui(draft.randomize, |ui| {
                     ui.label("seed");
-                    ui.add(egui::DragValue::new(&mut draft.seed));
+                    ui.add(egui::DragValue::new(&mut draft.seed))
+                        .accessible_name("seed");
                     if ui.button("new seed").clicked() {
                         draft.seed = fresh_seed(draft.seed);
                     }

@@ -45,7 +45,7 @@ impl Pane for FactorsPane {
                 let next = project.factors.len();
                 ui.add_enabled_ui(next < MAX_FACTORS, |ui| {
                     if ui
-                        .button("＋ Add factor")
+                        .button("+ Add factor")
                         .on_hover_text("Adds a numeric factor at the end of the list.")
                         .clicked()
                     {
@@ -142,6 +142,7 @@ fn factor_grid(ui: &mut Ui, view: &View<'_>, out: &mut Vec<Command>) {
 
 fn kind_picker(ui: &mut Ui, id: egui::Id, index: usize, f: &Factor, out: &mut Vec<Command>) {
     let numeric = f.is_numeric();
+    let letter = LETTERS.get(index).copied().unwrap_or('?');
     egui::ComboBox::from_id_salt(id.with("kind"))
         .selected_text(if numeric { "numeric" } else { "two labels" })
         .width(100.0)
@@ -176,7 +177,9 @@ fn kind_picker(ui: &mut Ui, id: egui::Id, index: usize, f: &Factor, out: &mut Ve
                 };
                 out.push(Command::Edit(Edit::SetFactorKind { index, kind }));
             }
-        });
+        })
+        .response
+        .accessible_name(format!("kind of factor {letter}"));
 }
 
 fn levels(ui: &mut Ui, id: egui::Id, index: usize, f: &Factor, out: &mut Vec<Command>) {
@@ -222,6 +225,10 @@ fn safe_range(ui: &mut Ui, id: egui::Id, index: usize, f: &Factor, out: &mut Vec
         let mut on = f.safe_range.is_some();
         if ui
             .checkbox(&mut on, "")
+            .accessible_name(format!(
+                "safe range of factor {}",
+                LETTERS.get(index).copied().unwrap_or('?')
+            ))
             .on_hover_text("Declare the range the process is known to tolerate")
             .changed()
         {

@@ -129,7 +129,7 @@ fn responses_bar(ui: &mut Ui, project: &Project, out: &mut Vec<Command>) {
             }
             ui.separator();
         }
-        if ui.button("＋ Add response").clicked() {
+        if ui.button("+ Add response").clicked() {
             let n = project.responses.len() + 1;
             out.push(Command::Edit(Edit::AddResponse(ResponseDef::new(
                 &format!("Response {n}"),
@@ -167,11 +167,14 @@ pub fn store_value(
     if record.values.get(response).is_some_and(|c| c.text == text) {
         return Vec::new();
     }
+    // Only numbers complete a run: a slip keeps the run open, so the card stays on it and
+    // shows why the text was not read.
+    let is_number = |t: &str| crate::project::Cell::new(t).number().is_some();
     let complete = record.values.iter().enumerate().all(|(i, c)| {
         if i == response {
-            !text.trim().is_empty()
+            is_number(&text)
         } else {
-            c.is_typed()
+            c.number().is_some()
         }
     });
     let mut edits = vec![Edit::SetCell {
@@ -358,7 +361,7 @@ fn next_run_card(
                             )));
                         }
                         pane.editing = None;
-                        if enter && !text.trim().is_empty() {
+                        if enter && crate::project::Cell::new(&text).number().is_some() {
                             // Next empty response of this run, else the card moves on by itself
                             // and the first field of the next run takes the focus.
                             let next_r = (r + 1..project.responses.len())
@@ -642,7 +645,9 @@ fn status_cell(
                     }));
                 }
             }
-        });
+        })
+        .response
+        .accessible_name(format!("status of run {}", run.run_order));
     if let RunStatus::Excluded { reason } = &run.status {
         let id = Id::unique(("exclude_reason", run_idx));
         if let Some(reason) = text_field(ui, id, reason, ui.available_width(), "reason") {
