@@ -103,6 +103,20 @@ const IC_YIELD: [&str; 16] = [
     "8", "9", "34", "52", "16", "22", "45", "60", "6", "10", "30", "50", "15", "21", "44", "63",
 ];
 
+/// The E = ABCD column of Example 8-2 in standard order of A–D: +1 where an even number of A–D
+/// are at +1 (the product of four ±1 settings).
+fn ic_yield_e_column() -> Vec<&'static str> {
+    (0..16u32)
+        .map(|i| {
+            if i.count_ones().is_multiple_of(2) {
+                "1"
+            } else {
+                "-1"
+            }
+        })
+        .collect()
+}
+
 fn number(v: &Value, what: &str) -> f64 {
     v.as_f64()
         .unwrap_or_else(|| panic!("{what} is not a number: {v}"))
@@ -203,17 +217,8 @@ fn ic_yield_fraction_typed_in_gives_published_anova() {
     // Montgomery, Example 8-2: E = ABCD typed in as a column; model A + B + C + AB. Published:
     // SS A 495.0625, B 4590.0625, C 473.0625, AB 189.0625, error 28.1875 on 11 df; F 193.20,
     // 1791.24, 184.61, 73.78.
-    let e_column: Vec<String> = (0..16)
-        .map(|i: usize| {
-            if i.count_ones() % 2 == 0 {
-                "1".to_string()
-            } else {
-                "-1".to_string()
-            }
-        })
-        .collect();
-    let e_refs: Vec<&str> = e_column.iter().map(String::as_str).collect();
-    let text = coded_csv(4, &["E", "yield"], &[&e_refs, &IC_YIELD]);
+    let e = ic_yield_e_column();
+    let text = coded_csv(4, &["E", "yield"], &[&e, &IC_YIELD]);
     let csv = TempCsv::new(&text);
     // The header `A,B,C,D,E,yield` makes E the fifth factor.
     let v = analyze_json(&csv, &["--terms", "A,B,C,AB"]);
@@ -242,11 +247,8 @@ fn ic_yield_fraction_typed_in_gives_published_anova() {
 
 #[test]
 fn typing_an_alias_as_a_model_term_fits_its_chain() {
-    let e_column: Vec<String> = (0..16)
-        .map(|i: usize| if i.count_ones() % 2 == 0 { "1" } else { "-1" }.to_string())
-        .collect();
-    let e_refs: Vec<&str> = e_column.iter().map(String::as_str).collect();
-    let csv = TempCsv::new(&coded_csv(4, &["E", "yield"], &[&e_refs, &IC_YIELD]));
+    let e = ic_yield_e_column();
+    let csv = TempCsv::new(&coded_csv(4, &["E", "yield"], &[&e, &IC_YIELD]));
     let v = analyze_json(&csv, &["--terms", "A,B,CDE"]);
     assert_eq!(v["model"]["terms"], serde_json::json!(["A", "B", "AB"]));
     assert!(

@@ -943,13 +943,13 @@ pub fn analysis_text(a: &Analysis) -> String {
     }
     let _ = writeln!(
         s,
-        "  {:<8} {:>12} {:>12} {:>10} {:>10}",
+        "  {:<10} {:>12} {:>12} {:>10} {:>10}",
         "term", "coefficient", "std error", "t", "p"
     );
     for c in std::iter::once(&m.intercept).chain(&m.coefficients) {
         let _ = writeln!(
             s,
-            "  {:<8} {:>12} {:>12} {:>10} {:>10}",
+            "  {:<10} {:>12} {:>12} {:>10} {:>10}",
             if c.term.is_identity() {
                 "intercept".to_string()
             } else {
