@@ -21,7 +21,10 @@ use crate::panels::prediction::PredictionPane;
 use crate::panels::residuals::ResidualsPane;
 use crate::panels::run_sheet::RunSheetPane;
 use crate::panels::{Command, Pane, Step, View};
-use crate::project::{DesignSettings, Edit, History, Problem, Project, Severity};
+use crate::project::{
+    DesignSettings, Edit, History, Problem, Project, RecentFiles, RecoveryDebouncer, RecoveryOffer,
+    RecoveryStore, Severity,
+};
 use crate::theme::{self, Palette, ThemeChoice};
 
 /// Short caution about working with real processes, reachable from the Help menu and the status
@@ -80,6 +83,8 @@ pub enum Modal {
     Error(String),
     /// The safety caution.
     Safety,
+    /// A recovery copy newer than the project was found.
+    Restore(Box<RecoveryOffer>),
 }
 
 /// Fields whose consecutive edits (keystrokes in one field) merge into one undo step.
@@ -173,8 +178,10 @@ pub struct TwofoldApp {
     modal: Option<Modal>,
     picker: FilePicker,
     pending_dialog: Option<(FileAction, Receiver<Option<PathBuf>>)>,
-    recent: Vec<PathBuf>,
+    recent: RecentFiles,
     recent_store: Option<PathBuf>,
+    recovery: Option<RecoveryStore>,
+    debouncer: RecoveryDebouncer,
     notice: Option<String>,
     sent_title: String,
     clock: fn() -> String,
@@ -182,9 +189,6 @@ pub struct TwofoldApp {
     /// Compute searches in the frame (tests) rather than on worker threads.
     inline_compute: bool,
 }
-
-/// Most recent files remembered.
-const RECENT_MAX: usize = 8;
 
 impl TwofoldApp {
     fn with(history: History, path: Option<PathBuf>, picker: FilePicker) -> TwofoldApp {
@@ -208,8 +212,10 @@ impl TwofoldApp {
             modal: None,
             picker,
             pending_dialog: None,
-            recent: Vec::new(),
+            recent: RecentFiles::default(),
             recent_store: None,
+            recovery: None,
+            debouncer: RecoveryDebouncer::default(),
             notice: None,
             sent_title: String::new(),
             clock: now_iso,
@@ -226,6 +232,51 @@ impl TwofoldApp {
         app.inline_compute = true;
         app.panes.design.compute = Compute::Inline;
         app
+    }
+
+    /// Keeps recovery copies in `store` (the window uses the per-user store; tests a temporary
+    /// folder). Without a store no copies are written.
+    pub fn set_recovery_store(&mut self, store: RecoveryStore) {
+        self.recovery = Some(store);
+    }
+
+    /// Offers to restore a recovery copy of the current project (or of the unsaved project) when
+    /// one newer than its file exists.
+    pub fn offer_recovery(&mut self) {
+        let Some(store) = &self.recovery else {
+            return;
+        };
+        match store.find(self.path.as_deref()) {
+            Ok(Some(offer)) => self.modal = Some(Modal::Restore(Box::new(offer))),
+            Ok(None) => {}
+            Err(e) => {
+                self.modal = Some(Modal::Error(format!(
+                    "A recovery copy exists but cannot be read; it is left in place.\n{e}"
+                )));
+            }
+        }
+    }
+
+    /// Writes a recovery copy when one falls due at `now` (about a second after an edit); the
+    /// window calls this every frame. Returns when the next copy falls due.
+    pub fn autosave_tick(&mut self, now: std::time::Instant) -> Option<std::time::Instant> {
+        let rev = self.history.revision();
+        if !self.history.is_dirty() {
+            self.debouncer.settled(rev);
+            return None;
+        }
+        let store = self.recovery.as_ref()?;
+        if self.debouncer.poll(rev, now) {
+            let at = (self.clock)();
+            match store.write(self.path.as_deref(), self.history.project(), rev, &at) {
+                Ok(_) => self.debouncer.written(rev),
+                Err(e) => {
+                    self.debouncer.failed(now);
+                    self.notice = Some(format!("The recovery copy could not be written: {e}"));
+                }
+            }
+        }
+        self.debouncer.deadline()
     }
 
     /// Replaces the source of file-dialog answers (tests use [`FilePicker::Fixed`]).
@@ -423,6 +474,10 @@ impl TwofoldApp {
         for cmd in cmds {
             self.apply(cmd);
         }
+        let now = std::time::Instant::now();
+        if let Some(due) = self.autosave_tick(now) {
+            ctx.request_repaint_after(due.saturating_duration_since(now));
+        }
         let title = self.title();
         if title != self.sent_title {
             ctx.send_viewport_cmd(egui::ViewportCommand::Title(title.clone()));
@@ -486,7 +541,9 @@ impl TwofoldApp {
     }
 
     fn new_project(&mut self) {
-        self.reset_to(History::new_unsaved(Project::new("Untitled")), None);
+        // Not marked unsaved until the first edit: an empty project has nothing to lose, and
+        // a recovery copy of it would replace the copy of an earlier unsaved project.
+        self.reset_to(History::new(Project::new("Untitled")), None);
         self.step = Step::Factors;
     }
 
@@ -499,6 +556,7 @@ impl TwofoldApp {
             self.panes.design.compute = Compute::Inline;
         }
         self.derived = Derived::of(self.history.project(), self.history.revision());
+        self.debouncer.settled(self.history.revision());
         self.response = None;
         self.refresh();
     }
@@ -517,7 +575,17 @@ impl TwofoldApp {
     pub fn save_to(&mut self, path: &Path) -> bool {
         match save_project(self.project(), path) {
             Ok(()) => {
+                let was = self.path.clone();
                 self.history.mark_saved();
+                self.debouncer.settled(self.history.revision());
+                if let Some(store) = &self.recovery {
+                    // The file now holds everything the copies held. A copy that cannot be
+                    // removed is harmless: it is offered only while it differs from the file.
+                    let _ = store.discard(Some(path));
+                    if was.is_none() {
+                        let _ = store.discard(None);
+                    }
+                }
                 self.path = Some(path.to_path_buf());
                 self.remember(path);
                 self.notice = Some(format!("Saved {}", path.display()));
@@ -545,6 +613,7 @@ impl TwofoldApp {
                     Step::Runs
                 };
                 self.remember(path);
+                self.offer_recovery();
                 true
             }
             Err(e) => {
@@ -558,12 +627,10 @@ impl TwofoldApp {
     }
 
     fn remember(&mut self, path: &Path) {
-        self.recent.retain(|p| p != path);
-        self.recent.insert(0, path.to_path_buf());
-        self.recent.truncate(RECENT_MAX);
+        self.recent.push(path);
         if let Some(store) = &self.recent_store {
             // Losing the recent list is harmless; the project itself is never at stake here.
-            let _ = write_recent(store, &self.recent);
+            let _ = self.recent.save(store);
         }
     }
 
@@ -724,10 +791,10 @@ impl TwofoldApp {
                 self.request(AfterUnsaved::Open);
             }
             ui.menu_button("Open recent", |ui| {
-                if self.recent.is_empty() {
+                if self.recent.paths().is_empty() {
                     ui.weak("No recent projects");
                 }
-                for p in self.recent.clone() {
+                for p in self.recent.paths().to_vec() {
                     if ui.button(p.display().to_string()).clicked() {
                         self.request(AfterUnsaved::OpenPath(p));
                     }
@@ -937,6 +1004,37 @@ impl TwofoldApp {
                         close = true;
                     }
                 }
+                Modal::Restore(offer) => {
+                    ui.heading("Restore unsaved work?");
+                    ui.label(format!(
+                        "A recovery copy of “{}” from {} holds changes that are not in {}.",
+                        offer.project.name,
+                        offer.written_at,
+                        self.path
+                            .as_ref()
+                            .map_or("any saved file".to_string(), |p| p.display().to_string())
+                    ));
+                    ui.horizontal(|ui| {
+                        if ui.button("Restore the copy").clicked() {
+                            let project = offer.project.clone();
+                            then = Some(Box::new(move |app: &mut TwofoldApp| {
+                                app.history.replace(project);
+                                app.refresh();
+                            }));
+                            close = true;
+                        }
+                        if ui.button("Discard the copy").clicked() {
+                            then = Some(Box::new(|app: &mut TwofoldApp| {
+                                if let Some(store) = &app.recovery
+                                    && let Err(e) = store.discard(app.path.as_deref())
+                                {
+                                    app.modal = Some(Modal::Error(e.to_string()));
+                                }
+                            }));
+                            close = true;
+                        }
+                    });
+                }
                 Modal::Safety => {
                     ui.heading("Safety caution");
                     ui.label(SAFETY_NOTE);
@@ -946,7 +1044,8 @@ impl TwofoldApp {
                 }
             }
         });
-        if response.should_close() && !matches!(modal, Modal::ConfirmDesign { .. }) {
+        // Questions need an answer; messages close by clicking beside them.
+        if response.should_close() && matches!(modal, Modal::Error(_) | Modal::Safety) {
             close = true;
         }
         if close {
@@ -999,40 +1098,6 @@ fn save_project(project: &Project, path: &Path) -> Result<(), String> {
 
 fn load_project(path: &Path) -> Result<Project, String> {
     crate::project::load_project(path).map_err(|e| e.to_string())
-}
-
-fn write_recent(store: &Path, recent: &[PathBuf]) -> std::io::Result<()> {
-    if let Some(dir) = store.parent() {
-        std::fs::create_dir_all(dir)?;
-    }
-    let text: String = recent
-        .iter()
-        .map(|p| format!("{}\n", p.display()))
-        .collect();
-    std::fs::write(store, text)
-}
-
-fn read_recent(store: &Path) -> Vec<PathBuf> {
-    std::fs::read_to_string(store)
-        .map(|t| {
-            t.lines()
-                .filter(|l| !l.trim().is_empty())
-                .map(PathBuf::from)
-                .filter(|p| p.exists())
-                .take(RECENT_MAX)
-                .collect()
-        })
-        .unwrap_or_default()
-}
-
-/// Where the list of recent files lives: the platform's configuration folder.
-fn recent_store() -> Option<PathBuf> {
-    let base = std::env::var_os("XDG_CONFIG_HOME")
-        .map(PathBuf::from)
-        .filter(|p| p.is_absolute())
-        .or_else(|| std::env::var_os("APPDATA").map(PathBuf::from))
-        .or_else(|| std::env::var_os("HOME").map(|h| PathBuf::from(h).join(".config")))?;
-    Some(base.join("twofold").join("recent.txt"))
 }
 
 /// The current time in UTC as ISO-8601 text (`2025-03-04T10:22:05Z`).
@@ -1101,14 +1166,17 @@ pub fn run_window(path: Option<PathBuf>) -> i32 {
             }
         },
         None => TwofoldApp::with(
-            History::new(Project::new("Untitled")),
+            History::new(crate::project::demo_project()),
             None,
             FilePicker::Native,
         ),
     };
-    app.recent_store = recent_store();
+    app.recovery = RecoveryStore::for_user();
+    app.offer_recovery();
+    app.recent_store = RecentFiles::default_file();
     if let Some(store) = &app.recent_store {
-        app.recent = read_recent(store);
+        // An unreadable list of recent files only costs the engineer a few clicks.
+        app.recent = RecentFiles::load(store).unwrap_or_default();
     }
     let options = eframe::NativeOptions {
         viewport: egui::ViewportBuilder::default()

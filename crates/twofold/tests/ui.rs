@@ -153,3 +153,53 @@ fn text_that_is_not_a_number_stays_in_the_cell_marked_with_the_reason() {
     );
     assert!(h.query_by_label_contains("Next: run 1").is_some());
 }
+
+#[test]
+fn saving_with_ctrl_s_writes_a_file_that_reopens_to_the_same_project() {
+    let dir = tempfile::tempdir().unwrap();
+    let file = dir.path().join("coating.ron");
+    let mut app = TwofoldApp::new_for_test(three_factor_project());
+    app.set_file_picker(twofold_app::app::FilePicker::Fixed(Some(file.clone())));
+    let mut h = harness(app);
+    choose_design(&mut h, 8);
+    h.state_mut().set_step(Step::Runs);
+    h.run();
+    type_next(&mut h, "Gloss", "70.25");
+    assert!(h.state().history().is_dirty());
+    // No file yet: Ctrl+S asks where (the fixed picker answers at once).
+    h.key_press_modifiers(egui::Modifiers::COMMAND, egui::Key::S);
+    h.run();
+    assert!(!h.state().history().is_dirty(), "saved");
+    assert_eq!(h.state().path(), Some(file.as_path()));
+    assert!(!h.state().title().starts_with('•'));
+    let saved = h.state().project().clone();
+    let mut reopened = TwofoldApp::new_for_test(Project::new("other"));
+    assert!(reopened.open_path(&file));
+    assert_eq!(reopened.project(), &saved);
+}
+
+#[test]
+fn an_edit_leaves_a_recovery_copy_about_a_second_later() {
+    use std::time::{Duration, Instant};
+    let dir = tempfile::tempdir().unwrap();
+    let store = twofold_app::project::RecoveryStore::in_dir(dir.path());
+    let mut app = TwofoldApp::new_for_test(three_factor_project());
+    app.set_recovery_store(store.clone());
+    app.apply(twofold_app::panels::Command::Edit(
+        twofold_app::project::Edit::SetName("Renamed".into()),
+    ));
+    let t0 = Instant::now();
+    app.autosave_tick(t0);
+    assert!(store.find(None).unwrap().is_none(), "not at once");
+    app.autosave_tick(t0 + Duration::from_millis(1100));
+    let offer = store.find(None).unwrap().expect("a copy after a second");
+    assert_eq!(offer.project.name, "Renamed");
+    // On the next start the window offers the copy.
+    let mut next = TwofoldApp::new_for_test(three_factor_project());
+    next.set_recovery_store(store);
+    next.offer_recovery();
+    assert!(matches!(
+        next.modal(),
+        Some(twofold_app::app::Modal::Restore(_))
+    ));
+}
