@@ -316,9 +316,7 @@ impl Project {
                 let parsed = Term::parse(&term, k)?;
                 let model = &mut self.response_mut(response)?.model;
                 let before = model.terms.len();
-                model
-                    .terms
-                    .retain(|t| Term::parse(t, k) != Ok(parsed));
+                model.terms.retain(|t| Term::parse(t, k) != Ok(parsed));
                 if model.terms.len() == before {
                     model.terms.push(parsed.label());
                 }

@@ -111,11 +111,17 @@ pub fn project_from_str(text: &str) -> Result<Project, FileError> {
 pub fn project_to_string(project: &Project) -> Result<String, FileError> {
     let mut p = project.clone();
     p.format_version = FORMAT_VERSION;
-    let body = ron::ser::to_string_pretty(&p, ron::ser::PrettyConfig::default())
+    let body = ron::ser::to_string_pretty(&p, pretty())
         .map_err(|e| FileError::Serialize(e.to_string()))?;
     Ok(format!(
         "// Twofold project file, format {FORMAT_VERSION}. Plain text: keep a copy before editing by hand.\n{body}\n"
     ))
+}
+
+/// Layout of written files: one field per line down to a run's fields; deeper values (coded
+/// settings, levels, model choices) on one line, so a run sheet stays readable by eye.
+pub(crate) fn pretty() -> ron::ser::PrettyConfig {
+    ron::ser::PrettyConfig::default().depth_limit(3)
 }
 
 /// Reads a project file.

@@ -2,6 +2,7 @@
 //!
 //! - [`model`]: the data ([`Project`], [`Factor`], [`DesignSettings`], [`RunRecord`], ...).
 //! - [`cell`]: a typed response value, kept as text, read on demand ([`Cell`], [`CellValue`]).
+//! - [`demo`]: the embedded demo project ([`demo_project`]).
 //! - [`validate`]: per-field errors and warnings ([`Problem`]).
 //! - [`edit`]: every change as a value ([`Edit`]) applied by [`Project::apply`].
 //! - [`history`]: undo/redo, dirty flag and the data revision caches key on ([`History`]).
@@ -11,6 +12,7 @@
 //! - [`regenerate`]: the run sheet from the design, keeping typed values that survive.
 
 pub mod cell;
+pub mod demo;
 pub mod edit;
 pub mod history;
 pub mod io;
@@ -23,6 +25,7 @@ pub mod regenerate;
 pub mod validate;
 
 pub use cell::{Cell, CellValue};
+pub use demo::demo_project;
 pub use edit::{Edit, EditError};
 pub use history::History;
 pub use io::{FileError, load_project, project_from_str, project_to_string, save_project};

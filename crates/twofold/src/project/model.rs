@@ -254,8 +254,9 @@ impl Default for ModelSettings {
 /// Transform of the response before analysis.
 #[derive(Debug, Clone, Copy, PartialEq, Default, Serialize, Deserialize)]
 pub enum ResponseTransform {
-    /// The response as measured.
+    /// The response as measured (written `AsMeasured` in the file).
     #[default]
+    #[serde(rename = "AsMeasured")]
     None,
     /// Natural logarithm (values must be positive).
     Ln,

@@ -123,7 +123,7 @@ impl RecoveryStore {
             project_path: project_path.map(|p| p.to_string_lossy().into_owned()),
             project: project.clone(),
         };
-        let text = ron::ser::to_string_pretty(&file, ron::ser::PrettyConfig::default())
+        let text = ron::ser::to_string_pretty(&file, super::io::pretty())
             .map_err(|e| FileError::Serialize(e.to_string()))?;
         let io_err = |path: &Path, source| FileError::Io {
             action: "write the recovery copy",
