@@ -346,6 +346,20 @@ fn text_report_is_readable() {
 }
 
 #[test]
+fn text_report_names_the_generator_found_in_the_columns() {
+    // Montgomery, Example 8-2: E = ABCD typed in; the report names it and I = ABCDE.
+    let e = ic_yield_e_column();
+    let csv = TempCsv::new(&coded_csv(4, &["E", "yield"], &[&e, &IC_YIELD]));
+    let path = csv.path();
+    let (code, out, err) = analyze(&["--csv", &path, "--terms", "A,B,C,AB"]);
+    assert_eq!(code, 0, "{err}");
+    assert!(
+        out.contains("Read from the columns: E = ABCD; defining relation I = ABCDE"),
+        "{out}"
+    );
+}
+
+#[test]
 fn help_prints_usage() {
     let (code, out, _) = analyze(&["--help"]);
     assert_eq!(code, 0);

@@ -832,9 +832,11 @@ pub fn analysis_text(a: &Analysis) -> String {
     let words = e.aliasing.defining_words();
     if !words.is_empty() {
         let w: Vec<String> = words.iter().map(ToString::to_string).collect();
+        let g: Vec<String> = e.aliasing.generators().iter().map(|g| g.label()).collect();
         let _ = writeln!(
             s,
-            "Defining relation (read from the columns): I = {}",
+            "Read from the columns: {}; defining relation I = {}",
+            g.join(", "),
             w.join(" = ")
         );
     }
