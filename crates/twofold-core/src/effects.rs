@@ -178,6 +178,22 @@ impl EffectTable {
 }
 
 /// Estimates the effects with the default options.
+///
+/// ```
+/// use twofold_core::{data::Observations, effects::estimate_effects, Term};
+/// // Box, Hunter & Hunter (2005) pilot-plant 2^3, standard order (values from memory):
+/// // temperature effect 23.0, temperature × catalyst 10.0.
+/// let levels: Vec<Vec<f64>> = (0..8)
+///     .map(|i| (0..3).map(|f| if i >> f & 1 == 1 { 1.0 } else { -1.0 }).collect())
+///     .collect();
+/// let y = [60.0, 72.0, 54.0, 68.0, 52.0, 83.0, 45.0, 80.0].map(Some).to_vec();
+/// let obs = Observations::new(3, levels, vec![], y, vec![]).unwrap();
+/// let table = estimate_effects(&obs).unwrap();
+/// let a = table.get(Term::parse("A", 3).unwrap()).unwrap();
+/// // Tolerance: exact arithmetic on these data, so 1e-12.
+/// assert!((a.effect - 23.0).abs() < 1e-12);
+/// assert!((table.effect_of(Term::parse("AC", 3).unwrap()).unwrap() - 10.0).abs() < 1e-12);
+/// ```
 pub fn estimate_effects(obs: &Observations) -> Result<EffectTable, EffectsError> {
     estimate_effects_with(obs, &EffectOptions::default())
 }

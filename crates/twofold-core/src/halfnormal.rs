@@ -63,6 +63,13 @@ fn standard_normal_quantile(p: f64) -> Option<f64> {
 }
 
 /// Half-normal position of rank `i` (1-based) among `m`; `None` unless `1 ≤ i ≤ m`.
+///
+/// ```
+/// use twofold_core::halfnormal::half_normal_quantile;
+/// // m = 7, largest effect: Φ⁻¹(0.5 + 0.5·6.5/7) = 1.8027 (scipy, four decimals).
+/// let q = half_normal_quantile(7, 7).unwrap();
+/// assert!((q - 1.8027).abs() <= 5e-5);
+/// ```
 pub fn half_normal_quantile(i: usize, m: usize) -> Option<f64> {
     if i == 0 || i > m {
         return None;

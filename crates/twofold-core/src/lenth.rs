@@ -114,6 +114,19 @@ impl Lenth {
 }
 
 /// Lenth's method on a set of contrasts (see the module documentation for the formulas).
+///
+/// ```
+/// // Montgomery, Example 6-2 (filtration rate): PSE 2.625, ME 6.74778, SME 13.69896.
+/// let effects = [
+///     21.625, 3.125, 9.875, 14.625, 0.125, -18.125, 16.625, 2.375, -0.375, -1.125, 1.875,
+///     4.125, -1.625, -2.625, 1.375,
+/// ];
+/// let l = twofold_core::lenth::lenth(&effects).unwrap();
+/// // Tolerance: half a unit in the last published decimal.
+/// assert!((l.pse - 2.625).abs() <= 5e-4);
+/// assert!((l.me - 6.74778).abs() <= 5e-6);
+/// assert!((l.sme - 13.69896).abs() <= 5e-6);
+/// ```
 pub fn lenth(contrasts: &[f64]) -> Result<Lenth, LenthError> {
     let m = contrasts.len();
     if m < MIN_CONTRASTS {
