@@ -19,6 +19,7 @@ use crate::panels::interactions::PlotsPane;
 use crate::panels::model::ModelPane;
 use crate::panels::prediction::PredictionPane;
 use crate::panels::residuals::ResidualsPane;
+use crate::panels::results::ResponseResults;
 use crate::panels::run_sheet::RunSheetPane;
 use crate::panels::{Command, Pane, Step, View};
 use crate::project::{
@@ -125,6 +126,8 @@ fn coalesce_key(edit: &Edit) -> Option<CoalesceKey> {
 struct Derived {
     revision: u64,
     problems: Vec<Problem>,
+    /// Analysis of one response, computed when an analysis step first needs it.
+    results: Option<ResponseResults>,
 }
 
 impl Derived {
@@ -132,6 +135,14 @@ impl Derived {
         Derived {
             revision,
             problems: project.validate(),
+            results: None,
+        }
+    }
+
+    /// Makes sure the analysis of `response` is at hand.
+    fn ensure_results(&mut self, project: &Project, response: usize) {
+        if self.results.as_ref().map(|r| r.response) != Some(response) {
+            self.results = Some(ResponseResults::compute(project, response));
         }
     }
 }
@@ -457,11 +468,20 @@ impl TwofoldApp {
                 derived,
                 ..
             } = self;
+            if step.is_analysis()
+                && let Some(r) = *response
+            {
+                derived.ensure_results(history.project(), r);
+            }
             let view = View {
                 project: history.project(),
                 revision: history.revision(),
                 problems: &derived.problems,
                 response: *response,
+                results: derived
+                    .results
+                    .as_ref()
+                    .filter(|res| Some(res.response) == *response),
                 pal,
                 now: &now,
             };

@@ -1,16 +1,272 @@
-//! The Effects pane.
+//! The effects pane: ranked effect bars with Lenth's margins and the half-normal plot, where
+//! clicking a bar or a point adds or removes that term from the model; a term list does the same
+//! by keyboard.
 
-use egui::Ui;
+use egui::{RichText, Ui};
 
+use super::plots::{EffectBar, EffectBars, HalfNormalPlot, HalfNormalPoint};
+use super::results::ResponseResults;
+use super::widgets::{not_available, warning_box};
 use super::{Command, Pane, View};
+use crate::project::{Edit, Project};
+use twofold_core::lenth::Significance;
+use twofold_core::term::Term;
 
-/// View state of the Effects pane.
+/// View state of the effects pane: the plot data built once per data revision.
 #[derive(Debug, Default)]
-pub struct EffectsPane {}
+pub struct EffectsPane {
+    built: Option<Built>,
+}
+
+#[derive(Debug)]
+struct Built {
+    key: (u64, usize),
+    bars: EffectBars,
+    /// Term of each bar.
+    bar_terms: Vec<Term>,
+    half: HalfNormalPlot,
+    /// Term of each half-normal point.
+    half_terms: Vec<Term>,
+}
+
+/// Accessible name of a term's entry in the term list.
+pub fn term_checkbox_label(term: &str) -> String {
+    format!("term {term}")
+}
+
+/// A term with its factor names: `AB` → `Temperature × Time`.
+pub fn term_names(project: &Project, term: Term) -> String {
+    let names: Vec<&str> = term
+        .factors()
+        .map(|i| project.factors.get(i).map_or("?", |f| f.name.as_str()))
+        .collect();
+    names.join(" × ")
+}
+
+fn build(view: &View<'_>, res: &ResponseResults) -> Option<Built> {
+    let table = res.effects.as_ref().ok()?;
+    let mut order: Vec<usize> = (0..table.effects.len()).collect();
+    order.sort_by(|&a, &b| {
+        table.effects[b]
+            .effect
+            .abs()
+            .partial_cmp(&table.effects[a].effect.abs())
+            .unwrap_or(std::cmp::Ordering::Equal)
+    });
+    let (me, sme, pse) = match &res.lenth {
+        Ok(l) => (Some(l.me), Some(l.sme), Some(l.pse)),
+        Err(_) => (None, None, None),
+    };
+    let bars: Vec<EffectBar> = order
+        .iter()
+        .map(|&i| {
+            let e = &table.effects[i];
+            let aliases: Vec<String> = e
+                .aliases
+                .iter()
+                .filter(|a| a.term.order() <= 3)
+                .map(ToString::to_string)
+                .collect();
+            let detail = if aliases.is_empty() {
+                term_names(view.project, e.term)
+            } else {
+                format!("= {}", aliases.join(" = "))
+            };
+            EffectBar {
+                label: e.term.label(),
+                detail,
+                value: e.effect,
+                in_model: res.fitted(e.term),
+            }
+        })
+        .collect();
+    let bar_terms = order.iter().map(|&i| table.effects[i].term).collect();
+    let half = HalfNormalPlot {
+        points: res
+            .half_normal
+            .iter()
+            .map(|p| HalfNormalPoint {
+                label: p.term.label(),
+                abs_effect: p.abs_effect,
+                quantile: p.quantile,
+                positive: p.effect >= 0.0,
+                in_model: res.fitted(p.term),
+            })
+            .collect(),
+        pse,
+        me,
+    };
+    let half_terms = res.half_normal.iter().map(|p| p.term).collect();
+    Some(Built {
+        key: (view.revision, res.response),
+        bars: EffectBars { bars, me, sme },
+        bar_terms,
+        half,
+        half_terms,
+    })
+}
 
 impl Pane for EffectsPane {
-    fn ui(&mut self, ui: &mut Ui, view: &View<'_>, _out: &mut Vec<Command>) {
-        ui.heading("Effects");
-        super::widgets::not_available(ui, &view.pal, "Not available yet in this build.");
+    fn ui(&mut self, ui: &mut Ui, view: &View<'_>, out: &mut Vec<Command>) {
+        let pal = view.pal;
+        let Some(res) = view.results else {
+            ui.heading("Effects");
+            not_available(
+                ui,
+                &pal,
+                "Not available yet: add a response on the run sheet.",
+            );
+            return;
+        };
+        let name = view
+            .project
+            .responses
+            .get(res.response)
+            .map_or("", |r| r.name.as_str());
+        ui.heading(format!("Effects on {name}"));
+        ui.label(
+            RichText::new(format!(
+                "{} of {} runs have a value{}.",
+                res.used_runs,
+                res.total_runs,
+                if res.excluded_runs > 0 {
+                    format!(", {} excluded", res.excluded_runs)
+                } else {
+                    String::new()
+                }
+            ))
+            .color(pal.muted),
+        );
+        let table = match &res.effects {
+            Ok(t) => t,
+            Err(why) => {
+                not_available(ui, &pal, &format!("Not available yet: {why}."));
+                return;
+            }
+        };
+        if self.built.as_ref().map(|b| b.key) != Some((view.revision, res.response)) {
+            self.built = build(view, res);
+        }
+        let Some(built) = &self.built else {
+            return;
+        };
+        for w in &res.warnings {
+            warning_box(ui, &pal, w);
+        }
+        if let Err(why) = &res.lenth {
+            ui.colored_label(pal.muted, format!("No margins of error: {why}."));
+        }
+        let toggle = |term: Term, out: &mut Vec<Command>| {
+            out.push(Command::Edit(Edit::ToggleTerm {
+                response: res.response,
+                term: term.label(),
+            }));
+        };
+        egui::ScrollArea::vertical()
+            .auto_shrink([false, false])
+            .show(ui, |ui| {
+                ui.columns(2, |cols| {
+                    cols[0].label(RichText::new("Ranked effects").strong());
+                    cols[0].weak("Bars filled: in the model. Dashed line ME, solid SME (Lenth).");
+                    if let Some(i) = built.bars.show(&mut cols[0], &pal)
+                        && let Some(&t) = built.bar_terms.get(i)
+                    {
+                        toggle(t, out);
+                    }
+                    cols[1].label(RichText::new("Half-normal plot").strong());
+                    cols[1]
+                        .weak("Click a point to add or remove its term. ▲ positive, ▼ negative.");
+                    if let Some(i) = built.half.show(&mut cols[1], &pal, 360.0)
+                        && let Some(&t) = built.half_terms.get(i)
+                    {
+                        toggle(t, out);
+                    }
+                });
+                ui.add_space(8.0);
+                ui.horizontal(|ui| {
+                    ui.label(RichText::new("Terms in the model").strong());
+                    if let Ok(l) = &res.lenth {
+                        let beyond: Vec<String> = table
+                            .effects
+                            .iter()
+                            .filter(|e| l.classify(e.effect) != Significance::WithinMe)
+                            .map(|e| e.term.label())
+                            .collect();
+                        if ui
+                            .button("Choose the effects beyond ME")
+                            .on_hover_text(format!("Sets the model to: {}", beyond.join(", ")))
+                            .clicked()
+                        {
+                            out.push(Command::Edit(Edit::SetTerms {
+                                response: res.response,
+                                terms: beyond,
+                            }));
+                        }
+                    }
+                    if ui.button("Clear the model").clicked() {
+                        out.push(Command::Edit(Edit::SetTerms {
+                            response: res.response,
+                            terms: Vec::new(),
+                        }));
+                    }
+                });
+                ui.horizontal_wrapped(|ui| {
+                    for &t in &built.bar_terms {
+                        let mut on = res.in_model(t);
+                        let added = !on && res.fitted(t);
+                        let mut text = t.label();
+                        if added {
+                            text.push_str(" (for hierarchy)");
+                        }
+                        if let (Ok(l), Some(e)) = (&res.lenth, table.get(t)) {
+                            match l.classify(e.effect) {
+                                Significance::BeyondSme => text.push_str(" **"),
+                                Significance::BeyondMe => text.push_str(" *"),
+                                _ => {}
+                            }
+                        }
+                        if ui
+                            .checkbox(&mut on, text)
+                            .accessible_name(term_checkbox_label(&t.label()))
+                            .changed()
+                        {
+                            toggle(t, out);
+                        }
+                    }
+                });
+                ui.weak("* beyond ME, ** beyond SME.");
+                if res.missing_runs > 0 || !table.not_estimable.is_empty() {
+                    ui.add_space(6.0);
+                    let can: Vec<String> = table
+                        .effects
+                        .iter()
+                        .filter(|e| e.term.order() <= 2)
+                        .map(|e| e.term.label())
+                        .collect();
+                    ui.label(RichText::new("While runs are missing").strong());
+                    ui.label(format!(
+                        "Can be estimated already: {}.",
+                        if can.is_empty() {
+                            "none".to_string()
+                        } else {
+                            can.join(", ")
+                        }
+                    ));
+                    if !table.not_estimable.is_empty() {
+                        let not: Vec<String> = table
+                            .not_estimable
+                            .iter()
+                            .filter(|t| t.order() <= 2)
+                            .map(|t| t.label())
+                            .collect();
+                        if !not.is_empty() {
+                            ui.colored_label(
+                                pal.warn,
+                                format!("Not yet (need more runs): {}.", not.join(", ")),
+                            );
+                        }
+                    }
+                }
+            });
     }
 }

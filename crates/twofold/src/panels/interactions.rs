@@ -1,16 +1,197 @@
-//! The Factor plots pane.
+//! The factor plots pane: a main-effect plot per factor and a two-line interaction plot per pair
+//! of factors (every pair, or only those in the model), the model's terms highlighted.
 
-use egui::Ui;
+use egui::{RichText, Ui, vec2};
 
+use super::plots::{InteractionPlot, MainEffectPlot, shared_range};
+use super::run_sheet::natural_setting;
+use super::widgets::not_available;
 use super::{Command, Pane, View};
+use crate::project::Project;
+use twofold_core::term::{LETTERS, Term};
 
-/// View state of the Factor plots pane.
+/// Which pairs get an interaction plot.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub enum PairChoice {
+    /// Pairs whose interaction is in the model (every pair for up to five factors when the model
+    /// has none).
+    #[default]
+    InModel,
+    /// Every pair.
+    All,
+}
+
+/// View state of the factor plots pane: plot data built once per data revision.
 #[derive(Debug, Default)]
-pub struct PlotsPane {}
+pub struct PlotsPane {
+    /// Which pairs to draw.
+    pub pairs: PairChoice,
+    built: Option<Built>,
+}
+
+#[derive(Debug)]
+struct Built {
+    key: (u64, usize),
+    mains: Vec<MainEffectPlot>,
+    interactions: Vec<InteractionPlot>,
+    y: (f64, f64),
+}
+
+/// Most interaction plots drawn at once (25 factors have 300 pairs).
+pub const MAX_INTERACTION_PLOTS: usize = 60;
+
+fn level_labels(project: &Project, f: usize) -> [String; 2] {
+    match project.factors.get(f) {
+        Some(x) => [natural_setting(x, -1), natural_setting(x, 1)],
+        None => ["−".into(), "+".into()],
+    }
+}
+
+fn build(view: &View<'_>, res: &super::results::ResponseResults) -> Built {
+    let p = view.project;
+    let mains: Vec<MainEffectPlot> = res
+        .main_means
+        .iter()
+        .map(|m| {
+            let [low, high] = level_labels(p, m.factor);
+            MainEffectPlot {
+                factor: format!(
+                    "{} {}",
+                    LETTERS.get(m.factor).copied().unwrap_or('?'),
+                    p.factors.get(m.factor).map_or("", |f| f.name.as_str())
+                ),
+                low,
+                high,
+                means: [m.low, m.high],
+                centre: res.centre_mean,
+                in_model: res.fitted(Term::main(m.factor)),
+            }
+        })
+        .collect();
+    let interactions: Vec<InteractionPlot> = res
+        .pairs
+        .iter()
+        .map(|pm| {
+            let (a, b) = pm.factors;
+            let term = Term::main(a).times(Term::main(b));
+            InteractionPlot {
+                term: term.label(),
+                a: p.factors.get(a).map_or(String::new(), |f| f.name.clone()),
+                a_levels: level_labels(p, a),
+                b: p.factors.get(b).map_or(String::new(), |f| f.name.clone()),
+                b_levels: level_labels(p, b),
+                means: pm.means,
+                in_model: res.fitted(term),
+            }
+        })
+        .collect();
+    let y = shared_range(
+        mains
+            .iter()
+            .flat_map(|m| m.means.iter().flatten().copied().chain(m.centre))
+            .chain(
+                interactions
+                    .iter()
+                    .flat_map(|i| i.means.iter().flatten().flatten().copied()),
+            ),
+    );
+    Built {
+        key: (view.revision, res.response),
+        mains,
+        interactions,
+        y,
+    }
+}
 
 impl Pane for PlotsPane {
     fn ui(&mut self, ui: &mut Ui, view: &View<'_>, _out: &mut Vec<Command>) {
-        ui.heading("Factor plots");
-        super::widgets::not_available(ui, &view.pal, "Not available yet in this build.");
+        let pal = view.pal;
+        let Some(res) = view.results else {
+            ui.heading("Factor plots");
+            not_available(
+                ui,
+                &pal,
+                "Not available yet: add a response on the run sheet.",
+            );
+            return;
+        };
+        let name = view
+            .project
+            .responses
+            .get(res.response)
+            .map_or("", |r| r.name.as_str());
+        ui.heading(format!("Factor plots for {name}"));
+        if res.used_runs == 0 {
+            not_available(ui, &pal, "Not available yet: no run has a value.");
+            return;
+        }
+        if self.built.as_ref().map(|b| b.key) != Some((view.revision, res.response)) {
+            self.built = Some(build(view, res));
+        }
+        let Some(built) = &self.built else {
+            return;
+        };
+        let y_label = view
+            .project
+            .responses
+            .get(res.response)
+            .map_or(String::new(), |r| {
+                if r.unit.is_empty() {
+                    format!("mean {}", r.name)
+                } else {
+                    format!("mean {} ({})", r.name, r.unit)
+                }
+            });
+        egui::ScrollArea::vertical()
+            .auto_shrink([false, false])
+            .show(ui, |ui| {
+                ui.label(RichText::new("Main effects").strong());
+                if res.centre_mean.is_some() {
+                    ui.weak("◆ mean of the centre points");
+                }
+                let size = vec2(230.0, 170.0);
+                ui.horizontal_wrapped(|ui| {
+                    for m in &built.mains {
+                        m.show(ui, &pal, size, built.y, &y_label);
+                        ui.add_space(8.0);
+                    }
+                });
+                ui.add_space(10.0);
+                ui.horizontal(|ui| {
+                    ui.label(RichText::new("Interactions").strong());
+                    ui.selectable_value(&mut self.pairs, PairChoice::InModel, "in the model");
+                    ui.selectable_value(&mut self.pairs, PairChoice::All, "every pair");
+                });
+                let any_in_model = built.interactions.iter().any(|i| i.in_model);
+                let few = view.project.factors.len() <= 5;
+                let shown: Vec<&InteractionPlot> = built
+                    .interactions
+                    .iter()
+                    .filter(|i| match self.pairs {
+                        PairChoice::All => true,
+                        PairChoice::InModel => i.in_model || (!any_in_model && few),
+                    })
+                    .take(MAX_INTERACTION_PLOTS)
+                    .collect();
+                if shown.is_empty() {
+                    ui.weak("No two-factor interaction is in the model. Choose “every pair” to see them all.");
+                }
+                if !any_in_model && few && self.pairs == PairChoice::InModel {
+                    ui.weak("No interaction is in the model yet: showing every pair.");
+                }
+                ui.weak("Parallel lines: no interaction. Crossing or diverging lines: the effect of one factor depends on the other.");
+                ui.horizontal_wrapped(|ui| {
+                    for i in &shown {
+                        i.show(ui, &pal, vec2(260.0, 180.0), built.y);
+                        ui.add_space(8.0);
+                    }
+                });
+                if built.interactions.len() > MAX_INTERACTION_PLOTS && self.pairs == PairChoice::All {
+                    ui.weak(format!(
+                        "The first {MAX_INTERACTION_PLOTS} of {} pairs are drawn.",
+                        built.interactions.len()
+                    ));
+                }
+            });
     }
 }

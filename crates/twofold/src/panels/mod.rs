@@ -14,6 +14,7 @@ pub mod model;
 pub mod plots;
 pub mod prediction;
 pub mod residuals;
+pub mod results;
 pub mod run_sheet;
 pub mod widgets;
 
@@ -105,6 +106,8 @@ pub struct View<'a> {
     pub problems: &'a [Problem],
     /// The response shown in the analysis panes, if there is one.
     pub response: Option<usize>,
+    /// Analysis of that response (computed once per change, only while an analysis step shows).
+    pub results: Option<&'a results::ResponseResults>,
     /// Colours of the current theme.
     pub pal: Palette,
     /// The current time as ISO-8601 text, recorded with entered values.

@@ -1,16 +1,104 @@
-//! The Residuals pane.
+//! The residuals pane: normal plot of the residuals, residuals against fitted values and against
+//! run order.
 
-use egui::Ui;
+use egui::{Ui, vec2};
 
+use super::plots::{ResidualKind, ResidualPlot};
+use super::widgets::not_available;
 use super::{Command, Pane, View};
 
-/// View state of the Residuals pane.
+/// View state of the residuals pane: the three plots built once per data revision.
 #[derive(Debug, Default)]
-pub struct ResidualsPane {}
+pub struct ResidualsPane {
+    built: Option<((u64, usize), [ResidualPlot; 3])>,
+}
+
+/// Studentised residuals beyond this many standard deviations are marked (common practice).
+const LIMIT_SD: f64 = 3.0;
+
+fn build(res: &super::results::ResponseResults) -> Option<[ResidualPlot; 3]> {
+    let d = res.diagnostics.as_ref()?;
+    let fit = res.fit.as_ref().ok()?;
+    let limit = fit.sigma.map(|s| LIMIT_SD * s);
+    let run_no = |table_run: usize| {
+        res.run_order
+            .get(table_run)
+            .copied()
+            .unwrap_or(table_run + 1)
+    };
+    let normal = d.normal_plot();
+    Some([
+        ResidualPlot {
+            kind: ResidualKind::Normal,
+            points: normal
+                .iter()
+                .map(|p| (p.normal_score, p.residual))
+                .collect(),
+            runs: normal.iter().map(|p| run_no(p.run)).collect(),
+            limit: None,
+        },
+        ResidualPlot {
+            kind: ResidualKind::VsFitted,
+            points: d.runs.iter().map(|r| (r.fitted, r.residual)).collect(),
+            runs: d.runs.iter().map(|r| run_no(r.run)).collect(),
+            limit,
+        },
+        ResidualPlot {
+            kind: ResidualKind::VsOrder,
+            points: d
+                .runs
+                .iter()
+                .map(|r| (run_no(r.run) as f64, r.residual))
+                .collect(),
+            runs: d.runs.iter().map(|r| run_no(r.run)).collect(),
+            limit,
+        },
+    ])
+}
 
 impl Pane for ResidualsPane {
     fn ui(&mut self, ui: &mut Ui, view: &View<'_>, _out: &mut Vec<Command>) {
+        let pal = view.pal;
         ui.heading("Residuals");
-        super::widgets::not_available(ui, &view.pal, "Not available yet in this build.");
+        let Some(res) = view.results else {
+            not_available(
+                ui,
+                &pal,
+                "Not available yet: add a response on the run sheet.",
+            );
+            return;
+        };
+        if let Err(why) = &res.fit {
+            not_available(ui, &pal, &format!("Not available yet: {why}."));
+            return;
+        }
+        let key = (view.revision, res.response);
+        if self.built.as_ref().map(|b| b.0) != Some(key) {
+            self.built = build(res).map(|p| (key, p));
+        }
+        let Some((_, plots)) = &self.built else {
+            not_available(ui, &pal, "Not available yet: the fit has no residuals.");
+            return;
+        };
+        if res.fit.as_ref().is_ok_and(|f| f.df_residual == 0) {
+            not_available(
+                ui,
+                &pal,
+                "The model uses every run, so every residual is zero: nothing to judge yet.",
+            );
+            return;
+        }
+        ui.weak("Look for a straight line in the normal plot, no funnel against fitted values, no trend against run order. ◆ marks residuals beyond 3 residual standard deviations.");
+        egui::ScrollArea::vertical()
+            .auto_shrink([false, false])
+            .show(ui, |ui| {
+                let w = ((ui.available_width() - 24.0) / 2.0).clamp(300.0, 560.0);
+                ui.horizontal_wrapped(|ui| {
+                    for p in plots {
+                        p.show(ui, &pal, vec2(w, 260.0));
+                        ui.add_space(8.0);
+                    }
+                });
+            });
     }
 }

@@ -1,0 +1,447 @@
+//! What the analysis panes show for one response, computed from the project once per change of
+//! the data and then only read while drawing.
+//!
+//! This is the bridge from the project (typed cells, run status, model choices) to the core's
+//! analysis: it builds the checked observation table, then the effects, Lenth's margins, the
+//! half-normal positions, the model fit, its diagnostics and the means the plots draw. Every
+//! step that cannot be done yet keeps the reason, in words, so a pane can say "not available
+//! yet, because ..." instead of showing a number that is not there.
+
+use twofold_core::anova::{Equation, ModelFit, ModelSpec, fit_model};
+use twofold_core::data::Observations;
+use twofold_core::diagnostics::{Diagnostics, diagnostics};
+use twofold_core::effects::{EffectTable, estimate_effects};
+use twofold_core::halfnormal::{HalfNormalPoint, half_normal};
+use twofold_core::lenth::{Lenth, lenth};
+use twofold_core::means::{MainEffectMeans, main_effect_means};
+use twofold_core::predict::CURVATURE_ALPHA;
+use twofold_core::term::Term;
+use twofold_core::transform::Transform;
+
+use crate::project::{CellValue, FactorKind, Project, ResponseTransform, RunStatus};
+
+/// A cell whose text is not a number, for the warnings.
+#[derive(Debug, Clone, PartialEq)]
+pub struct BadCell {
+    /// Run-order number of the run.
+    pub run_order: u32,
+    /// The text as typed.
+    pub text: String,
+    /// Why it is not a number.
+    pub reason: String,
+}
+
+/// Observed means of one pair of factors at its four corners.
+#[derive(Debug, Clone, PartialEq)]
+pub struct PairMeans {
+    /// The two factors (0-based), `a < b`.
+    pub factors: (usize, usize),
+    /// `means[j][i]`: mean at level `i` of `a` and level `j` of `b` (0 = low, 1 = high).
+    pub means: [[Option<f64>; 2]; 2],
+}
+
+/// Everything the analysis panes read for one response.
+#[derive(Debug, Clone)]
+pub struct ResponseResults {
+    /// Response position.
+    pub response: usize,
+    /// Runs in the sheet.
+    pub total_runs: usize,
+    /// Runs with a number and not excluded.
+    pub used_runs: usize,
+    /// Runs still without a value (and not excluded).
+    pub missing_runs: usize,
+    /// Runs excluded by the engineer.
+    pub excluded_runs: usize,
+    /// Cells with text that is not a number.
+    pub bad_cells: Vec<BadCell>,
+    /// The transform applied before analysis.
+    pub transform: Transform,
+    /// The checked table of the used data (transformed), or why there is none.
+    pub observations: Result<Observations, String>,
+    /// Effects of every estimable chain, or why there are none.
+    pub effects: Result<EffectTable, String>,
+    /// Lenth's margins, or why they cannot be computed.
+    pub lenth: Result<Lenth, String>,
+    /// Half-normal positions of the effects.
+    pub half_normal: Vec<HalfNormalPoint>,
+    /// The terms the engineer chose, as parsed.
+    pub chosen_terms: Vec<Term>,
+    /// The fitted model, or why there is none.
+    pub fit: Result<ModelFit, String>,
+    /// Residual diagnostics of the fit.
+    pub diagnostics: Option<Diagnostics>,
+    /// Run-order number of each table run (for residuals against run order).
+    pub run_order: Vec<usize>,
+    /// Mean at − and + of every factor.
+    pub main_means: Vec<MainEffectMeans>,
+    /// Mean of the used centre points.
+    pub centre_mean: Option<f64>,
+    /// Observed means of every pair of factors.
+    pub pairs: Vec<PairMeans>,
+    /// The equation in coded units.
+    pub equation_coded: Option<Equation>,
+    /// The equation in natural units, or why there is none.
+    pub equation_natural: Result<Equation, String>,
+    /// Each factor's (low, high) in natural units; categorical factors as (−1, +1).
+    pub ranges: Vec<(f64, f64)>,
+    /// Warnings in plain words.
+    pub warnings: Vec<String>,
+}
+
+/// The core's transform for the project's choice.
+pub fn core_transform(t: ResponseTransform) -> Transform {
+    match t {
+        ResponseTransform::None => Transform::None,
+        ResponseTransform::Ln => Transform::Ln,
+        ResponseTransform::Log10 => Transform::Log10,
+        ResponseTransform::Sqrt => Transform::Sqrt,
+        ResponseTransform::Reciprocal => Transform::Inverse,
+        ResponseTransform::Power { lambda } if lambda == 0.0 => Transform::Ln,
+        ResponseTransform::Power { lambda } => Transform::Power(lambda),
+    }
+}
+
+/// Each factor's (low, high) for natural-unit equations and predictions.
+pub fn natural_ranges(project: &Project) -> Vec<(f64, f64)> {
+    project
+        .factors
+        .iter()
+        .map(|f| match f.kind {
+            FactorKind::Numeric { low, high } => (low, high),
+            // Two labels have no scale: their "natural" unit is the coding itself.
+            FactorKind::Categorical { .. } => (-1.0, 1.0),
+        })
+        .collect()
+}
+
+impl ResponseResults {
+    /// Analyses response `response` of `project`.
+    pub fn compute(project: &Project, response: usize) -> ResponseResults {
+        let k = project.factors.len();
+        let def = project.responses.get(response);
+        let transform = def.map_or(Transform::None, |d| core_transform(d.model.transform));
+        let mut bad_cells = Vec::new();
+        let mut raw: Vec<Option<f64>> = Vec::with_capacity(project.runs.len());
+        let mut excluded = Vec::with_capacity(project.runs.len());
+        for run in &project.runs {
+            let cell = run.values.get(response);
+            let v = match cell.map(|c| c.value()) {
+                Some(CellValue::Number(x)) => Some(x),
+                Some(CellValue::Bad { reason }) => {
+                    bad_cells.push(BadCell {
+                        run_order: run.run_order,
+                        text: cell.map(|c| c.text.clone()).unwrap_or_default(),
+                        reason,
+                    });
+                    None
+                }
+                _ => None,
+            };
+            raw.push(v);
+            excluded.push(run.status.is_excluded());
+        }
+        let excluded_runs = excluded.iter().filter(|&&e| e).count();
+        let used_runs = raw
+            .iter()
+            .zip(&excluded)
+            .filter(|(v, e)| v.is_some() && !**e)
+            .count();
+        let missing_runs = project
+            .runs
+            .iter()
+            .zip(&raw)
+            .filter(|(r, v)| v.is_none() && !matches!(r.status, RunStatus::Excluded { .. }))
+            .count();
+        let run_order: Vec<usize> = project.runs.iter().map(|r| r.run_order as usize).collect();
+        let ranges = natural_ranges(project);
+        let chosen_terms: Vec<Term> = def
+            .map(|d| {
+                d.model
+                    .terms
+                    .iter()
+                    .filter_map(|t| Term::parse(t, k).ok())
+                    .collect()
+            })
+            .unwrap_or_default();
+        let hierarchical = def.is_none_or(|d| d.model.hierarchical);
+
+        let mut out = ResponseResults {
+            response,
+            total_runs: project.runs.len(),
+            used_runs,
+            missing_runs,
+            excluded_runs,
+            bad_cells,
+            transform,
+            observations: Err(String::new()),
+            effects: Err(String::new()),
+            lenth: Err(String::new()),
+            half_normal: Vec::new(),
+            chosen_terms,
+            fit: Err(String::new()),
+            diagnostics: None,
+            run_order,
+            main_means: Vec::new(),
+            centre_mean: None,
+            pairs: Vec::new(),
+            equation_coded: None,
+            equation_natural: Err(String::new()),
+            ranges,
+            warnings: Vec::new(),
+        };
+        if def.is_none() {
+            out.set_all_unavailable("there is no response yet: add one on the run sheet");
+            return out;
+        }
+        if project.runs.is_empty() {
+            out.set_all_unavailable("there are no runs yet: choose a design first");
+            return out;
+        }
+        let transformed = match transform.apply_column(&raw) {
+            Ok(t) => t,
+            Err(e) => {
+                out.set_all_unavailable(&format!("the transform cannot be applied: {e}"));
+                return out;
+            }
+        };
+        let levels: Vec<Vec<f64>> = project
+            .runs
+            .iter()
+            .map(|r| r.levels.iter().map(|&c| f64::from(c)).collect())
+            .collect();
+        let blocks: Vec<u32> = project.runs.iter().map(|r| r.block).collect();
+        let obs = match Observations::new(k, levels, blocks, transformed, excluded) {
+            Ok(o) => o,
+            Err(e) => {
+                out.set_all_unavailable(&e.to_string());
+                return out;
+            }
+        };
+        if used_runs == 0 {
+            out.observations = Ok(obs);
+            let why = "no run has a value yet";
+            out.effects = Err(why.into());
+            out.lenth = Err(why.into());
+            out.fit = Err(why.into());
+            out.equation_natural = Err(why.into());
+            return out;
+        }
+        out.main_means = main_effect_means(&obs);
+        out.pairs = pair_means(&obs);
+        let centres: Vec<f64> = obs
+            .used_runs()
+            .into_iter()
+            .filter(|&r| obs.is_centre(r))
+            .filter_map(|r| obs.response()[r])
+            .collect();
+        out.centre_mean =
+            (!centres.is_empty()).then(|| centres.iter().sum::<f64>() / centres.len() as f64);
+        out.effects = estimate_effects(&obs).map_err(|e| e.to_string());
+        if let Ok(table) = &out.effects {
+            out.half_normal = half_normal(&table.effects);
+            out.lenth = lenth(&table.contrasts()).map_err(|e| e.to_string());
+            if !table.not_estimable.is_empty() {
+                let list: Vec<String> = table
+                    .not_estimable
+                    .iter()
+                    .take(12)
+                    .map(|t| t.label())
+                    .collect();
+                let more = table.not_estimable.len().saturating_sub(12);
+                out.warnings.push(format!(
+                    "{} runs have no value yet, so these effects cannot be estimated: {}{}.",
+                    out.missing_runs + out.bad_cells.len(),
+                    list.join(", "),
+                    if more > 0 {
+                        format!(" and {more} more")
+                    } else {
+                        String::new()
+                    }
+                ));
+            }
+            for term in &out.chosen_terms {
+                if let Some(rep) = table.aliasing.representative_of(*term)
+                    && let Some(e) = table.get(rep.term)
+                {
+                    let mates: Vec<String> = std::iter::once(rep)
+                        .filter(|r| r.term != *term)
+                        .map(|r| r.to_string())
+                        .chain(
+                            e.aliases
+                                .iter()
+                                .filter(|a| a.term != *term && a.term.order() <= 2)
+                                .map(ToString::to_string),
+                        )
+                        .collect();
+                    if !mates.is_empty() {
+                        out.warnings.push(format!(
+                            "{} is aliased with {}: the estimate is their sum, the data cannot tell them apart.",
+                            term.label(),
+                            mates.join(", ")
+                        ));
+                    }
+                }
+            }
+        }
+        if out.chosen_terms.is_empty() {
+            out.fit = Err(
+                "no terms chosen yet: click the largest effects in the effect bars or the half-normal plot"
+                    .into(),
+            );
+        } else {
+            let spec = ModelSpec::new(out.chosen_terms.clone()).hierarchical(hierarchical);
+            out.fit = fit_model(&obs, &spec).map_err(|e| e.to_string());
+        }
+        if let Ok(fit) = &out.fit {
+            out.diagnostics = Some(diagnostics(fit));
+            out.equation_coded = Some(fit.equation_coded());
+            out.equation_natural = fit.equation_natural(&out.ranges).map_err(|e| e.to_string());
+            if let Some(c) = &fit.curvature
+                && let Some(p) = c.p
+                && p < CURVATURE_ALPHA
+            {
+                out.warnings.push(format!(
+                    "Curvature: the centre points differ from the corners' average by {} (p = {}). The response bends inside the box, so predictions between the corners are not reliable and the best setting may lie inside.",
+                    super::chart::fmt_num(-c.factorial_minus_centre, 3),
+                    super::chart::fmt_num(p, 2)
+                ));
+            }
+            for u in &fit.unestimable {
+                let with: Vec<String> = u.aliased_with.iter().map(|(c, _)| c.to_string()).collect();
+                out.warnings.push(if with.is_empty() {
+                    format!("{} cannot be estimated from the runs at hand and was left out of the fit.", u.column)
+                } else {
+                    format!(
+                        "{} cannot be told apart from {} with the runs at hand and was left out of the fit.",
+                        u.column,
+                        with.join(", ")
+                    )
+                });
+            }
+        }
+        if !out.bad_cells.is_empty() {
+            let list: Vec<String> = out
+                .bad_cells
+                .iter()
+                .take(6)
+                .map(|b| format!("run {} (“{}”: {})", b.run_order, b.text, b.reason))
+                .collect();
+            out.warnings.push(format!(
+                "Text that is not a number is left out of the analysis: {}.",
+                list.join("; ")
+            ));
+        }
+        out.observations = Ok(obs);
+        out
+    }
+
+    fn set_all_unavailable(&mut self, why: &str) {
+        self.observations = Err(why.into());
+        self.effects = Err(why.into());
+        self.lenth = Err(why.into());
+        self.fit = Err(why.into());
+        self.equation_natural = Err(why.into());
+    }
+
+    /// Whether `term` is in the chosen model.
+    pub fn in_model(&self, term: Term) -> bool {
+        self.chosen_terms.contains(&term)
+    }
+
+    /// Whether `term` is fitted (chosen, or added to keep the model hierarchical).
+    pub fn fitted(&self, term: Term) -> bool {
+        self.fit.as_ref().is_ok_and(|f| f.terms.contains(&term))
+    }
+}
+
+/// Observed means at the four corners of every pair of factors (centre points left out).
+fn pair_means(obs: &Observations) -> Vec<PairMeans> {
+    let k = obs.factor_count();
+    let used = obs.used_runs();
+    let mut out = Vec::with_capacity(k * k.saturating_sub(1) / 2);
+    for a in 0..k {
+        for b in a + 1..k {
+            let mut sum = [[0.0f64; 2]; 2];
+            let mut n = [[0usize; 2]; 2];
+            for &r in &used {
+                let row = &obs.levels()[r];
+                let (la, lb) = (row[a], row[b]);
+                if la == 0.0 || lb == 0.0 {
+                    continue;
+                }
+                let (i, j) = (usize::from(la > 0.0), usize::from(lb > 0.0));
+                sum[j][i] += obs.response()[r].unwrap_or(0.0);
+                n[j][i] += 1;
+            }
+            let mean = |j: usize, i: usize| (n[j][i] > 0).then(|| sum[j][i] / n[j][i] as f64);
+            out.push(PairMeans {
+                factors: (a, b),
+                means: [[mean(0, 0), mean(0, 1)], [mean(1, 0), mean(1, 1)]],
+            });
+        }
+    }
+    out
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::project::{Cell, Factor, ResponseDef, RunRecord};
+
+    /// A 2^2 with y = 10 + 3A (+ −1 for B), values in standard order.
+    fn two_by_two(values: &[&str]) -> Project {
+        let mut p = Project::new("t");
+        p.factors = vec![
+            Factor::numeric("A", "", 0.0, 1.0),
+            Factor::numeric("B", "", 0.0, 1.0),
+        ];
+        p.responses = vec![ResponseDef::new("y", "")];
+        let levels = [[-1, -1], [1, -1], [-1, 1], [1, 1]];
+        for (i, l) in levels.iter().enumerate() {
+            p.runs.push(RunRecord {
+                std_order: i as u32 + 1,
+                run_order: i as u32 + 1,
+                block: 1,
+                centre: false,
+                replicate: 1,
+                levels: l.to_vec(),
+                values: vec![Cell::new(values[i])],
+                status: RunStatus::Done,
+                note: String::new(),
+                entered_at: None,
+            });
+        }
+        p
+    }
+
+    #[test]
+    fn effects_come_from_the_numbers_and_bad_text_is_left_out() {
+        // y: 6, 12, 4, 10 → A effect = (12+10)/2 − (6+4)/2 = 6, B effect = −2 (by hand).
+        let r = ResponseResults::compute(&two_by_two(&["6", "12", "4", "10"]), 0);
+        let t = r.effects.as_ref().unwrap();
+        assert!((t.effect_of(Term::main(0)).unwrap() - 6.0).abs() < 1e-12);
+        assert!((t.effect_of(Term::main(1)).unwrap() + 2.0).abs() < 1e-12);
+        let r = ResponseResults::compute(&two_by_two(&["6", "12", "4x", "10"]), 0);
+        assert_eq!(r.used_runs, 3);
+        assert_eq!(r.bad_cells.len(), 1);
+        assert!(r.warnings.iter().any(|w| w.contains("run 3")));
+    }
+
+    #[test]
+    fn pair_means_average_the_corners() {
+        let r = ResponseResults::compute(&two_by_two(&["6", "12", "4", "10"]), 0);
+        assert_eq!(r.pairs.len(), 1);
+        assert_eq!(
+            r.pairs[0].means,
+            [[Some(6.0), Some(12.0)], [Some(4.0), Some(10.0)]]
+        );
+    }
+
+    #[test]
+    fn without_values_every_step_says_why() {
+        let r = ResponseResults::compute(&two_by_two(&["", "", "", ""]), 0);
+        assert_eq!(r.effects.as_ref().unwrap_err(), "no run has a value yet");
+        assert!(r.fit.is_err());
+    }
+}
