@@ -35,7 +35,11 @@ fn published_block_generators_confound_the_published_effects() {
         let d = FractionalDesign::full(k).unwrap();
         let s = scheme_from_generators(&d, &terms(k, gens)).unwrap();
         assert_eq!(s.block_count(), blocks);
-        assert_eq!(s.confounded, terms(k, confounded), "2^{k} in {blocks} blocks");
+        assert_eq!(
+            s.confounded,
+            terms(k, confounded),
+            "2^{k} in {blocks} blocks"
+        );
     }
 }
 

@@ -14,5 +14,7 @@ fn main() {
         let code = twofold_app::cli::run(&args, &mut stdout.lock(), &mut stderr.lock());
         std::process::exit(code);
     }
-    std::process::exit(twofold_app::app::run_window(args.first().map(std::path::PathBuf::from)));
+    std::process::exit(twofold_app::app::run_window(
+        args.first().map(std::path::PathBuf::from),
+    ));
 }
