@@ -608,16 +608,13 @@ impl ColumnSearch {
     }
 
     /// Greedy designs: from each possible first column (one per number of letters, which is all
-    /// a first column can differ in up to relabelling), add the column that creates the
-    /// lexicographically fewest words. The best of them seeds the search.
+    /// a first column can differ in up to relabelling; the six longest when there are many basic
+    /// factors), add the column that creates the lexicographically fewest words. The best of them
+    /// seeds the search.
     fn seed(&mut self) {
-        let starts: Vec<u32> = (2..=self.q).map(|w| (1u32 << w) - 1).collect();
-        let starts = if self.q <= 10 {
-            starts
-        } else {
-            vec![*starts.last().unwrap_or(&3)]
-        };
-        for first in starts {
+        let lowest = if self.q <= 10 { 2 } else { self.q - 5 };
+        for letters in (lowest..=self.q).rev() {
+            let first = (1u32 << letters) - 1;
             let mut chosen = vec![first];
             self.add(first);
             while chosen.len() < self.p {
@@ -768,6 +765,11 @@ impl ColumnSearch {
         let len = pattern.len();
         let mut base = vec![0u64; len];
         for (i, &c) in next.iter().enumerate() {
+            // Many basic factors give long candidate lists: watch the clock here too.
+            if i % 64 == 63 && self.deadline.is_some_and(|d| Instant::now() >= d) {
+                self.timed_out = true;
+                return;
+            }
             base.copy_from_slice(pattern);
             add_into(&mut base, self.additions(c));
             let xc = self.columns[c as usize - self.q] as usize;
