@@ -1,1 +1,191 @@
-//! (module being written)
+//! Print-ready pages: the one-page summary of an analysis and the blank run sheet for the bench.
+//!
+//! Every page is first laid out as SVG by our own writer ([`svg`], [`page`], [`charts`]); PNG
+//! (300 dpi) and PDF (vector, font embedded) are rendered from that SVG ([`render`]). The same
+//! input always gives byte-identical SVG: numbers go through [`format`], nothing reads the clock,
+//! and the date printed is the one the caller passes in.
+//!
+//! The summary shows what the app shows: [`build`] fills a [`SummaryInput`] from the project and
+//! the analysis cache, and [`summary`] only draws it. Long exports run on a worker thread with
+//! progress ([`job::ExportJob`]) so the window never freezes.
+
+use std::path::{Path, PathBuf};
+
+// pub mod build;
+pub mod charts;
+pub mod fonts;
+pub mod format;
+pub mod input;
+pub mod job;
+pub mod page;
+pub mod render;
+pub mod run_sheet;
+pub mod summary;
+pub mod svg;
+
+// pub use build::{BuildOptions, export_summary, summary_input};
+pub use input::SummaryInput;
+pub use job::{ExportJob, Stage};
+pub use page::Paper;
+pub use render::Format;
+
+/// Why an export failed.
+#[derive(Debug, thiserror::Error)]
+#[non_exhaustive]
+pub enum ExportError {
+    /// The file name does not end in a known extension.
+    #[error("`{path}`: the file name must end in .png, .svg or .pdf")]
+    UnknownFormat {
+        /// The path as given.
+        path: String,
+    },
+    /// The page could not be rendered (a fault in the program, not in the project).
+    #[error("the page could not be rendered: {0}")]
+    Render(String),
+    /// Writing the file failed; the previous file, if any, is untouched.
+    #[error("could not write `{path}`: {source}")]
+    Write {
+        /// The file being written.
+        path: String,
+        /// What the system reported.
+        source: std::io::Error,
+    },
+    /// The project has nothing this export can show.
+    #[error("nothing to export: {0}")]
+    Nothing(String),
+    /// The export was cancelled before anything was written.
+    #[error("the export was cancelled; no file was written")]
+    Cancelled,
+}
+
+/// What an export wrote.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct ExportReport {
+    /// Files written, in page order (one file unless a multi-page sheet went to PNG or SVG).
+    pub paths: Vec<PathBuf>,
+    /// Format of the files.
+    pub format: Format,
+    /// Pages in the document.
+    pub pages: usize,
+    /// Total bytes written.
+    pub bytes: usize,
+}
+
+/// The summary page as SVG.
+pub fn summary_svg(input: &SummaryInput, paper: Paper) -> String {
+    summary::render_svg(input, paper)
+}
+
+/// Pages in the given format: PDF gives one document; SVG and PNG give one file per page.
+pub fn encode_pages(
+    pages: &[String],
+    paper: Paper,
+    format: Format,
+    title: &str,
+) -> Result<Vec<Vec<u8>>, ExportError> {
+    match format {
+        Format::Svg => Ok(pages.iter().map(|p| p.clone().into_bytes()).collect()),
+        Format::Png => pages.iter().map(|p| render::png(p, paper)).collect(),
+        Format::Pdf => Ok(vec![render::pdf(pages, title)?]),
+    }
+}
+
+/// File names for `count` files at `path`: the path itself for one file, `stem-1.ext`,
+/// `stem-2.ext`, ... for several (a multi-page sheet saved as PNG or SVG).
+pub fn page_paths(path: &Path, count: usize) -> Vec<PathBuf> {
+    if count <= 1 {
+        return vec![path.to_path_buf()];
+    }
+    let stem = path
+        .file_stem()
+        .map(|s| s.to_string_lossy().into_owned())
+        .unwrap_or_default();
+    let ext = path.extension().map(|s| s.to_string_lossy().into_owned());
+    (1..=count)
+        .map(|i| {
+            let name = match &ext {
+                Some(e) => format!("{stem}-{i}.{e}"),
+                None => format!("{stem}-{i}"),
+            };
+            path.with_file_name(name)
+        })
+        .collect()
+}
+
+/// Renders `pages` in the format chosen by `path`'s extension and writes them atomically,
+/// reporting each stage to `progress`; `cancelled` is checked between stages, and nothing is
+/// written once it returns `true`.
+pub fn write_pages(
+    pages: &[String],
+    paper: Paper,
+    path: &Path,
+    title: &str,
+    progress: &dyn Fn(Stage),
+    cancelled: &dyn Fn() -> bool,
+) -> Result<ExportReport, ExportError> {
+    let format = Format::from_path(path)?;
+    if cancelled() {
+        return Err(ExportError::Cancelled);
+    }
+    progress(Stage::Rendering);
+    let files = encode_pages(pages, paper, format, title)?;
+    if cancelled() {
+        return Err(ExportError::Cancelled);
+    }
+    progress(Stage::Writing);
+    let paths = page_paths(path, files.len());
+    let mut bytes = 0;
+    for (p, data) in paths.iter().zip(&files) {
+        render::write_atomic(p, data)?;
+        bytes += data.len();
+    }
+    progress(Stage::Finished);
+    Ok(ExportReport {
+        paths,
+        format,
+        pages: pages.len(),
+        bytes,
+    })
+}
+
+/// Lays out the summary and writes it to `path` (format from the extension).
+pub fn write_summary(
+    input: &SummaryInput,
+    path: &Path,
+    paper: Paper,
+) -> Result<ExportReport, ExportError> {
+    let page = summary_svg(input, paper);
+    write_pages(
+        &[page],
+        paper,
+        path,
+        &summary_title(input),
+        &|_| {},
+        &|| false,
+    )
+}
+
+/// The document title of a summary.
+pub fn summary_title(input: &SummaryInput) -> String {
+    if input.title.trim().is_empty() {
+        "Experiment summary".to_string()
+    } else {
+        format!("{}: summary", input.title.trim())
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn multi_page_names() {
+        let p = page_paths(Path::new("out/sheet.png"), 3);
+        assert_eq!(p[0], Path::new("out/sheet-1.png"));
+        assert_eq!(p[2], Path::new("out/sheet-3.png"));
+        assert_eq!(
+            page_paths(Path::new("a.pdf"), 1),
+            vec![PathBuf::from("a.pdf")]
+        );
+    }
+}

@@ -1,0 +1,273 @@
+//! What the summary page shows, as plain data.
+//!
+//! The page is one renderer of the numbers the app shows: [`super::build`] fills a
+//! [`SummaryInput`] from the project and the analysis cache, and [`super::summary`] draws it. The
+//! page never computes a statistic itself; it only formats and places what it is given, so what
+//! is printed cannot drift from what is on screen.
+
+use serde::{Deserialize, Serialize};
+
+/// Everything on the one-page summary.
+#[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
+pub struct SummaryInput {
+    /// Project title.
+    pub title: String,
+    /// Date printed in the header, as given (from the project or an option, never the clock,
+    /// so an unchanged project gives an identical page). Empty: no date is printed.
+    pub date: String,
+    /// The engineer's description of the experiment.
+    pub description: String,
+    /// The response this page analyses.
+    pub response: ResponseFacts,
+    /// Factors in letter order.
+    pub factors: Vec<FactorRow>,
+    /// The design as run.
+    pub design: DesignFacts,
+    /// Effects, largest magnitude first.
+    pub effects: Vec<EffectRow>,
+    /// Lenth's pseudo standard error and decision limits, when the effects allow them.
+    pub lenth: Option<LenthFacts>,
+    /// Points of the half-normal plot.
+    pub half_normal: Vec<HalfNormalPoint>,
+    /// Interaction plots (at most four are drawn).
+    pub interactions: Vec<InteractionPanel>,
+    /// ANOVA of the chosen model, when one is fitted.
+    pub anova: Option<AnovaTable>,
+    /// The fitted equation in natural units.
+    pub equation: Option<Equation>,
+    /// The best settings found within the design's range.
+    pub best: Option<BestSettings>,
+    /// The one-factor-at-a-time comparison.
+    pub ofat: Option<OfatFacts>,
+    /// Warnings as the app shows them, one sentence each.
+    pub warnings: Vec<String>,
+    /// Reproducibility facts for the footer.
+    pub footer: Footer,
+}
+
+/// The analysed response.
+#[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
+pub struct ResponseFacts {
+    /// Name ("Yield").
+    pub name: String,
+    /// Unit ("%"); may be empty.
+    pub unit: String,
+    /// Transform applied before analysis in words ("natural log"); empty for none.
+    pub transform: String,
+    /// Runs that entered the analysis.
+    pub runs_used: usize,
+    /// Runs in the run sheet.
+    pub runs_total: usize,
+}
+
+/// A factor level in natural units.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub enum LevelValue {
+    /// A number in the factor's unit.
+    Number(f64),
+    /// A named setting of a categorical factor.
+    Label(String),
+}
+
+impl LevelValue {
+    /// The level as printed (numbers in their shortest exact form).
+    pub fn text(&self) -> String {
+        match self {
+            LevelValue::Number(x) => super::format::level(*x),
+            LevelValue::Label(s) => s.clone(),
+        }
+    }
+}
+
+/// One factor row.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct FactorRow {
+    /// Letter (A, B, ... without I).
+    pub letter: char,
+    /// Name.
+    pub name: String,
+    /// Unit; may be empty.
+    pub unit: String,
+    /// Setting coded −1.
+    pub low: LevelValue,
+    /// Setting coded +1.
+    pub high: LevelValue,
+}
+
+/// The design as run.
+#[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
+pub struct DesignFacts {
+    /// Number of factors k.
+    pub factors: usize,
+    /// Number of generators p (0 for a full factorial).
+    pub generators_count: usize,
+    /// Runs of one replicate without centre points.
+    pub base_runs: usize,
+    /// Centre points in the whole run sheet.
+    pub centre_points: usize,
+    /// Complete copies of the design.
+    pub replicates: usize,
+    /// Blocks.
+    pub blocks: usize,
+    /// Runs in the run sheet.
+    pub total_runs: usize,
+    /// Generators as written (`E = ABCD`).
+    pub generators: Vec<String>,
+    /// Block generators as written; empty when unblocked.
+    pub block_generators: Vec<String>,
+    /// Resolution (None for a full factorial, where no main effect or interaction is aliased).
+    pub resolution: Option<u32>,
+    /// Alias chains of the terms that matter (`AB = CE`), strongest first.
+    pub aliases: Vec<String>,
+    /// Seed of the run-order randomisation; `None` when runs are in standard order.
+    pub seed: Option<u64>,
+}
+
+/// One effect.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct EffectRow {
+    /// Term label (`A`, `BD`), with its aliases when the design has any (`AB+CE`).
+    pub term: String,
+    /// Effect (high minus low average) in response units.
+    pub effect: f64,
+    /// Whether the term is in the chosen model.
+    pub in_model: bool,
+}
+
+/// Lenth's method.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
+pub struct LenthFacts {
+    /// Pseudo standard error.
+    pub pse: f64,
+    /// Margin of error (individual limit).
+    pub me: f64,
+    /// Simultaneous margin of error.
+    pub sme: f64,
+    /// Significance level of both limits.
+    pub alpha: f64,
+    /// Degrees of freedom of the t quantiles (m / 3).
+    pub df: f64,
+}
+
+/// One point of the half-normal plot.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct HalfNormalPoint {
+    /// Term label.
+    pub term: String,
+    /// |effect|.
+    pub abs_effect: f64,
+    /// Half-normal quantile of the point's rank.
+    pub quantile: f64,
+    /// Whether the term is in the chosen model.
+    pub in_model: bool,
+}
+
+/// An interaction plot of two factors: mean response at the four corners.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct InteractionPanel {
+    /// The interaction (`AB`).
+    pub term: String,
+    /// Factor on the horizontal axis.
+    pub x_factor: String,
+    /// Its low and high settings as printed.
+    pub x_levels: [String; 2],
+    /// Factor drawn as two lines.
+    pub trace_factor: String,
+    /// Its low and high settings as printed.
+    pub trace_levels: [String; 2],
+    /// `means[t][x]`: mean response with the trace factor at `t` and the x factor at `x`
+    /// (0 = low, 1 = high); `None` where no run was measured.
+    pub means: [[Option<f64>; 2]; 2],
+}
+
+/// One ANOVA row.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct AnovaRow {
+    /// Source of variation (`Model`, `A`, `Residual`, `Lack of fit`, ...).
+    pub source: String,
+    /// Degrees of freedom.
+    pub df: u32,
+    /// Sum of squares.
+    pub ss: f64,
+    /// Mean square.
+    pub ms: Option<f64>,
+    /// F ratio.
+    pub f: Option<f64>,
+    /// p-value.
+    pub p: Option<f64>,
+    /// Whether the row is a total or subtotal (printed in bold).
+    pub emphasis: bool,
+}
+
+/// The ANOVA of the chosen model.
+#[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
+pub struct AnovaTable {
+    /// Rows in print order.
+    pub rows: Vec<AnovaRow>,
+    /// R².
+    pub r_squared: Option<f64>,
+    /// Adjusted R².
+    pub adj_r_squared: Option<f64>,
+    /// Predicted R² (from PRESS).
+    pub pred_r_squared: Option<f64>,
+    /// Residual standard deviation.
+    pub std_dev: Option<f64>,
+}
+
+/// One term of the fitted equation.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct EquationTerm {
+    /// Coefficient in natural units.
+    pub coefficient: f64,
+    /// Names of the factors multiplied (one for a main effect, two for an interaction).
+    pub factors: Vec<String>,
+}
+
+/// The fitted equation in natural units.
+#[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
+pub struct Equation {
+    /// Left-hand side (`Yield`, or `ln(Yield)` for a transformed response).
+    pub lhs: String,
+    /// Constant term.
+    pub intercept: f64,
+    /// Remaining terms in model order.
+    pub terms: Vec<EquationTerm>,
+    /// Note printed under the equation (e.g. how categorical factors are coded); may be empty.
+    pub note: String,
+}
+
+/// The best settings found.
+#[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
+pub struct BestSettings {
+    /// What was sought ("maximise Yield").
+    pub goal: String,
+    /// Factor name and setting, in letter order.
+    pub settings: Vec<(String, String)>,
+    /// Predicted response at these settings.
+    pub predicted: f64,
+    /// Interval around the prediction (`(low, high)`) and its description ("95 % prediction
+    /// interval"), when available.
+    pub interval: Option<(f64, f64, String)>,
+}
+
+/// The one-factor-at-a-time comparison.
+#[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
+pub struct OfatFacts {
+    /// Runs a one-factor-at-a-time study would need for the same precision of main effects.
+    pub ofat_runs: usize,
+    /// Runs of this design.
+    pub design_runs: usize,
+    /// One sentence on how the count was reached.
+    pub explanation: String,
+}
+
+/// Reproducibility footer.
+#[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
+pub struct Footer {
+    /// Program name and version.
+    pub tool: String,
+    /// Seed of the run order; `None` for standard order.
+    pub seed: Option<u64>,
+    /// SHA-256 of the project's data, as lowercase hex.
+    pub data_hash: String,
+}

@@ -1,0 +1,287 @@
+//! Exports on a worker thread, with progress the window can show.
+//!
+//! Rendering a 300 dpi page takes a noticeable fraction of a second (longer in a debug build), so
+//! the window starts an [`ExportJob`], keeps drawing, shows [`ExportJob::progress`] and collects
+//! the result with [`ExportJob::poll`]. The job is handed owned data, so the project can change
+//! in the window while the export runs without affecting the file being written.
+
+use std::path::PathBuf;
+use std::sync::Arc;
+use std::sync::atomic::{AtomicBool, AtomicU8, Ordering};
+use std::sync::mpsc::{self, Receiver, TryRecvError};
+use std::thread::JoinHandle;
+
+use super::{ExportError, ExportReport, Paper, SummaryInput};
+
+/// Where an export has got to.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord)]
+#[non_exhaustive]
+pub enum Stage {
+    /// Not started yet.
+    Queued,
+    /// Laying out the page.
+    LayingOut,
+    /// Rendering PNG or PDF.
+    Rendering,
+    /// Writing the file.
+    Writing,
+    /// Done (successfully or not: see [`ExportJob::poll`]).
+    Finished,
+}
+
+impl Stage {
+    fn from_u8(v: u8) -> Stage {
+        match v {
+            0 => Stage::Queued,
+            1 => Stage::LayingOut,
+            2 => Stage::Rendering,
+            3 => Stage::Writing,
+            _ => Stage::Finished,
+        }
+    }
+
+    fn to_u8(self) -> u8 {
+        match self {
+            Stage::Queued => 0,
+            Stage::LayingOut => 1,
+            Stage::Rendering => 2,
+            Stage::Writing => 3,
+            Stage::Finished => 4,
+        }
+    }
+
+    /// Rough share of the work done when this stage begins, for a progress bar. Rendering is
+    /// most of the time, so it spans most of the bar.
+    pub fn fraction(self) -> f32 {
+        match self {
+            Stage::Queued => 0.0,
+            Stage::LayingOut => 0.05,
+            Stage::Rendering => 0.15,
+            Stage::Writing => 0.9,
+            Stage::Finished => 1.0,
+        }
+    }
+
+    /// What the window can print next to the bar.
+    pub fn label(self) -> &'static str {
+        match self {
+            Stage::Queued => "waiting",
+            Stage::LayingOut => "laying out the page",
+            Stage::Rendering => "rendering",
+            Stage::Writing => "writing the file",
+            Stage::Finished => "finished",
+        }
+    }
+}
+
+/// The work of a job: it reports stages and checks the cancel flag between them.
+pub type Work =
+    Box<dyn FnOnce(&dyn Fn(Stage), &dyn Fn() -> bool) -> Result<ExportReport, ExportError> + Send>;
+
+/// An export running on its own thread.
+#[derive(Debug)]
+pub struct ExportJob {
+    stage: Arc<AtomicU8>,
+    cancel: Arc<AtomicBool>,
+    result: Receiver<Result<ExportReport, ExportError>>,
+    handle: Option<JoinHandle<()>>,
+    done: bool,
+}
+
+impl ExportJob {
+    /// Starts `work` on a new thread. `notify` is called after every stage change (the window
+    /// passes a closure that requests a repaint, so progress shows without polling in a loop).
+    pub fn spawn(work: Work, notify: impl Fn() + Send + 'static) -> ExportJob {
+        let stage = Arc::new(AtomicU8::new(Stage::Queued.to_u8()));
+        let cancel = Arc::new(AtomicBool::new(false));
+        let (tx, rx) = mpsc::channel();
+        let thread_stage = Arc::clone(&stage);
+        let thread_cancel = Arc::clone(&cancel);
+        let handle = std::thread::Builder::new()
+            .name("export".to_string())
+            .spawn(move || {
+                let report = |s: Stage| {
+                    thread_stage.store(s.to_u8(), Ordering::Release);
+                    notify();
+                };
+                let cancelled = || thread_cancel.load(Ordering::Acquire);
+                let result = work(&report, &cancelled);
+                thread_stage.store(Stage::Finished.to_u8(), Ordering::Release);
+                // The window may have dropped the job; then nobody wants the result.
+                let _ = tx.send(result);
+                notify();
+            });
+        match handle {
+            Ok(h) => ExportJob {
+                stage,
+                cancel,
+                result: rx,
+                handle: Some(h),
+                done: false,
+            },
+            Err(e) => {
+                // No thread could be started: report that as the job's result.
+                let (tx, rx) = mpsc::channel();
+                let _ = tx.send(Err(ExportError::Render(format!(
+                    "could not start the export thread: {e}"
+                ))));
+                ExportJob {
+                    stage,
+                    cancel,
+                    result: rx,
+                    handle: None,
+                    done: false,
+                }
+            }
+        }
+    }
+
+    /// Starts exporting the summary page of `input` to `path`.
+    pub fn summary(
+        input: SummaryInput,
+        path: PathBuf,
+        paper: Paper,
+        notify: impl Fn() + Send + 'static,
+    ) -> ExportJob {
+        let work: Work = Box::new(move |progress, cancelled| {
+            progress(Stage::LayingOut);
+            let page = super::summary_svg(&input, paper);
+            super::write_pages(
+                &[page],
+                paper,
+                &path,
+                &super::summary_title(&input),
+                progress,
+                cancelled,
+            )
+        });
+        ExportJob::spawn(work, notify)
+    }
+
+    /// Starts exporting a blank run sheet.
+    pub fn run_sheet(
+        sheet: super::run_sheet::RunSheet,
+        path: PathBuf,
+        paper: Paper,
+        notify: impl Fn() + Send + 'static,
+    ) -> ExportJob {
+        let work: Work = Box::new(move |progress, cancelled| {
+            progress(Stage::LayingOut);
+            let pages = super::run_sheet::render_pages(&sheet, paper);
+            super::write_pages(
+                &pages,
+                paper,
+                &path,
+                &super::run_sheet::document_title(&sheet),
+                progress,
+                cancelled,
+            )
+        });
+        ExportJob::spawn(work, notify)
+    }
+
+    /// The current stage.
+    pub fn stage(&self) -> Stage {
+        Stage::from_u8(self.stage.load(Ordering::Acquire))
+    }
+
+    /// Progress from 0 to 1 for a bar.
+    pub fn progress(&self) -> f32 {
+        self.stage().fraction()
+    }
+
+    /// Asks the job to stop; it stops before writing if it has not started writing yet.
+    pub fn cancel(&self) {
+        self.cancel.store(true, Ordering::Release);
+    }
+
+    /// The result once the job has finished (returned once; later calls give `None`).
+    pub fn poll(&mut self) -> Option<Result<ExportReport, ExportError>> {
+        if self.done {
+            return None;
+        }
+        match self.result.try_recv() {
+            Ok(r) => {
+                self.done = true;
+                if let Some(h) = self.handle.take() {
+                    let _ = h.join();
+                }
+                Some(r)
+            }
+            Err(TryRecvError::Empty) => None,
+            Err(TryRecvError::Disconnected) => {
+                self.done = true;
+                Some(Err(ExportError::Render(
+                    "the export thread stopped unexpectedly".to_string(),
+                )))
+            }
+        }
+    }
+
+    /// Waits for the result (for the command line and tests; the window uses [`ExportJob::poll`]).
+    pub fn wait(mut self) -> Result<ExportReport, ExportError> {
+        if let Some(h) = self.handle.take() {
+            let _ = h.join();
+        }
+        self.result.recv().unwrap_or_else(|_| {
+            Err(ExportError::Render(
+                "the export thread stopped unexpectedly".to_string(),
+            ))
+        })
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use std::sync::atomic::AtomicUsize;
+
+    #[test]
+    fn job_reports_stages_and_delivers_once() {
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("s.svg");
+        let calls = Arc::new(AtomicUsize::new(0));
+        let c = Arc::clone(&calls);
+        let mut job = ExportJob::summary(
+            SummaryInput::default(),
+            path.clone(),
+            Paper::A4,
+            move || {
+                c.fetch_add(1, Ordering::Relaxed);
+            },
+        );
+        let result = loop {
+            if let Some(r) = job.poll() {
+                break r;
+            }
+            std::thread::sleep(std::time::Duration::from_millis(5));
+        };
+        let report = result.unwrap();
+        assert_eq!(report.paths, vec![path.clone()]);
+        assert!(path.exists());
+        assert!(job.poll().is_none());
+        assert_eq!(job.stage(), Stage::Finished);
+        assert!(calls.load(Ordering::Relaxed) >= 4);
+    }
+
+    #[test]
+    fn cancelled_job_writes_nothing() {
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("s.pdf");
+        let (gate_tx, gate_rx) = mpsc::channel::<()>();
+        let target = path.clone();
+        let work: Work = Box::new(move |progress, cancelled| {
+            // Hold until the test has cancelled, so the order is certain.
+            let _ = gate_rx.recv();
+            progress(Stage::LayingOut);
+            let page = super::super::summary_svg(&SummaryInput::default(), Paper::A4);
+            super::super::write_pages(&[page], Paper::A4, &target, "t", progress, cancelled)
+        });
+        let job = ExportJob::spawn(work, || {});
+        job.cancel();
+        gate_tx.send(()).unwrap();
+        let err = job.wait().unwrap_err();
+        assert!(matches!(err, ExportError::Cancelled));
+        assert!(!path.exists());
+    }
+}

@@ -1,0 +1,270 @@
+//! SVG pages to PNG and PDF, and atomic file writing.
+//!
+//! Pages are parsed once by `usvg` with a font database that holds only the bundled faces, then
+//! rasterised by `resvg` (PNG) or converted to vector PDF by `svg2pdf` (text stays text, with a
+//! subset of the font embedded). Neither output depends on fonts installed on the machine.
+
+use std::collections::HashMap;
+use std::fs::{self, File, OpenOptions};
+use std::io::Write;
+use std::path::{Path, PathBuf};
+
+use pdf_writer::{Content, Finish, Name, Pdf, Rect, Ref, TextStr};
+
+use super::ExportError;
+use super::fonts;
+use super::page::{DPI, Paper};
+
+/// Output formats, chosen by the file extension.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[non_exhaustive]
+pub enum Format {
+    /// Scalable vector graphics, exactly the page as laid out.
+    Svg,
+    /// A raster image at 300 dpi.
+    Png,
+    /// Vector PDF with the font embedded.
+    Pdf,
+}
+
+impl Format {
+    /// The format named by the extension of `path` (`.svg`, `.png`, `.pdf`, any case).
+    pub fn from_path(path: &Path) -> Result<Format, ExportError> {
+        let ext = path
+            .extension()
+            .and_then(|e| e.to_str())
+            .map(str::to_ascii_lowercase);
+        match ext.as_deref() {
+            Some("svg") => Ok(Format::Svg),
+            Some("png") => Ok(Format::Png),
+            Some("pdf") => Ok(Format::Pdf),
+            _ => Err(ExportError::UnknownFormat {
+                path: path.display().to_string(),
+            }),
+        }
+    }
+
+    /// The usual file extension, without the dot.
+    pub fn extension(self) -> &'static str {
+        match self {
+            Format::Svg => "svg",
+            Format::Png => "png",
+            Format::Pdf => "pdf",
+        }
+    }
+}
+
+fn parse(svg: &str) -> Result<usvg::Tree, ExportError> {
+    let options = usvg::Options {
+        fontdb: fonts::database(),
+        font_family: fonts::FAMILY.to_string(),
+        ..usvg::Options::default()
+    };
+    usvg::Tree::from_str(svg, &options).map_err(|e| ExportError::Render(e.to_string()))
+}
+
+/// Rasterises one page at 300 dpi; the image has exactly the paper's pixel size.
+pub fn png(svg: &str, paper: Paper) -> Result<Vec<u8>, ExportError> {
+    let tree = parse(svg)?;
+    let (w, h) = paper.pixels();
+    let mut pixmap = tiny_skia::Pixmap::new(w, h)
+        .ok_or_else(|| ExportError::Render(format!("cannot allocate a {w} × {h} image")))?;
+    pixmap.fill(tiny_skia::Color::WHITE);
+    let size = tree.size();
+    let transform =
+        tiny_skia::Transform::from_scale(w as f32 / size.width(), h as f32 / size.height());
+    resvg::render(&tree, transform, &mut pixmap.as_mut());
+    let encoded = pixmap
+        .encode_png()
+        .map_err(|e| ExportError::Render(format!("png encoding failed: {e}")))?;
+    Ok(with_resolution(encoded, DPI))
+}
+
+/// Converts pages to one PDF document, one page each, every page at its paper size. The document
+/// carries `title` and no dates, so the same pages give the same bytes.
+pub fn pdf(pages: &[String], title: &str) -> Result<Vec<u8>, ExportError> {
+    let mut alloc = Ref::new(1);
+    let catalog_id = alloc.bump();
+    let tree_id = alloc.bump();
+    let info_id = alloc.bump();
+    let mut doc = Pdf::new();
+    let mut page_ids = Vec::with_capacity(pages.len());
+    let svg_name = Name(b"P1");
+    for svg in pages {
+        let tree = parse(svg)?;
+        let (chunk, root) = svg2pdf::to_chunk(&tree, svg2pdf::ConversionOptions::default())
+            .map_err(|e| ExportError::Render(format!("pdf conversion failed: {e}")))?;
+        let mut map = HashMap::new();
+        let chunk = chunk.renumber(|old| *map.entry(old).or_insert_with(|| alloc.bump()));
+        let root = *map
+            .get(&root)
+            .ok_or_else(|| ExportError::Render("pdf conversion lost the page".to_string()))?;
+        let page_id = alloc.bump();
+        let content_id = alloc.bump();
+        // usvg sizes are CSS pixels (96 per inch); PDF pages are in points (72 per inch).
+        let size = tree.size();
+        let (w, h) = (size.width() * 0.75, size.height() * 0.75);
+        let mut page = doc.page(page_id);
+        page.media_box(Rect::new(0.0, 0.0, w, h));
+        page.parent(tree_id);
+        page.contents(content_id);
+        page.resources().x_objects().pair(svg_name, root);
+        page.finish();
+        let mut content = Content::new();
+        // The chunk's root object is one point square; scale it to the page.
+        content
+            .transform([w, 0.0, 0.0, h, 0.0, 0.0])
+            .x_object(svg_name);
+        doc.stream(content_id, &content.finish());
+        doc.extend(&chunk);
+        page_ids.push(page_id);
+    }
+    doc.catalog(catalog_id).pages(tree_id);
+    doc.pages(tree_id)
+        .kids(page_ids.iter().copied())
+        .count(page_ids.len() as i32);
+    doc.document_info(info_id)
+        .title(TextStr(title))
+        .producer(TextStr(concat!("Twofold ", env!("CARGO_PKG_VERSION"))));
+    Ok(doc.finish())
+}
+
+/// Inserts a `pHYs` chunk after the header so viewers and printers know the image is `dpi` dots
+/// per inch (PNG stores dots per metre).
+fn with_resolution(png: Vec<u8>, dpi: f64) -> Vec<u8> {
+    const IHDR_END: usize = 8 + 4 + 4 + 13 + 4;
+    if png.len() < IHDR_END || &png[12..16] != b"IHDR" {
+        return png;
+    }
+    let per_metre = (dpi / 0.0254).round() as u32;
+    let mut chunk = Vec::with_capacity(21);
+    chunk.extend_from_slice(&9u32.to_be_bytes());
+    let mut body = Vec::with_capacity(13);
+    body.extend_from_slice(b"pHYs");
+    body.extend_from_slice(&per_metre.to_be_bytes());
+    body.extend_from_slice(&per_metre.to_be_bytes());
+    body.push(1); // unit: metre
+    chunk.extend_from_slice(&body);
+    chunk.extend_from_slice(&crc32(&body).to_be_bytes());
+    let mut out = Vec::with_capacity(png.len() + chunk.len());
+    out.extend_from_slice(&png[..IHDR_END]);
+    out.extend_from_slice(&chunk);
+    out.extend_from_slice(&png[IHDR_END..]);
+    out
+}
+
+/// CRC-32 as PNG defines it (ISO 3309, polynomial 0xEDB88320, reflected).
+fn crc32(data: &[u8]) -> u32 {
+    let mut crc = 0xFFFF_FFFFu32;
+    for &b in data {
+        crc ^= u32::from(b);
+        for _ in 0..8 {
+            let mask = (crc & 1).wrapping_neg();
+            crc = (crc >> 1) ^ (0xEDB8_8320 & mask);
+        }
+    }
+    !crc
+}
+
+/// Writes `bytes` to `path` so that the file is either the old one or the complete new one, never
+/// a torn mixture: a temporary file in the same folder is written, flushed to disk and renamed
+/// over the target.
+pub fn write_atomic(path: &Path, bytes: &[u8]) -> Result<(), ExportError> {
+    let io_err = |source: std::io::Error| ExportError::Write {
+        path: path.display().to_string(),
+        source,
+    };
+    let dir = match path.parent() {
+        Some(d) if !d.as_os_str().is_empty() => d.to_path_buf(),
+        _ => PathBuf::from("."),
+    };
+    let name = path
+        .file_name()
+        .map(|n| n.to_string_lossy().into_owned())
+        .ok_or_else(|| ExportError::Write {
+            path: path.display().to_string(),
+            source: std::io::Error::new(std::io::ErrorKind::InvalidInput, "not a file name"),
+        })?;
+    let (tmp_path, mut file) = create_temp(&dir, &name).map_err(io_err)?;
+    let result = (|| {
+        file.write_all(bytes)?;
+        file.sync_all()?;
+        drop(file);
+        fs::rename(&tmp_path, path)?;
+        // Make the rename itself durable; not every platform can open a folder, which is fine.
+        if let Ok(d) = File::open(&dir) {
+            let _ = d.sync_all();
+        }
+        Ok(())
+    })();
+    if result.is_err() {
+        let _ = fs::remove_file(&tmp_path);
+    }
+    result.map_err(io_err)
+}
+
+fn create_temp(dir: &Path, name: &str) -> std::io::Result<(PathBuf, File)> {
+    let pid = std::process::id();
+    let mut last = None;
+    for n in 0..100u32 {
+        let candidate = dir.join(format!(".{name}.{pid}.{n}.tmp"));
+        match OpenOptions::new()
+            .write(true)
+            .create_new(true)
+            .open(&candidate)
+        {
+            Ok(f) => return Ok((candidate, f)),
+            Err(e) if e.kind() == std::io::ErrorKind::AlreadyExists => last = Some(e),
+            Err(e) => return Err(e),
+        }
+    }
+    Err(last.unwrap_or_else(|| std::io::Error::other("no free temporary file name")))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn crc_matches_the_png_reference_value() {
+        // The CRC of the ASCII text "IEND" with no data is the well-known 0xAE426082 that ends
+        // every PNG file.
+        assert_eq!(crc32(b"IEND"), 0xAE42_6082);
+    }
+
+    #[test]
+    fn format_from_extension() {
+        assert_eq!(
+            Format::from_path(Path::new("a/B.PDF")).ok(),
+            Some(Format::Pdf)
+        );
+        assert_eq!(
+            Format::from_path(Path::new("x.svg")).ok(),
+            Some(Format::Svg)
+        );
+        assert!(Format::from_path(Path::new("x.jpeg")).is_err());
+        assert!(Format::from_path(Path::new("noext")).is_err());
+    }
+
+    #[test]
+    fn atomic_write_replaces_and_leaves_no_temporary() {
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("out.svg");
+        write_atomic(&path, b"first").unwrap();
+        write_atomic(&path, b"second").unwrap();
+        assert_eq!(fs::read(&path).unwrap(), b"second");
+        let names: Vec<_> = fs::read_dir(dir.path())
+            .unwrap()
+            .map(|e| e.unwrap().file_name())
+            .collect();
+        assert_eq!(names.len(), 1, "{names:?}");
+    }
+
+    #[test]
+    fn atomic_write_into_a_missing_folder_fails_cleanly() {
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("missing").join("out.svg");
+        let err = write_atomic(&path, b"x").unwrap_err();
+        assert!(err.to_string().contains("out.svg"), "{err}");
+    }
+}

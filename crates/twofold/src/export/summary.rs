@@ -1,0 +1,790 @@
+//! The one-page summary, drawn from a [`SummaryInput`].
+//!
+//! Layout (portrait): a header across the page (title, date, response, description); two columns
+//! (left: factors, design, effect ranking, ANOVA; right: half-normal plot, interaction plots,
+//! best settings, the one-factor-at-a-time comparison); then across the page the equation,
+//! warnings, cautions and the reproducibility footer. Blocks of variable length are measured by
+//! drawing them once into a scratch document, so the columns get exactly the room left over.
+
+use super::charts::{self, Ticks};
+use super::format;
+use super::input::{EffectRow, LenthFacts, SummaryInput};
+use super::page::{Align, Cell, Column, Flow, Paper, Rect, row_height, sizes};
+use super::svg::{ACCENT, ALERT, Anchor, INK, MUTED, QUIET, RULE, Svg, TextStyle};
+
+/// The cautions printed on every summary page.
+pub const CAUTIONS: [&str; 4] = [
+    "Stay within the safe operating limits of your equipment, materials and process: the settings on this page are statistical estimates, not verified safe conditions.",
+    "Confirm with confirmation runs at the chosen settings before changing production.",
+    "The model describes only the tested ranges of the factors; do not extrapolate beyond them.",
+    "Follow local codes, regulations and licensed practice; this page does not replace engineering judgement or required approvals.",
+];
+
+/// Width of the label column of label-value lines.
+const LABEL_W: f64 = 300.0;
+
+/// Draws the summary page and returns the SVG document.
+pub fn render_svg(input: &SummaryInput, paper: Paper) -> String {
+    let (w, h) = paper.size();
+    let m = paper.margin();
+    let mut svg = Svg::new(w, h, paper.physical());
+    let content_w = w - 2.0 * m;
+
+    let header_bottom = header(&mut svg, input, m, m, content_w);
+
+    // Measure the full-width block at the foot of the page, then draw it there.
+    let bottom_h = {
+        let mut scratch = Svg::new(w, h, paper.physical());
+        let mut flow = Flow::new(m, content_w, 0.0, f64::INFINITY);
+        foot(&mut scratch, &mut flow, input);
+        flow.y
+    };
+    let foot_top = (h - m - bottom_h).max(header_bottom + 400.0);
+    let mut flow = Flow::new(m, content_w, foot_top, h - m);
+    foot(&mut svg, &mut flow, input);
+
+    let gap = 70.0;
+    let col_w = (content_w - gap) / 2.0;
+    let cols_top = header_bottom;
+    let cols_bottom = foot_top - 30.0;
+    left_column(&mut svg, input, Flow::new(m, col_w, cols_top, cols_bottom));
+    right_column(
+        &mut svg,
+        input,
+        Flow::new(m + col_w + gap, col_w, cols_top, cols_bottom),
+    );
+    svg.line(
+        (m + col_w + gap / 2.0, cols_top + 20.0),
+        (m + col_w + gap / 2.0, cols_bottom - 10.0),
+        "#dddddd",
+        2.0,
+        None,
+    );
+
+    let title = if input.title.is_empty() {
+        "Experiment summary".to_string()
+    } else {
+        format!("{}: summary", input.title)
+    };
+    svg.finish(&title)
+}
+
+/// Title, date, response line and description; returns the y where the columns start.
+fn header(svg: &mut Svg, input: &SummaryInput, x: f64, y: f64, w: f64) -> f64 {
+    let date_style = TextStyle::new(sizes::BODY).fill(MUTED).anchor(Anchor::End);
+    let date_w = if input.date.is_empty() {
+        0.0
+    } else {
+        date_style.width(&input.date) + 60.0
+    };
+    let title_style = TextStyle::new(sizes::TITLE).bold();
+    let title = if input.title.trim().is_empty() {
+        "Untitled experiment"
+    } else {
+        input.title.trim()
+    };
+    let baseline = y + sizes::TITLE * 0.95;
+    svg.text(
+        x,
+        baseline,
+        &super::page::ellipsize(title, title_style, w - date_w),
+        title_style,
+    );
+    if !input.date.is_empty() {
+        svg.text(x + w, baseline, &input.date, date_style);
+    }
+    let mut flow = Flow::new(x, w, baseline + sizes::TITLE * 0.35, f64::INFINITY);
+    let r = &input.response;
+    let mut line = if r.name.is_empty() {
+        "Response: (unnamed)".to_string()
+    } else {
+        format!("Response: {}", r.name)
+    };
+    if !r.unit.is_empty() {
+        line.push_str(&format!(" ({})", r.unit));
+    }
+    line.push_str(&format!(
+        "  ·  {} of {} runs analysed",
+        r.runs_used, r.runs_total
+    ));
+    if !r.transform.is_empty() {
+        line.push_str(&format!("  ·  analysed as {}", r.transform));
+    }
+    flow.paragraph(
+        svg,
+        &line,
+        TextStyle::new(sizes::BODY).bold().fill(ACCENT),
+        2,
+    );
+    if !input.description.trim().is_empty() {
+        flow.space(sizes::BODY * 0.2);
+        flow.paragraph(
+            svg,
+            input.description.trim(),
+            TextStyle::new(sizes::BODY),
+            4,
+        );
+    }
+    flow.space(sizes::BODY * 0.3);
+    svg.line((x, flow.y), (x + w, flow.y), INK, 3.0, None);
+    flow.y + sizes::BODY * 0.4
+}
+
+fn left_column(svg: &mut Svg, input: &SummaryInput, mut flow: Flow) {
+    factors(svg, &mut flow, input);
+    design(svg, &mut flow, input);
+    // ANOVA gets the room it needs (up to half of what is left); the effects take the rest.
+    let anova_h = {
+        let mut scratch = Svg::new(10.0, 10.0, ("1in", "1in"));
+        let mut probe = Flow::new(flow.x, flow.w, 0.0, f64::INFINITY);
+        anova(&mut scratch, &mut probe, input);
+        probe.y
+    };
+    let anova_h = anova_h.min(flow.remaining() * 0.5);
+    let split = flow.bottom - anova_h;
+    let mut effects_flow = Flow::new(flow.x, flow.w, flow.y, split);
+    effects(svg, &mut effects_flow, input);
+    let mut anova_flow = Flow::new(flow.x, flow.w, effects_flow.y.max(flow.y), flow.bottom);
+    anova(svg, &mut anova_flow, input);
+}
+
+fn factors(svg: &mut Svg, flow: &mut Flow, input: &SummaryInput) {
+    flow.heading(svg, "Factors");
+    if input.factors.is_empty() {
+        flow.paragraph(
+            svg,
+            "No factors defined.",
+            TextStyle::new(sizes::BODY).fill(MUTED),
+            1,
+        );
+        return;
+    }
+    let columns = [
+        Column::new("", 0.25, Align::Left),
+        Column::new("Name", 2.2, Align::Left),
+        Column::new("Unit", 0.45, Align::Left),
+        Column::new("Low (−1)", 0.75, Align::Right),
+        Column::new("High (+1)", 0.75, Align::Right),
+    ];
+    let rows: Vec<Vec<Cell>> = input
+        .factors
+        .iter()
+        .map(|f| {
+            vec![
+                Cell::strong(f.letter.to_string(), ACCENT),
+                Cell::plain(f.name.clone()),
+                Cell::coloured(f.unit.clone(), MUTED),
+                Cell::plain(f.low.text()),
+                Cell::plain(f.high.text()),
+            ]
+        })
+        .collect();
+    flow.table(svg, &columns, &rows, 12);
+}
+
+/// `2⁵⁻¹` in superscript digits.
+fn fraction_symbol(k: usize, p: usize) -> String {
+    fn sup(n: usize) -> String {
+        n.to_string()
+            .chars()
+            .map(|c| match c {
+                '0' => '⁰',
+                '1' => '¹',
+                '2' => '²',
+                '3' => '³',
+                '4' => '⁴',
+                '5' => '⁵',
+                '6' => '⁶',
+                '7' => '⁷',
+                '8' => '⁸',
+                _ => '⁹',
+            })
+            .collect()
+    }
+    if p == 0 {
+        format!("2{}", sup(k))
+    } else {
+        format!("2{}⁻{}", sup(k), sup(p))
+    }
+}
+
+/// Roman numeral of a resolution (III, IV, V, ...), plain digits past 12.
+pub fn roman(n: u32) -> String {
+    const R: [&str; 13] = [
+        "", "I", "II", "III", "IV", "V", "VI", "VII", "VIII", "IX", "X", "XI", "XII",
+    ];
+    R.get(n as usize)
+        .map_or_else(|| n.to_string(), |s| s.to_string())
+}
+
+fn design(svg: &mut Svg, flow: &mut Flow, input: &SummaryInput) {
+    let d = &input.design;
+    flow.heading(svg, "Design");
+    let mut kind = if d.generators_count == 0 {
+        format!("{} full factorial", fraction_symbol(d.factors, 0))
+    } else {
+        format!(
+            "{} fractional factorial",
+            fraction_symbol(d.factors, d.generators_count)
+        )
+    };
+    if let Some(r) = d.resolution {
+        kind.push_str(&format!(", resolution {}", roman(r)));
+    }
+    flow.fact(svg, "Design", &kind, LABEL_W, 2);
+    let mut runs = format!("{} runs per replicate", d.base_runs);
+    if d.replicates > 1 {
+        runs.push_str(&format!(" × {} replicates", d.replicates));
+    }
+    if d.centre_points > 0 {
+        runs.push_str(&format!(" + {} centre points", d.centre_points));
+    }
+    runs.push_str(&format!(" = {} runs", d.total_runs));
+    flow.fact(svg, "Runs", &runs, LABEL_W, 2);
+    let mut blocks = if d.blocks <= 1 {
+        "none (one block)".to_string()
+    } else {
+        format!("{} blocks", d.blocks)
+    };
+    if !d.block_generators.is_empty() {
+        blocks.push_str(&format!(
+            ", block generators {}",
+            d.block_generators.join(", ")
+        ));
+    }
+    flow.fact(svg, "Blocks", &blocks, LABEL_W, 2);
+    let generators = if d.generators.is_empty() {
+        "none (every combination is run)".to_string()
+    } else {
+        d.generators.join(", ")
+    };
+    flow.fact(svg, "Generators", &generators, LABEL_W, 2);
+    let order = match d.seed {
+        Some(seed) => format!("randomised, seed {seed}"),
+        None => "standard order".to_string(),
+    };
+    flow.fact(svg, "Run order", &order, LABEL_W, 1);
+    let aliases = if d.aliases.is_empty() {
+        if d.generators_count == 0 {
+            "none: main effects and interactions are all estimated clear".to_string()
+        } else {
+            "none among the terms shown".to_string()
+        }
+    } else {
+        d.aliases.join(";  ")
+    };
+    let all = flow.fact(svg, "Aliases", &aliases, LABEL_W, 4);
+    if !all {
+        flow.paragraph_at(
+            svg,
+            "(the full alias list is in the app)",
+            TextStyle::new(sizes::SMALL).fill(MUTED),
+            1,
+            LABEL_W,
+        );
+    }
+}
+
+fn effects(svg: &mut Svg, flow: &mut Flow, input: &SummaryInput) {
+    flow.heading(svg, "Effect ranking");
+    let body = TextStyle::new(sizes::BODY);
+    if input.effects.is_empty() {
+        flow.paragraph(
+            svg,
+            "No effects yet: enter responses for the runs.",
+            body.fill(MUTED),
+            2,
+        );
+        return;
+    }
+    let lenth = input.lenth.as_ref();
+    let rh = row_height();
+    let note_lines = 3.0;
+    let note_h = sizes::SMALL * sizes::LEADING * note_lines + sizes::BODY * sizes::LEADING;
+    let fit = ((flow.remaining() - note_h) / rh).floor() as isize - 1;
+    let fit = fit.max(0) as usize;
+    let shown = input.effects.len().min(fit);
+    let table_h = rh * (shown as f64 + 1.0);
+    let Some(area) = flow.take(table_h) else {
+        return;
+    };
+    effect_table(svg, area, &input.effects[..shown], lenth);
+    flow.space(sizes::BODY * 0.3);
+    let small = TextStyle::new(sizes::SMALL).fill(MUTED);
+    if shown < input.effects.len() {
+        let n = input.effects.len() - shown;
+        flow.paragraph(
+            svg,
+            &format!("{n} smaller effects not listed; all of them appear in the half-normal plot."),
+            small,
+            2,
+        );
+    }
+    match lenth {
+        Some(l) => {
+            let text = format!(
+                "Lenth's method: PSE = {}, ME = {}, SME = {} (α = {}, t with {} df). Bars beyond the dashed ME line are likely active; beyond SME, active even allowing for testing many effects. Bold blue terms are in the chosen model.",
+                format::sig(l.pse, 4),
+                format::sig(l.me, 4),
+                format::sig(l.sme, 4),
+                format::level(l.alpha),
+                format::sig_trim(l.df, 3)
+            );
+            flow.paragraph(svg, &text, small, 3);
+        }
+        None => {
+            flow.paragraph(svg, "Lenth's limits are not available for these effects (too few, or all equal). Bold blue terms are in the chosen model.", small, 2);
+        }
+    }
+}
+
+/// Term, signed effect, a bar of |effect| with the Lenth limits, and which limit it passes.
+fn effect_table(svg: &mut Svg, area: Rect, rows: &[EffectRow], lenth: Option<&LenthFacts>) {
+    let rh = row_height();
+    let size = sizes::BODY;
+    let pad = size * 0.35;
+    let term_w = area.w * 0.25;
+    let effect_w = area.w * 0.2;
+    let mark_w = area.w * 0.14;
+    let bar_x0 = area.x + term_w + effect_w + pad * 2.0;
+    let bar_x1 = area.x + area.w - mark_w - pad;
+    let baseline = |top: f64| top + rh * 0.5 + size * 0.36;
+    svg.rect(area.x, area.y, area.w, rh, Some(super::svg::SHADE), None);
+    let head = TextStyle::new(size).bold();
+    svg.text(area.x + pad, baseline(area.y), "Term", head);
+    svg.text(
+        area.x + term_w + effect_w - pad,
+        baseline(area.y),
+        "Effect",
+        head.anchor(Anchor::End),
+    );
+    svg.text(bar_x0, baseline(area.y), "|effect|", head);
+    svg.text(
+        area.x + area.w - pad,
+        baseline(area.y),
+        "Lenth",
+        head.anchor(Anchor::End),
+    );
+
+    let mut max = rows
+        .iter()
+        .map(|r| r.effect.abs())
+        .filter(|v| v.is_finite())
+        .fold(0.0, f64::max);
+    if let Some(l) = lenth {
+        for v in [l.me, l.sme] {
+            if v.is_finite() {
+                max = max.max(v);
+            }
+        }
+    }
+    let biggest = rows
+        .iter()
+        .map(|r| r.effect.abs())
+        .filter(|v| v.is_finite())
+        .fold(0.0, f64::max);
+    let decimals = format::column_decimals(biggest, 4);
+    let scale = |v: f64| {
+        if max > 0.0 {
+            bar_x0 + (bar_x1 - bar_x0) * (v / max).clamp(0.0, 1.0)
+        } else {
+            bar_x0
+        }
+    };
+    let body_top = area.y + rh;
+    for (i, row) in rows.iter().enumerate() {
+        let top = body_top + i as f64 * rh;
+        if i % 2 == 1 {
+            svg.rect(area.x, top, area.w, rh, Some("#f7f7f7"), None);
+        }
+        let style = if row.in_model {
+            TextStyle::new(size).bold().fill(ACCENT)
+        } else {
+            TextStyle::new(size)
+        };
+        let term = super::page::ellipsize(&row.term, style, term_w - 2.0 * pad);
+        svg.text(area.x + pad, baseline(top), &term, style);
+        svg.text(
+            area.x + term_w + effect_w - pad,
+            baseline(top),
+            &format::fixed(row.effect, decimals),
+            TextStyle::new(size).anchor(Anchor::End),
+        );
+        if row.effect.is_finite() {
+            let colour = if row.in_model { ACCENT } else { QUIET };
+            let x1 = scale(row.effect.abs());
+            svg.rect(
+                bar_x0,
+                top + rh * 0.22,
+                x1 - bar_x0,
+                rh * 0.56,
+                Some(colour),
+                None,
+            );
+        }
+        if let Some(l) = lenth {
+            let a = row.effect.abs();
+            let mark = if l.sme.is_finite() && a > l.sme {
+                "> SME"
+            } else if l.me.is_finite() && a > l.me {
+                "> ME"
+            } else {
+                ""
+            };
+            svg.text(
+                area.x + area.w - pad,
+                baseline(top),
+                mark,
+                TextStyle::new(size).bold().fill(ALERT).anchor(Anchor::End),
+            );
+        }
+    }
+    let body_bottom = body_top + rows.len() as f64 * rh;
+    svg.line((bar_x0, body_top), (bar_x0, body_bottom), INK, 2.0, None);
+    if let Some(l) = lenth {
+        for (v, dash) in [(l.me, 14.0), (l.sme, 6.0)] {
+            if v.is_finite() && v > 0.0 && max > 0.0 {
+                let x = scale(v);
+                svg.line((x, body_top), (x, body_bottom), ALERT, 2.5, Some(dash));
+            }
+        }
+    }
+    svg.line(
+        (area.x, body_bottom),
+        (area.x + area.w, body_bottom),
+        RULE,
+        2.0,
+        None,
+    );
+}
+
+fn anova(svg: &mut Svg, flow: &mut Flow, input: &SummaryInput) {
+    flow.heading(svg, "ANOVA of the chosen model");
+    let Some(table) = &input.anova else {
+        flow.paragraph(
+            svg,
+            "No model fitted yet: choose the model terms from the effect ranking.",
+            TextStyle::new(sizes::BODY).fill(MUTED),
+            2,
+        );
+        return;
+    };
+    let columns = [
+        Column::new("Source", 1.55, Align::Left),
+        Column::new("df", 0.45, Align::Right),
+        Column::new("SS", 1.05, Align::Right),
+        Column::new("MS", 1.05, Align::Right),
+        Column::new("F", 0.8, Align::Right),
+        Column::new("p", 0.95, Align::Right),
+    ];
+    let opt = |v: Option<f64>, f: fn(f64) -> String| v.map(f).unwrap_or_default();
+    let rows: Vec<Vec<Cell>> = table
+        .rows
+        .iter()
+        .map(|r| {
+            let mut cells = vec![
+                Cell::plain(r.source.clone()),
+                Cell::plain(r.df.to_string()),
+                Cell::plain(format::sig(r.ss, 4)),
+                Cell::plain(opt(r.ms, |v| format::sig(v, 4))),
+                Cell::plain(opt(r.f, |v| format::sig(v, 3))),
+                Cell::plain(opt(r.p, format::p_value)),
+            ];
+            if r.emphasis {
+                for c in &mut cells {
+                    c.bold = true;
+                }
+            }
+            if r.p.is_some_and(|p| p < 0.05) {
+                cells[5].fill = ALERT;
+                cells[5].bold = true;
+            }
+            cells
+        })
+        .collect();
+    flow.table(svg, &columns, &rows, 30);
+    let mut fit = Vec::new();
+    if let Some(v) = table.r_squared {
+        fit.push(format!("R² = {}", format::percent(v)));
+    }
+    if let Some(v) = table.adj_r_squared {
+        fit.push(format!("adjusted R² = {}", format::percent(v)));
+    }
+    if let Some(v) = table.pred_r_squared {
+        fit.push(format!("predicted R² = {}", format::percent(v)));
+    }
+    if let Some(v) = table.std_dev {
+        fit.push(format!("s = {}", format::sig(v, 4)));
+    }
+    if !fit.is_empty() {
+        flow.paragraph(svg, &fit.join(",  "), TextStyle::new(sizes::BODY), 2);
+    }
+}
+
+fn right_column(svg: &mut Svg, input: &SummaryInput, flow: Flow) {
+    // Best settings and the comparison go at the foot of the column; the charts share the rest.
+    let tail_h = {
+        let mut scratch = Svg::new(10.0, 10.0, ("1in", "1in"));
+        let mut probe = Flow::new(flow.x, flow.w, 0.0, f64::INFINITY);
+        tail(&mut scratch, &mut probe, input);
+        probe.y
+    };
+    let charts_bottom = (flow.bottom - tail_h).max(flow.y + 600.0);
+    let mut top = Flow::new(flow.x, flow.w, flow.y, charts_bottom);
+    let panels: Vec<_> = input.interactions.iter().take(4).cloned().collect();
+    let heading_h = sizes::HEADING * 1.55;
+    let note_h = 2.0 * sizes::SMALL * sizes::LEADING;
+    let gap = 50.0;
+    let rows = panels.len().div_ceil(2);
+    let panel_w = (top.w - gap) / 2.0;
+    let available = top.remaining() - 2.0 * heading_h - 20.0 - note_h;
+    // The interaction panels get up to 55 % of the room (never taller than wide); the
+    // half-normal plot takes the rest, up to a square.
+    let panel_h = if rows == 0 {
+        0.0
+    } else {
+        ((available * 0.55 - gap * (rows as f64 - 1.0)) / rows as f64).min(panel_w * 1.1)
+    };
+    let interactions_h = if rows == 0 {
+        sizes::BODY * sizes::LEADING
+    } else {
+        rows as f64 * panel_h + (rows as f64 - 1.0) * gap
+    };
+    let hn_h = (available - interactions_h).min(flow.w * 1.2).max(0.0);
+
+    top.heading(svg, "Half-normal plot of effects");
+    match top.take(hn_h) {
+        Some(area) if !input.half_normal.is_empty() => {
+            charts::half_normal(svg, area, &input.half_normal, input.lenth.as_ref())
+        }
+        Some(area) => charts::empty_box(svg, area, "no effects to plot yet"),
+        None => {}
+    }
+    top.space(20.0);
+    top.heading(svg, "Interaction plots");
+    if panels.is_empty() {
+        top.paragraph(
+            svg,
+            "No two-factor interaction to plot.",
+            TextStyle::new(sizes::BODY).fill(MUTED),
+            1,
+        );
+    } else {
+        let ticks: Ticks = charts::shared_interaction_ticks(&panels);
+        for (i, panel) in panels.iter().enumerate() {
+            let col = i % 2;
+            let row = i / 2;
+            let area = Rect {
+                x: top.x + col as f64 * (panel_w + gap),
+                y: top.y + row as f64 * (panel_h + gap),
+                w: panel_w,
+                h: panel_h,
+            };
+            charts::interaction(svg, area, panel, &ticks);
+        }
+        top.space(rows as f64 * panel_h + (rows as f64 - 1.0) * gap);
+        let note = if input.interactions.len() > 4 {
+            format!(
+                "Same response axis in every panel. The four strongest of {} interactions are shown.",
+                input.interactions.len()
+            )
+        } else {
+            "Same response axis in every panel; non-parallel lines show an interaction.".to_string()
+        };
+        top.paragraph(svg, &note, TextStyle::new(sizes::SMALL).fill(MUTED), 2);
+    }
+    // The text follows the charts directly; any spare room stays at the foot of the column.
+    let mut bottom = Flow::new(flow.x, flow.w, (top.y + 20.0).min(charts_bottom), flow.bottom);
+    tail(svg, &mut bottom, input);
+}
+
+fn tail(svg: &mut Svg, flow: &mut Flow, input: &SummaryInput) {
+    let body = TextStyle::new(sizes::BODY);
+    let small = TextStyle::new(sizes::SMALL).fill(MUTED);
+    flow.heading(svg, "Best settings found");
+    match &input.best {
+        Some(b) => {
+            flow.fact(svg, "Goal", &b.goal, LABEL_W, 1);
+            let settings: Vec<String> = b
+                .settings
+                .iter()
+                .map(|(f, v)| format!("{f} = {v}"))
+                .collect();
+            flow.fact(svg, "Settings", &settings.join(";  "), LABEL_W, 3);
+            // Prediction and interval share one number of decimals so they read as one scale.
+            let widest = b
+                .interval
+                .as_ref()
+                .map_or(b.predicted.abs(), |(lo, hi, _)| b.predicted.abs().max(lo.abs()).max(hi.abs()));
+            let decimals = format::column_decimals(widest, 4);
+            let mut predicted = format::fixed(b.predicted, decimals);
+            if let Some((lo, hi, what)) = &b.interval {
+                predicted.push_str(&format!(
+                    "  ({what}: {} to {})",
+                    format::fixed(*lo, decimals),
+                    format::fixed(*hi, decimals)
+                ));
+            }
+            flow.fact(svg, "Predicted", &predicted, LABEL_W, 2);
+            flow.paragraph(
+                svg,
+                "A prediction, not a result: confirm it with runs at these settings.",
+                small,
+                1,
+            );
+        }
+        None => {
+            flow.paragraph(
+                svg,
+                "No prediction yet: fit a model first.",
+                body.fill(MUTED),
+                1,
+            );
+        }
+    }
+    flow.heading(svg, "Compared with one factor at a time");
+    match &input.ofat {
+        Some(o) => {
+            let text = format!(
+                "This design: {} runs. Changing one factor at a time would need about {} runs for the same precision of the main effects, and could not estimate any interaction.",
+                o.design_runs, o.ofat_runs
+            );
+            flow.paragraph(svg, &text, body, 3);
+            if !o.explanation.is_empty() {
+                flow.paragraph(svg, &o.explanation, small, 2);
+            }
+        }
+        None => {
+            flow.paragraph(svg, "Not available for this design.", body.fill(MUTED), 1);
+        }
+    }
+}
+
+/// Equation, warnings, cautions and footer, across the page.
+fn foot(svg: &mut Svg, flow: &mut Flow, input: &SummaryInput) {
+    let body = TextStyle::new(sizes::BODY);
+    let small = TextStyle::new(sizes::SMALL).fill(MUTED);
+    svg.line((flow.x, flow.y), (flow.x + flow.w, flow.y), INK, 3.0, None);
+    flow.space(6.0);
+    flow.heading(svg, "Model equation in natural units");
+    match &input.equation {
+        Some(eq) => {
+            flow.paragraph(svg, &equation_text(eq), body, 4);
+            if !eq.note.is_empty() {
+                flow.paragraph(svg, &eq.note, small, 2);
+            }
+        }
+        None => {
+            flow.paragraph(svg, "No model fitted yet.", body.fill(MUTED), 1);
+        }
+    }
+    flow.heading(svg, "Warnings");
+    if input.warnings.is_empty() {
+        flow.paragraph(svg, "None.", body.fill(MUTED), 1);
+    }
+    let max_warnings = 6;
+    for w in input.warnings.iter().take(max_warnings) {
+        bullet(svg, flow, w, body, ALERT);
+    }
+    if input.warnings.len() > max_warnings {
+        let n = input.warnings.len() - max_warnings;
+        flow.paragraph(
+            svg,
+            &format!("{n} more warnings are listed in the app."),
+            small,
+            1,
+        );
+    }
+    flow.heading(svg, "Before acting on this page");
+    for c in CAUTIONS {
+        bullet(svg, flow, c, body, INK);
+    }
+    flow.space(sizes::SMALL * 0.6);
+    let f = &input.footer;
+    let mut facts = vec![if f.tool.is_empty() {
+        "Twofold".to_string()
+    } else {
+        f.tool.clone()
+    }];
+    match f.seed {
+        Some(seed) => facts.push(format!("run-order seed {seed}")),
+        None => facts.push("runs in standard order".to_string()),
+    }
+    if !f.data_hash.is_empty() {
+        facts.push(format!("SHA-256 of project data {}", f.data_hash));
+    }
+    flow.paragraph(svg, &facts.join("  ·  "), small, 2);
+}
+
+fn bullet(svg: &mut Svg, flow: &mut Flow, text: &str, style: TextStyle, mark: super::svg::Colour) {
+    let indent = style.size * 1.1;
+    if flow.remaining() < style.size {
+        return;
+    }
+    svg.text(
+        flow.x + style.size * 0.2,
+        flow.y + style.size,
+        "•",
+        TextStyle::new(style.size).bold().fill(mark),
+    );
+    flow.paragraph_at(svg, text, style, 3, indent);
+}
+
+/// The equation as one line of text: `Yield = 52.31 + 0.125 × Temperature − 3.2 × Time × Speed`.
+pub fn equation_text(eq: &super::input::Equation) -> String {
+    let mut s = format!("{} = {}", eq.lhs, format::sig_trim(eq.intercept, 5));
+    for t in &eq.terms {
+        let sign = if t.coefficient < 0.0 { "-" } else { "+" };
+        s.push_str(&format!(
+            " {sign} {} × {}",
+            format::sig_trim(t.coefficient.abs(), 5),
+            t.factors.join(" × ")
+        ));
+    }
+    s
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::export::input::{Equation, EquationTerm};
+
+    #[test]
+    fn equation_reads_left_to_right() {
+        let eq = Equation {
+            lhs: "Yield".into(),
+            intercept: 52.3126,
+            terms: vec![
+                EquationTerm {
+                    coefficient: 0.125,
+                    factors: vec!["Temperature".into()],
+                },
+                EquationTerm {
+                    coefficient: -3.2,
+                    factors: vec!["Time".into(), "Speed".into()],
+                },
+            ],
+            note: String::new(),
+        };
+        assert_eq!(
+            equation_text(&eq),
+            "Yield = 52.313 + 0.125 × Temperature - 3.2 × Time × Speed"
+        );
+    }
+
+    #[test]
+    fn fraction_symbols_and_resolutions() {
+        assert_eq!(fraction_symbol(5, 1), "2⁵⁻¹");
+        assert_eq!(fraction_symbol(11, 0), "2¹¹");
+        assert_eq!(roman(4), "IV");
+        assert_eq!(roman(20), "20");
+    }
+
+    #[test]
+    fn empty_input_still_draws_a_page_with_the_cautions() {
+        let svg = render_svg(&SummaryInput::default(), Paper::A4);
+        assert!(svg.contains("Untitled experiment"));
+        assert!(svg.contains("confirmation runs"));
+        assert!(svg.contains("No effects yet"));
+    }
+}
