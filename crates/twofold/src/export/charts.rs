@@ -403,8 +403,13 @@ pub fn interaction(svg: &mut Svg, area: Rect, panel: &InteractionPanel, y_ticks:
     // Legend under the plot, one line per level of the trace factor; the level is never cut,
     // only the factor name.
     for t in 0..2 {
-        let ly = area.y + area.h - legend.size * 0.3 - (1 - t) as f64 * legend.size * sizes::LEADING;
-        let (colour, dash) = if t == 1 { (ACCENT, None) } else { (QUIET, Some(12.0)) };
+        let ly =
+            area.y + area.h - legend.size * 0.3 - (1 - t) as f64 * legend.size * sizes::LEADING;
+        let (colour, dash) = if t == 1 {
+            (ACCENT, None)
+        } else {
+            (QUIET, Some(12.0))
+        };
         let mid = ly - legend.size * 0.35;
         svg.line((area.x, mid), (area.x + 50.0, mid), colour, 4.0, dash);
         let level = format!(" = {}", panel.trace_levels[t]);

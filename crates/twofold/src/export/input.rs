@@ -29,8 +29,10 @@ pub struct SummaryInput {
     pub lenth: Option<LenthFacts>,
     /// Points of the half-normal plot.
     pub half_normal: Vec<HalfNormalPoint>,
-    /// Interaction plots (at most four are drawn).
+    /// Interaction plots, strongest first (at most four are drawn).
     pub interactions: Vec<InteractionPanel>,
+    /// Sentence under the interaction plots saying which were chosen; empty for the default.
+    pub interaction_note: String,
     /// ANOVA of the chosen model, when one is fitted.
     pub anova: Option<AnovaTable>,
     /// The fitted equation in natural units.
@@ -214,24 +216,12 @@ pub struct AnovaTable {
     pub std_dev: Option<f64>,
 }
 
-/// One term of the fitted equation.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
-pub struct EquationTerm {
-    /// Coefficient in natural units.
-    pub coefficient: f64,
-    /// Names of the factors multiplied (one for a main effect, two for an interaction).
-    pub factors: Vec<String>,
-}
-
 /// The fitted equation in natural units.
 #[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
 pub struct Equation {
-    /// Left-hand side (`Yield`, or `ln(Yield)` for a transformed response).
-    pub lhs: String,
-    /// Constant term.
-    pub intercept: f64,
-    /// Remaining terms in model order.
-    pub terms: Vec<EquationTerm>,
+    /// The equation written out exactly as the app shows it
+    /// (`Yield = 52.3 + 0.125*Temperature - 3.2*Time*Speed`).
+    pub text: String,
     /// Note printed under the equation (e.g. how categorical factors are coded); may be empty.
     pub note: String,
 }
@@ -243,8 +233,9 @@ pub struct BestSettings {
     pub goal: String,
     /// Factor name and setting, in letter order.
     pub settings: Vec<(String, String)>,
-    /// Predicted response at these settings.
-    pub predicted: f64,
+    /// Predicted response at these settings on the measured scale; `None` when the
+    /// prediction has no value there (e.g. a negative square root).
+    pub predicted: Option<f64>,
     /// Interval around the prediction (`(low, high)`) and its description ("95 % prediction
     /// interval"), when available.
     pub interval: Option<(f64, f64, String)>,

@@ -583,18 +583,33 @@ fn right_column(svg: &mut Svg, input: &SummaryInput, flow: Flow) {
             charts::interaction(svg, area, panel, &ticks);
         }
         top.space(rows as f64 * panel_h + (rows as f64 - 1.0) * gap);
-        let note = if input.interactions.len() > 4 {
+        let shown = if input.interactions.len() > 4 {
             format!(
-                "Same response axis in every panel. The four strongest of {} interactions are shown.",
+                " The four strongest of {} are shown.",
                 input.interactions.len()
             )
         } else {
-            "Same response axis in every panel; non-parallel lines show an interaction.".to_string()
+            String::new()
+        };
+        let note = if input.interaction_note.is_empty() {
+            format!(
+                "Same response axis in every panel; lines that are not parallel show an interaction.{shown}"
+            )
+        } else {
+            format!(
+                "{}{shown} Same response axis in every panel.",
+                input.interaction_note
+            )
         };
         top.paragraph(svg, &note, TextStyle::new(sizes::SMALL).fill(MUTED), 2);
     }
     // The text follows the charts directly; any spare room stays at the foot of the column.
-    let mut bottom = Flow::new(flow.x, flow.w, (top.y + 20.0).min(charts_bottom), flow.bottom);
+    let mut bottom = Flow::new(
+        flow.x,
+        flow.w,
+        (top.y + 20.0).min(charts_bottom),
+        flow.bottom,
+    );
     tail(svg, &mut bottom, input);
 }
 
@@ -612,19 +627,24 @@ fn tail(svg: &mut Svg, flow: &mut Flow, input: &SummaryInput) {
                 .collect();
             flow.fact(svg, "Settings", &settings.join(";  "), LABEL_W, 3);
             // Prediction and interval share one number of decimals so they read as one scale.
-            let widest = b
-                .interval
-                .as_ref()
-                .map_or(b.predicted.abs(), |(lo, hi, _)| b.predicted.abs().max(lo.abs()).max(hi.abs()));
-            let decimals = format::column_decimals(widest, 4);
-            let mut predicted = format::fixed(b.predicted, decimals);
-            if let Some((lo, hi, what)) = &b.interval {
-                predicted.push_str(&format!(
-                    "  ({what}: {} to {})",
-                    format::fixed(*lo, decimals),
-                    format::fixed(*hi, decimals)
-                ));
-            }
+            let predicted = match b.predicted {
+                Some(value) => {
+                    let widest = b.interval.as_ref().map_or(value.abs(), |(lo, hi, _)| {
+                        value.abs().max(lo.abs()).max(hi.abs())
+                    });
+                    let decimals = format::column_decimals(widest, 4);
+                    let mut text = format::fixed(value, decimals);
+                    if let Some((lo, hi, what)) = &b.interval {
+                        text.push_str(&format!(
+                            "  ({what}: {} to {})",
+                            format::fixed(*lo, decimals),
+                            format::fixed(*hi, decimals)
+                        ));
+                    }
+                    text
+                }
+                None => "no value on the measured scale".to_string(),
+            };
             flow.fact(svg, "Predicted", &predicted, LABEL_W, 2);
             flow.paragraph(
                 svg,
@@ -669,7 +689,7 @@ fn foot(svg: &mut Svg, flow: &mut Flow, input: &SummaryInput) {
     flow.heading(svg, "Model equation in natural units");
     match &input.equation {
         Some(eq) => {
-            flow.paragraph(svg, &equation_text(eq), body, 4);
+            flow.paragraph(svg, &eq.text, body, 4);
             if !eq.note.is_empty() {
                 flow.paragraph(svg, &eq.note, small, 2);
             }
@@ -730,47 +750,9 @@ fn bullet(svg: &mut Svg, flow: &mut Flow, text: &str, style: TextStyle, mark: su
     flow.paragraph_at(svg, text, style, 3, indent);
 }
 
-/// The equation as one line of text: `Yield = 52.31 + 0.125 × Temperature − 3.2 × Time × Speed`.
-pub fn equation_text(eq: &super::input::Equation) -> String {
-    let mut s = format!("{} = {}", eq.lhs, format::sig_trim(eq.intercept, 5));
-    for t in &eq.terms {
-        let sign = if t.coefficient < 0.0 { "-" } else { "+" };
-        s.push_str(&format!(
-            " {sign} {} × {}",
-            format::sig_trim(t.coefficient.abs(), 5),
-            t.factors.join(" × ")
-        ));
-    }
-    s
-}
-
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::export::input::{Equation, EquationTerm};
-
-    #[test]
-    fn equation_reads_left_to_right() {
-        let eq = Equation {
-            lhs: "Yield".into(),
-            intercept: 52.3126,
-            terms: vec![
-                EquationTerm {
-                    coefficient: 0.125,
-                    factors: vec!["Temperature".into()],
-                },
-                EquationTerm {
-                    coefficient: -3.2,
-                    factors: vec!["Time".into(), "Speed".into()],
-                },
-            ],
-            note: String::new(),
-        };
-        assert_eq!(
-            equation_text(&eq),
-            "Yield = 52.313 + 0.125 × Temperature - 3.2 × Time × Speed"
-        );
-    }
 
     #[test]
     fn fraction_symbols_and_resolutions() {
