@@ -28,8 +28,10 @@
 //!   (lexicographically) per-column additions of the candidates still allowed is a lower bound on
 //!   every completion with r more columns. A branch whose bound is not below the best design
 //!   found so far is cut, and so is every candidate column whose own addition already reaches it
-//!   (branch and bound, Land & Doig 1960, *Econometrica* 28, 497–520). The incumbent is seeded by a
-//!   greedy construction that adds, at each step, the column adding the fewest short words.
+//!   (branch and bound, Land & Doig 1960, *Econometrica* 28, 497–520). With one or two columns to
+//!   go the best completion is found exactly (after adding c, a column y adds
+//!   `n_j(y) + n_{j−1}(y·c)` words of length j + 1). The incumbent is seeded by greedy
+//!   constructions that add, at each step, the column adding the fewest short words.
 //! * **Isomorphism pruning.** Relabelling the basic factors maps designs to isomorphic designs
 //!   with the same pattern. The search keeps a partial design only if its column set, as a sorted
 //!   list in the search order, is the smallest among its images under the relabellings used
@@ -43,7 +45,9 @@
 //!   of Error-Correcting Codes*, ch. 1). In systematic form each basic factor is a vector of p bits
 //!   saying which generators contain it; the search chooses those q vectors (repeats allowed) in
 //!   increasing order and cuts a branch once some word can no longer reach the resolution of the
-//!   incumbent.
+//!   incumbent, or once more words than the incumbent has at that length are bound to stay there
+//!   (a word that no later vector can lengthen is final). This engine has no isomorphism pruning
+//!   and finishes quickly only for few generators (p ≤ 3); beyond that it is budget-limited.
 //!
 //! Searches run under a time budget. When the exact search finishes, the outcome is proven to be
 //! of minimum aberration; when the budget runs out first, the best design found is returned with
@@ -411,6 +415,16 @@ fn permutations(n: usize) -> Vec<Vec<usize>> {
     out
 }
 
+/// Outcome of [`ColumnSearch::pair_bound`].
+enum PairBound {
+    /// No completion can beat the incumbent.
+    Cut,
+    /// The candidates that may still take part in a better completion (in search order).
+    Keep(Vec<u32>),
+    /// No incumbent yet.
+    Unknown,
+}
+
 /// Which relabellings of the basic factors the isomorphism test uses.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 enum RelabellingSet {
@@ -467,44 +481,53 @@ impl ColumnSearch {
         for (i, &c) in columns.iter().enumerate() {
             rank_of[c as usize] = (q + i) as u32;
         }
-        let relabellings = if q <= ALL_RELABELLINGS_MAX_BASIC && set == RelabellingSet::Default {
-            let perms = permutations(q);
-            let ranks = q + columns.len();
-            let mut images = Vec::with_capacity((perms.len() - 1) * ranks);
-            for rank in 0..ranks {
-                let mask = if rank < q {
-                    1u32 << rank
-                } else {
-                    columns[rank - q]
-                };
+        // The test only runs where three or more columns are still to come (see `dfs`), so
+        // with p ≤ 3 no table is needed.
+        let p = k - q;
+        let relabellings =
+            if q <= ALL_RELABELLINGS_MAX_BASIC && set == RelabellingSet::Default && p >= 4 {
+                let perms = permutations(q);
+                let ranks = q + columns.len();
+                let count = perms.len() - 1;
+                let mut images = vec![0u32; count * ranks];
+                let mut by_mask = vec![0u32; size];
                 // perms[0] is the identity: it never gives a smaller image.
-                for pi in &perms[1..] {
-                    let image = (0..q)
-                        .filter(|&b| mask >> b & 1 == 1)
-                        .fold(0u32, |acc, b| acc | 1 << pi[b]);
-                    images.push(rank_of[image as usize]);
+                for (pi, perm) in perms[1..].iter().enumerate() {
+                    for m in 1..size {
+                        let low = m.trailing_zeros() as usize;
+                        by_mask[m] = by_mask[m & (m - 1)] | 1 << perm[low];
+                    }
+                    for rank in 0..ranks {
+                        let mask = if rank < q {
+                            1usize << rank
+                        } else {
+                            columns[rank - q] as usize
+                        };
+                        images[rank * count + pi] = rank_of[by_mask[mask] as usize];
+                    }
                 }
-            }
-            Relabellings::Table {
-                count: perms.len() - 1,
-                images,
-            }
-        } else {
-            let mut pairs = Vec::new();
-            #[cfg(test)]
-            let q = if set == RelabellingSet::Nothing { 0 } else { q };
-            for i in 0..q as u32 {
-                for j in i + 1..q as u32 {
-                    pairs.push((i, j));
+                Relabellings::Table { count, images }
+            } else {
+                let mut pairs = Vec::new();
+                let basic = if p >= 4 { q as u32 } else { 0 };
+                #[cfg(test)]
+                let basic = if set == RelabellingSet::Nothing {
+                    0
+                } else {
+                    basic
+                };
+                for i in 0..basic {
+                    for j in i + 1..basic {
+                        pairs.push((i, j));
+                    }
                 }
-            }
-            Relabellings::Swaps { pairs }
-        };
+                Relabellings::Swaps { pairs }
+            };
         let width = k + 1;
         let mut search = ColumnSearch {
             q,
             k,
-            p: k - q,
+            p,
             width,
             columns,
             rank_of,
@@ -718,11 +741,11 @@ impl ColumnSearch {
                     };
                 }
                 if out.contains(&TIE) {
-                    for pi in 0..out.len() {
-                        if out[pi] == TIE {
+                    for (pi, slot) in out.iter_mut().enumerate() {
+                        if *slot == TIE {
                             match self.compare_image(pi, chosen) {
                                 None => return false,
-                                Some(t) => out[pi] = t,
+                                Some(t) => *slot = t,
                             }
                         }
                     }
@@ -799,6 +822,68 @@ impl ColumnSearch {
         }
     }
 
+    /// A sharper bound on the first word length at which the incumbent has words (length
+    /// d + 3, no shorter words allowed): besides each column's own additions, every pair of new
+    /// columns y, y' adds `n_{d+1}(y·y')` words of that length. Each column is charged its own
+    /// additions plus half the sum of its r − 1 cheapest pairings (pairs that would create a
+    /// shorter word cannot occur in a better design and are left out), and the r smallest charges
+    /// bound the completion. Columns whose charge alone pushes the bound past the incumbent are
+    /// dropped. Charges are kept doubled to stay in integers.
+    fn pair_bound(&self, pattern: &[u64], next: &[u32], r: usize) -> PairBound {
+        let Some((best, _)) = &self.best else {
+            return PairBound::Unknown;
+        };
+        let Some(d) = best.iter().position(|&a| a > 0) else {
+            return PairBound::Unknown;
+        };
+        if pattern[..d].iter().any(|&a| a > 0) {
+            return PairBound::Cut;
+        }
+        let w = self.width;
+        let masks: Vec<usize> = next
+            .iter()
+            .map(|&c| self.columns[c as usize - self.q] as usize)
+            .collect();
+        // (charge, candidate); a candidate with too few allowed partners has no charge.
+        let mut charges: Vec<(u64, u32)> = Vec::with_capacity(masks.len());
+        let mut pairings: Vec<u64> = Vec::with_capacity(masks.len());
+        for (i, &y) in masks.iter().enumerate() {
+            pairings.clear();
+            for (j, &z) in masks.iter().enumerate() {
+                let row = &self.counts[(y ^ z) * w..(y ^ z) * w + w];
+                if i != j && row[1..=d].iter().all(|&n| n == 0) {
+                    pairings.push(u64::from(row[d + 1]));
+                }
+            }
+            if pairings.len() < r - 1 {
+                continue;
+            }
+            if pairings.len() > r - 1 {
+                pairings.select_nth_unstable(r - 2);
+            }
+            let own = u64::from(self.counts[y * w + d + 2]);
+            charges.push((2 * own + pairings[..r - 1].iter().sum::<u64>(), next[i]));
+        }
+        if charges.len() < r {
+            return PairBound::Cut;
+        }
+        charges.sort_unstable();
+        let limit = 2 * best[d];
+        let base = 2 * pattern[d];
+        let smallest: u64 = charges[..r - 1].iter().map(|c| c.0).sum();
+        if base + smallest + charges[r - 1].0 > limit {
+            return PairBound::Cut;
+        }
+        let mut kept: Vec<u32> = charges
+            .iter()
+            .enumerate()
+            .filter(|(i, c)| *i < r || base + smallest + c.0 <= limit)
+            .map(|(_, c)| c.1)
+            .collect();
+        kept.sort_unstable();
+        PairBound::Keep(kept)
+    }
+
     fn dfs(&mut self, chosen: &mut Vec<u32>, candidates: &[u32], taus: &[u32]) {
         self.nodes += 1;
         if self.out_of_time() {
@@ -847,6 +932,14 @@ impl ColumnSearch {
         };
         if r == 2 {
             self.best_pair(chosen, &pattern, &next);
+            return;
+        }
+        let next = match self.pair_bound(&pattern, &next, r) {
+            PairBound::Cut => return,
+            PairBound::Keep(kept) => kept,
+            PairBound::Unknown => next,
+        };
+        if next.len() < r {
             return;
         }
         let mut child_taus = Vec::with_capacity(taus.len());
