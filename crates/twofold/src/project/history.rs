@@ -19,6 +19,10 @@ use super::model::Project;
 /// How many steps undo goes back by default.
 pub const DEFAULT_UNDO_LIMIT: usize = 200;
 
+/// Most run records kept over all undo steps together: a huge sheet (the core plans up to 2^20
+/// runs) keeps fewer steps rather than exhausting memory. Always at least one step is kept.
+pub const UNDO_RUN_BUDGET: usize = 2_000_000;
+
 static NEXT_REVISION: AtomicU64 = AtomicU64::new(1);
 
 fn fresh_revision() -> u64 {
@@ -84,10 +88,7 @@ impl History {
             return Ok(());
         }
         let before = std::mem::replace(&mut self.project, next);
-        self.undo.push_back((before, self.revision));
-        if self.undo.len() > self.limit {
-            self.undo.pop_front();
-        }
+        self.push_undo(before, self.revision);
         self.redo.clear();
         self.revision = fresh_revision();
         Ok(())
@@ -131,10 +132,7 @@ impl History {
             return false;
         };
         let current = std::mem::replace(&mut self.project, project);
-        self.undo.push_back((current, self.revision));
-        if self.undo.len() > self.limit {
-            self.undo.pop_front();
-        }
+        self.push_undo(current, self.revision);
         self.revision = revision;
         true
     }
@@ -156,12 +154,20 @@ impl History {
             return;
         }
         let before = std::mem::replace(&mut self.project, project);
-        self.undo.push_back((before, self.revision));
-        if self.undo.len() > self.limit {
-            self.undo.pop_front();
-        }
+        self.push_undo(before, self.revision);
         self.redo.clear();
         self.revision = fresh_revision();
+    }
+
+    /// Keeps a state for undo, forgetting the oldest beyond the step limit or the run budget.
+    fn push_undo(&mut self, project: Project, revision: u64) {
+        self.undo.push_back((project, revision));
+        while self.undo.len() > self.limit
+            || (self.undo.len() > 1
+                && self.undo.iter().map(|(p, _)| p.runs.len()).sum::<usize>() > UNDO_RUN_BUDGET)
+        {
+            self.undo.pop_front();
+        }
     }
 }
 

@@ -135,6 +135,22 @@ impl Factor {
     }
 }
 
+impl Project {
+    /// The natural setting of every factor in run `run` (position in [`Project::runs`]), as set
+    /// at the bench; `None` for a run past the end, and per factor where the code has no setting
+    /// (a centre code on a categorical factor).
+    pub fn natural_settings(&self, run: usize) -> Option<Vec<Option<Level<'_>>>> {
+        let record = self.runs.get(run)?;
+        Some(
+            self.factors
+                .iter()
+                .zip(&record.levels)
+                .map(|(f, &c)| f.natural(c))
+                .collect(),
+        )
+    }
+}
+
 /// What the engineer chose for the design; the run sheet is generated from it.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct DesignSettings {
@@ -320,5 +336,45 @@ impl RunStatus {
     /// Whether the run is left out of the analysis.
     pub fn is_excluded(&self) -> bool {
         matches!(self, RunStatus::Excluded { .. })
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn coded_levels_to_natural_settings() {
+        let t = Factor::numeric("Temperature", "°C", 160.0, 200.0);
+        assert_eq!(t.natural(-1), Some(Level::Number(160.0)));
+        assert_eq!(t.natural(1), Some(Level::Number(200.0)));
+        assert_eq!(t.natural(0), Some(Level::Number(180.0)));
+        assert_eq!(t.natural(2), None);
+        let s = Factor::categorical("Supplier", "North", "South");
+        assert_eq!(s.natural(-1), Some(Level::Label("North")));
+        assert_eq!(s.natural(1), Some(Level::Label("South")));
+        assert_eq!(s.natural(0), None);
+        let mut p = Project::new("t");
+        p.factors = vec![t, s];
+        p.runs.push(RunRecord {
+            std_order: 1,
+            run_order: 1,
+            block: 1,
+            centre: false,
+            replicate: 1,
+            levels: vec![1, -1],
+            values: vec![],
+            status: RunStatus::ToDo,
+            note: String::new(),
+            entered_at: None,
+        });
+        assert_eq!(
+            p.natural_settings(0),
+            Some(vec![
+                Some(Level::Number(200.0)),
+                Some(Level::Label("North"))
+            ])
+        );
+        assert_eq!(p.natural_settings(1), None);
     }
 }
