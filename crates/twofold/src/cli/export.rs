@@ -1,9 +1,416 @@
-//! The `export` subcommand (being written).
+//! `twofold export`: the one-page summary, the printable blank run sheet, or the run sheet as CSV,
+//! from a project file, without a window.
+//!
+//! ```text
+//! twofold export PROJECT.ron --out FILE [--paper a4|letter] [--response NAME|N]
+//!                [--goal max|min|target:VALUE] [--date TEXT] [--run-sheet] [--overwrite]
+//! ```
+//!
+//! The extension of FILE picks the format: `.png` (300 dpi), `.svg`, `.pdf`, or `.csv` (the run
+//! sheet as data). An existing file is never replaced unless `--overwrite` is given. The page
+//! carries no clock time: the date is `--date`, or the date of the latest value entered.
 
 use std::io::Write;
+use std::path::{Path, PathBuf};
+
+use twofold_core::predict::Goal;
+
+use super::args::{self, ArgError};
+use super::{EXIT_BAD_INPUT, EXIT_FAILURE};
+use crate::export::{self, BuildOptions, Format, Paper};
+use crate::interchange;
+use crate::panels::results::ResponseResults;
+use crate::project::{Project, load_project};
+
+/// Usage text printed by `--help`.
+pub const USAGE: &str = "\
+usage: twofold export PROJECT.ron --out FILE [options]
+
+Writes the one-page summary of one response (FILE ending in .png, .svg or .pdf), the printable
+blank run sheet (--run-sheet), or the run sheet as CSV (FILE ending in .csv).
+
+options:
+  --out FILE            the file to write; its extension picks the format
+  --paper a4|letter     paper size (default a4; PNG 2480 x 3508 or 2550 x 3300 pixels, 300 dpi)
+  --response NAME|N     the response to summarise, by name or 1-based number (default: the first)
+  --goal G              what the best settings aim at: max, min or target:VALUE (default max)
+  --date TEXT           date printed on the page (default: the date of the latest value entered,
+                        if one was recorded; the clock is never read)
+  --run-sheet           write the blank run sheet to carry to the bench instead of the summary
+  --overwrite           replace FILE if it exists (otherwise an existing file is left alone)
+  -h, --help            print this help
+";
+
+const WITH_VALUE: &[&str] = &["--out", "--paper", "--response", "--goal", "--date"];
+const FLAGS: &[&str] = &["--run-sheet", "--overwrite", "--help"];
+
+/// What to write.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum Kind {
+    Summary,
+    RunSheet,
+    Csv,
+}
+
+/// The options of one call, checked.
+#[derive(Debug, Clone, PartialEq)]
+struct Request {
+    project: PathBuf,
+    out: PathBuf,
+    kind: Kind,
+    paper: Paper,
+    response: Option<String>,
+    goal: Goal,
+    date: Option<String>,
+    overwrite: bool,
+}
+
+/// Bad input, in words for the command line.
+#[derive(Debug, thiserror::Error)]
+enum InputError {
+    #[error(transparent)]
+    Args(#[from] ArgError),
+    #[error("{0}")]
+    Invalid(String),
+}
+
+fn invalid(msg: impl Into<String>) -> InputError {
+    InputError::Invalid(msg.into())
+}
+
+fn parse_goal(text: &str) -> Result<Goal, InputError> {
+    let t = text.trim().to_ascii_lowercase();
+    match t.as_str() {
+        "max" | "maximise" | "maximize" => Ok(Goal::Maximise),
+        "min" | "minimise" | "minimize" => Ok(Goal::Minimise),
+        _ => match t.strip_prefix("target:") {
+            Some(v) => v
+                .trim()
+                .parse::<f64>()
+                .ok()
+                .filter(|x| x.is_finite())
+                .map(Goal::Target)
+                .ok_or_else(|| invalid(format!("option `--goal`: `{v}` is not a number"))),
+            None => Err(invalid(format!(
+                "option `--goal`: `{text}` is not max, min or target:VALUE"
+            ))),
+        },
+    }
+}
+
+/// `None` means help was asked for.
+fn parse_request(argv: &[String]) -> Result<Option<Request>, InputError> {
+    if argv.iter().any(|a| a == "-h") {
+        return Ok(None);
+    }
+    let parsed = args::parse(argv, WITH_VALUE, FLAGS)?;
+    if parsed.flag("--help") {
+        return Ok(None);
+    }
+    let project = match parsed.positional.as_slice() {
+        [one] => PathBuf::from(one),
+        [] => {
+            return Err(invalid(
+                "no project file given (twofold export PROJECT.ron --out FILE)",
+            ));
+        }
+        [_, extra, ..] => return Err(ArgError::Unexpected(extra.clone()).into()),
+    };
+    let out = parsed.value("--out").map(PathBuf::from).ok_or_else(|| {
+        invalid("no output file given: add --out FILE (.png, .svg, .pdf or .csv)")
+    })?;
+    let run_sheet = parsed.flag("--run-sheet");
+    let ext = out
+        .extension()
+        .and_then(|e| e.to_str())
+        .map(str::to_ascii_lowercase)
+        .unwrap_or_default();
+    let kind = match (ext.as_str(), run_sheet) {
+        ("csv", _) => Kind::Csv,
+        ("png" | "svg" | "pdf", true) => Kind::RunSheet,
+        ("png" | "svg" | "pdf", false) => Kind::Summary,
+        _ => {
+            return Err(invalid(format!(
+                "`{}`: the output file must end in .png, .svg, .pdf or .csv",
+                out.display()
+            )));
+        }
+    };
+    let paper = match parsed.value("--paper") {
+        None => Paper::A4,
+        Some(p) => Paper::parse(p)
+            .ok_or_else(|| invalid(format!("option `--paper`: `{p}` is not a4 or letter")))?,
+    };
+    let goal = match parsed.value("--goal") {
+        None => Goal::Maximise,
+        Some(g) => parse_goal(g)?,
+    };
+    Ok(Some(Request {
+        project,
+        out,
+        kind,
+        paper,
+        response: parsed.value("--response").map(str::to_string),
+        goal,
+        date: parsed.value("--date").map(str::to_string),
+        overwrite: parsed.flag("--overwrite"),
+    }))
+}
+
+/// The response index named by `--response` (a name, any case, or a 1-based number).
+fn response_index(project: &Project, wanted: Option<&str>) -> Result<usize, InputError> {
+    if project.responses.is_empty() {
+        return Err(invalid(
+            "the project has no response to summarise: add one first",
+        ));
+    }
+    let Some(w) = wanted else {
+        return Ok(0);
+    };
+    let w = w.trim();
+    if let Some(i) = project
+        .responses
+        .iter()
+        .position(|r| r.name.trim().eq_ignore_ascii_case(w))
+    {
+        return Ok(i);
+    }
+    if let Ok(n) = w.parse::<usize>()
+        && (1..=project.responses.len()).contains(&n)
+    {
+        return Ok(n - 1);
+    }
+    let names: Vec<String> = project
+        .responses
+        .iter()
+        .map(|r| format!("“{}”", r.name))
+        .collect();
+    Err(invalid(format!(
+        "no response “{w}” in the project (it has {})",
+        names.join(", ")
+    )))
+}
+
+fn human_size(bytes: usize) -> String {
+    if bytes >= 1024 * 1024 {
+        format!("{:.1} MB", bytes as f64 / (1024.0 * 1024.0))
+    } else if bytes >= 1024 {
+        format!("{} kB", bytes.div_ceil(1024))
+    } else {
+        format!("{bytes} bytes")
+    }
+}
 
 /// Runs `twofold export` with the arguments after the subcommand name.
-pub fn run(_args: &[String], _out: &mut dyn Write, err: &mut dyn Write) -> i32 {
-    let _ = writeln!(err, "error: `export` is not available yet");
-    super::EXIT_FAILURE
+pub fn run(argv: &[String], out: &mut dyn Write, err: &mut dyn Write) -> i32 {
+    let request = match parse_request(argv) {
+        Ok(Some(r)) => r,
+        Ok(None) => {
+            let _ = write!(out, "{USAGE}");
+            return 0;
+        }
+        Err(e) => {
+            let _ = writeln!(err, "error: {e}");
+            return EXIT_BAD_INPUT;
+        }
+    };
+    let project = match load_project(&request.project) {
+        Ok(p) => p,
+        Err(e) => {
+            let _ = writeln!(err, "error: {e}");
+            return EXIT_BAD_INPUT;
+        }
+    };
+    match execute(&request, &project) {
+        Ok(lines) => {
+            for l in lines {
+                let _ = writeln!(out, "{l}");
+            }
+            0
+        }
+        Err((code, message)) => {
+            let _ = writeln!(err, "error: {message}");
+            code
+        }
+    }
+}
+
+/// Refuses to replace existing files unless asked to.
+fn check_targets(paths: &[PathBuf], overwrite: bool) -> Result<(), (i32, String)> {
+    if overwrite {
+        return Ok(());
+    }
+    match paths.iter().find(|p| p.exists()) {
+        Some(p) => Err((
+            EXIT_BAD_INPUT,
+            format!(
+                "`{}` exists already; pass --overwrite to replace it",
+                p.display()
+            ),
+        )),
+        None => Ok(()),
+    }
+}
+
+fn execute(request: &Request, project: &Project) -> Result<Vec<String>, (i32, String)> {
+    let bad = |e: InputError| (EXIT_BAD_INPUT, e.to_string());
+    let failed = |e: export::ExportError| (EXIT_FAILURE, e.to_string());
+    match request.kind {
+        Kind::Csv => {
+            check_targets(std::slice::from_ref(&request.out), request.overwrite)?;
+            let bytes = interchange::write_run_sheet_csv(project, &request.out)
+                .map_err(|e| (EXIT_FAILURE, e.to_string()))?;
+            Ok(vec![format!(
+                "wrote {} (run sheet, {} runs, CSV, {})",
+                request.out.display(),
+                project.runs.len(),
+                human_size(bytes)
+            )])
+        }
+        Kind::RunSheet => {
+            if project.runs.is_empty() {
+                return Err((
+                    EXIT_BAD_INPUT,
+                    "the project has no runs yet: generate the run sheet from the design first"
+                        .into(),
+                ));
+            }
+            let sheet = export::run_sheet_input(project, request.date.clone());
+            let pages = export::run_sheet::render_pages(&sheet, request.paper);
+            let format = Format::from_path(&request.out).map_err(failed)?;
+            let files = if format == Format::Pdf {
+                1
+            } else {
+                pages.len()
+            };
+            check_targets(&export::page_paths(&request.out, files), request.overwrite)?;
+            let title = export::run_sheet::document_title(&sheet);
+            let report = export::write_pages(
+                &pages,
+                request.paper,
+                &request.out,
+                &title,
+                &|_| {},
+                &|| false,
+            )
+            .map_err(failed)?;
+            Ok(report_lines(&report, "blank run sheet", request.paper))
+        }
+        Kind::Summary => {
+            let response = response_index(project, request.response.as_deref()).map_err(bad)?;
+            check_targets(std::slice::from_ref(&request.out), request.overwrite)?;
+            let results = ResponseResults::compute(project, response);
+            let options = BuildOptions {
+                date: request.date.clone(),
+                goal: request.goal,
+            };
+            let report =
+                export::export_summary(project, &results, &request.out, request.paper, &options)
+                    .map_err(failed)?;
+            let what = format!("summary of {}", project.responses[response].name);
+            Ok(report_lines(&report, &what, request.paper))
+        }
+    }
+}
+
+fn report_lines(report: &export::ExportReport, what: &str, paper: Paper) -> Vec<String> {
+    let pages = if report.pages == 1 {
+        "1 page".to_string()
+    } else {
+        format!("{} pages", report.pages)
+    };
+    let format = report.format.extension().to_ascii_uppercase();
+    if report.paths.len() == 1 {
+        let path = report
+            .paths
+            .first()
+            .map(|p| p.display().to_string())
+            .unwrap_or_default();
+        return vec![format!(
+            "wrote {path} ({what}, {pages}, {}, {format}, {})",
+            paper.name(),
+            human_size(report.bytes)
+        )];
+    }
+    let mut lines = vec![format!(
+        "{what}: {pages}, {}, {format}, one file per page:",
+        paper.name()
+    )];
+    lines.extend(
+        report
+            .paths
+            .iter()
+            .map(|p: &PathBuf| format!("wrote {}", Path::new(p).display())),
+    );
+    lines
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn s(v: &[&str]) -> Vec<String> {
+        v.iter().map(|x| x.to_string()).collect()
+    }
+
+    #[test]
+    fn reads_the_options() {
+        let r = parse_request(&s(&[
+            "p.ron",
+            "--out",
+            "x.PDF",
+            "--paper",
+            "letter",
+            "--goal",
+            "target:12.5",
+            "--date=2025-01-02",
+        ]))
+        .unwrap()
+        .unwrap();
+        assert_eq!(r.kind, Kind::Summary);
+        assert_eq!(r.paper, Paper::Letter);
+        assert_eq!(r.goal, Goal::Target(12.5));
+        assert_eq!(r.date.as_deref(), Some("2025-01-02"));
+        let r = parse_request(&s(&["p.ron", "--out", "x.png", "--run-sheet"]))
+            .unwrap()
+            .unwrap();
+        assert_eq!(r.kind, Kind::RunSheet);
+        assert!(parse_request(&s(&["-h"])).unwrap().is_none());
+    }
+
+    #[test]
+    fn bad_input_is_named() {
+        let cases: &[(&[&str], &str)] = &[
+            (&["--out", "x.pdf"], "no project file"),
+            (&["p.ron"], "no output file"),
+            (
+                &["p.ron", "--out", "x.jpg"],
+                "must end in .png, .svg, .pdf or .csv",
+            ),
+            (
+                &["p.ron", "--out", "x.pdf", "--paper", "a5"],
+                "`a5` is not a4 or letter",
+            ),
+            (
+                &["p.ron", "--out", "x.pdf", "--goal", "big"],
+                "not max, min or target",
+            ),
+            (
+                &["p.ron", "--out", "x.pdf", "--goal", "target:x"],
+                "`x` is not a number",
+            ),
+            (
+                &["p.ron", "--out", "x.pdf", "--colour"],
+                "unknown option `--colour`",
+            ),
+            (
+                &["p.ron", "q.ron", "--out", "x.pdf"],
+                "unexpected argument `q.ron`",
+            ),
+        ];
+        for (argv, want) in cases {
+            let e = parse_request(&s(argv)).unwrap_err().to_string();
+            assert!(e.contains(want), "{argv:?}: {e}");
+        }
+    }
 }

@@ -503,6 +503,54 @@ fn interaction_panels(
     (panels.into_iter().map(|(_, p)| p).collect(), note)
 }
 
+/// The printable blank run sheet of `project`: every run in run order with its settings in
+/// natural units and a box per response. `date` is printed as given (never the clock).
+pub fn run_sheet_input(project: &Project, date: Option<String>) -> super::run_sheet::RunSheet {
+    use super::run_sheet::{RunSheet, SheetFactor, SheetResponse, SheetRow};
+    RunSheet {
+        title: project.name.clone(),
+        date: date.unwrap_or_default(),
+        factors: project
+            .factors
+            .iter()
+            .enumerate()
+            .map(|(i, f)| SheetFactor {
+                letter: letter(i),
+                name: f.name.clone(),
+                unit: f.unit.clone(),
+                levels: [level_value(f, -1).text(), level_value(f, 1).text()],
+            })
+            .collect(),
+        responses: project
+            .responses
+            .iter()
+            .map(|r| SheetResponse {
+                name: r.name.clone(),
+                unit: r.unit.clone(),
+            })
+            .collect(),
+        rows: project
+            .runs
+            .iter()
+            .map(|r| SheetRow {
+                run_order: r.run_order,
+                std_order: r.std_order,
+                block: r.block,
+                centre: r.centre,
+                settings: project
+                    .factors
+                    .iter()
+                    .enumerate()
+                    .map(|(i, f)| level_value(f, r.levels.get(i).copied().unwrap_or(0)).text())
+                    .collect(),
+            })
+            .collect(),
+        seed: project.design.randomize.then_some(project.design.seed),
+        tool: tool_version(),
+        data_hash: project_hash(project),
+    }
+}
+
 /// Lays out the summary of response `results.response` and writes it to `path` in the format of
 /// its extension (the window calls this after the engineer confirmed the file in the save
 /// dialog; for a worker thread use [`super::ExportJob::summary`] with [`summary_input`]).
@@ -636,6 +684,17 @@ mod tests {
             &BuildOptions::default(),
         );
         assert_eq!(derived.date, "values entered up to 2025-03-09");
+    }
+
+    #[test]
+    fn run_sheet_lists_every_run_with_natural_settings() {
+        let p = demo_project();
+        let sheet = run_sheet_input(&p, None);
+        assert_eq!(sheet.rows.len(), p.runs.len());
+        let centre = sheet.rows.iter().find(|r| r.centre).unwrap();
+        assert_eq!(centre.settings[0], "190", "midpoint of 180 and 200");
+        assert_eq!(sheet.responses.len(), 2);
+        assert_eq!(sheet.seed, Some(p.design.seed));
     }
 
     #[test]

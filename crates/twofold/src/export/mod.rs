@@ -23,7 +23,7 @@ pub mod run_sheet;
 pub mod summary;
 pub mod svg;
 
-pub use build::{BuildOptions, export_summary, summary_input};
+pub use build::{BuildOptions, export_summary, run_sheet_input, summary_input};
 pub use input::SummaryInput;
 pub use job::{ExportJob, Stage};
 pub use page::Paper;

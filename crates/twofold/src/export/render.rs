@@ -89,34 +89,48 @@ pub fn pdf(pages: &[String], title: &str) -> Result<Vec<u8>, ExportError> {
     let info_id = alloc.bump();
     let mut doc = Pdf::new();
     let mut page_ids = Vec::with_capacity(pages.len());
-    let svg_name = Name(b"P1");
     for svg in pages {
-        let tree = parse(svg)?;
-        let (chunk, root) = svg2pdf::to_chunk(&tree, svg2pdf::ConversionOptions::default())
-            .map_err(|e| ExportError::Render(format!("pdf conversion failed: {e}")))?;
-        let mut map = HashMap::new();
-        let chunk = chunk.renumber(|old| *map.entry(old).or_insert_with(|| alloc.bump()));
-        let root = *map
-            .get(&root)
-            .ok_or_else(|| ExportError::Render("pdf conversion lost the page".to_string()))?;
         let page_id = alloc.bump();
         let content_id = alloc.bump();
-        // usvg sizes are CSS pixels (96 per inch); PDF pages are in points (72 per inch).
-        let size = tree.size();
-        let (w, h) = (size.width() * 0.75, size.height() * 0.75);
+        let mut content = Content::new();
+        let mut names = Vec::new();
+        let mut size = None;
+        for (i, layer) in font_layers(svg).iter().enumerate() {
+            let tree = parse(layer)?;
+            let (chunk, root) = svg2pdf::to_chunk(&tree, svg2pdf::ConversionOptions::default())
+                .map_err(|e| ExportError::Render(format!("pdf conversion failed: {e}")))?;
+            let mut map = HashMap::new();
+            let chunk = chunk.renumber(|old| *map.entry(old).or_insert_with(|| alloc.bump()));
+            let root = *map
+                .get(&root)
+                .ok_or_else(|| ExportError::Render("pdf conversion lost the page".to_string()))?;
+            // usvg sizes are CSS pixels (96 per inch); PDF pages are in points (72 per inch).
+            let (w, h) = (tree.size().width() * 0.75, tree.size().height() * 0.75);
+            size.get_or_insert((w, h));
+            let name = format!("P{}", i + 1);
+            // The chunk's root object is one point square; scale it to the page.
+            content
+                .save_state()
+                .transform([w, 0.0, 0.0, h, 0.0, 0.0])
+                .x_object(Name(name.as_bytes()))
+                .restore_state();
+            names.push((name, root));
+            doc.extend(&chunk);
+        }
+        let (w, h) = size.ok_or_else(|| ExportError::Render("an empty page".to_string()))?;
         let mut page = doc.page(page_id);
         page.media_box(Rect::new(0.0, 0.0, w, h));
         page.parent(tree_id);
         page.contents(content_id);
-        page.resources().x_objects().pair(svg_name, root);
+        {
+            let mut resources = page.resources();
+            let mut objects = resources.x_objects();
+            for (name, root) in &names {
+                objects.pair(Name(name.as_bytes()), *root);
+            }
+        }
         page.finish();
-        let mut content = Content::new();
-        // The chunk's root object is one point square; scale it to the page.
-        content
-            .transform([w, 0.0, 0.0, h, 0.0, 0.0])
-            .x_object(svg_name);
         doc.stream(content_id, &content.finish());
-        doc.extend(&chunk);
         page_ids.push(page_id);
     }
     doc.catalog(catalog_id).pages(tree_id);
@@ -127,6 +141,37 @@ pub fn pdf(pages: &[String], title: &str) -> Result<Vec<u8>, ExportError> {
         .title(TextStr(title))
         .producer(TextStr(concat!("Twofold ", env!("CARGO_PKG_VERSION"))));
     Ok(doc.finish())
+}
+
+/// Splits a page written by [`super::svg::Svg`] into a layer with everything but bold text and a
+/// layer with only the bold text (drawn on top, which is where text is anyway).
+///
+/// Why: `svg2pdf` writes the fonts of one conversion in hash-map order, so a page that uses two
+/// faces could come out with its font objects in either order and the same project would not
+/// give the same PDF bytes. One face per conversion makes the output deterministic. The split
+/// relies on the writer putting every element on a line of its own, which it always does.
+pub fn font_layers(svg: &str) -> Vec<String> {
+    let is_bold_text = |l: &str| l.starts_with("<text ") && l.contains(" font-weight=\"bold\"");
+    if !svg.lines().any(is_bold_text) {
+        return vec![svg.to_string()];
+    }
+    let mut base = String::with_capacity(svg.len());
+    let mut bold = String::new();
+    for line in svg.lines() {
+        let frame = line.starts_with("<?xml") || line.starts_with("<svg ") || line == "</svg>";
+        if is_bold_text(line) {
+            bold.push_str(line);
+            bold.push('\n');
+        } else {
+            base.push_str(line);
+            base.push('\n');
+            if frame {
+                bold.push_str(line);
+                bold.push('\n');
+            }
+        }
+    }
+    vec![base, bold]
 }
 
 /// Inserts a `pHYs` chunk after the header so viewers and printers know the image is `dpi` dots
@@ -230,6 +275,28 @@ mod tests {
         // The CRC of the ASCII text "IEND" with no data is the well-known 0xAE426082 that ends
         // every PNG file.
         assert_eq!(crc32(b"IEND"), 0xAE42_6082);
+    }
+
+    #[test]
+    fn pdf_bytes_repeat_for_the_same_pages() {
+        let input = crate::export::SummaryInput {
+            title: "Bold title".into(),
+            ..Default::default()
+        };
+        let svg = crate::export::summary_svg(&input, crate::export::Paper::A4);
+        let layers = font_layers(&svg);
+        assert_eq!(layers.len(), 2);
+        assert!(
+            layers[1].contains(">Bold title</text>") && !layers[0].contains(">Bold title</text>")
+        );
+        let first = pdf(&[svg.clone()], "t").unwrap();
+        // The fonts of a two-face conversion come out in hash order; ten tries would catch it.
+        for _ in 0..10 {
+            assert!(
+                pdf(&[svg.clone()], "t").unwrap() == first,
+                "PDF bytes differ between runs"
+            );
+        }
     }
 
     #[test]

@@ -80,6 +80,9 @@ pub fn document_title(sheet: &RunSheet) -> String {
 /// Height of a row: 7.5 mm, room to write a number by hand.
 const ROW_H: f64 = 7.5 / 25.4 * super::page::DPI;
 
+/// Height of the header row: room for a response name and unit on two lines.
+const HEAD_H: f64 = ROW_H * 1.5;
+
 struct Layout {
     size: f64,
     /// (header, width, is a response box).
@@ -145,7 +148,15 @@ fn layout(sheet: &RunSheet, width: f64) -> Layout {
             } else {
                 format!("{} ({})", r.name, r.unit)
             };
-            let w = head.width(&header).clamp(size * 7.0, size * 12.0) + pad;
+            // Wide enough for the header on two lines and for a handwritten number.
+            let widest_word = header
+                .split_whitespace()
+                .map(|w| head.width(w))
+                .fold(0.0, f64::max);
+            let w = widest_word
+                .max(head.width(&header) * 0.55)
+                .clamp(size * 7.0, size * 12.0)
+                + pad;
             columns.push((header, w, ColumnKind::Response));
         }
         let used: f64 = columns.iter().map(|c| c.1).sum();
@@ -189,9 +200,7 @@ pub fn render_pages(sheet: &RunSheet, paper: Paper) -> Vec<String> {
     };
     let footer_h = sizes::SMALL * sizes::LEADING * 3.0;
     let table_top = m + header_h;
-    let per_page = (((h - m - footer_h - table_top) / ROW_H).floor() as usize)
-        .saturating_sub(1)
-        .max(1);
+    let per_page = (((h - m - footer_h - table_top - HEAD_H) / ROW_H).floor() as usize).max(1);
     let pages = rows.len().div_ceil(per_page).max(1);
     let mut out = Vec::with_capacity(pages);
     for p in 0..pages {
@@ -283,27 +292,37 @@ fn table(svg: &mut Svg, layout: &Layout, rows: &[SheetRow], x: f64, top: f64) {
     let head = TextStyle::new(size).bold();
     let cell = TextStyle::new(size);
     let total_w: f64 = layout.columns.iter().map(|c| c.1).sum();
-    svg.rect(x, top, total_w, ROW_H, Some(SHADE), Some((INK, 2.0)));
+    svg.rect(x, top, total_w, HEAD_H, Some(SHADE), Some((INK, 2.0)));
     let mut cx = x;
     for (header, width, kind) in &layout.columns {
-        let text = ellipsize(header, head, width - size * 0.6);
-        let baseline = top + ROW_H * 0.5 + size * 0.36;
-        match kind {
-            ColumnKind::Notes | ColumnKind::Response => {
-                svg.text(cx + size * 0.3, baseline, &text, head)
+        // Up to two lines, the second shortened if the name is longer still.
+        let mut lines = super::page::wrap(header, head, width - size * 0.6);
+        if lines.len() > 2 {
+            let rest = lines[1..].join(" ");
+            lines.truncate(1);
+            lines.push(ellipsize(&rest, head, width - size * 0.6));
+        }
+        let leading = size * 1.15;
+        let first = top + HEAD_H / 2.0 - (lines.len() as f64 - 1.0) * leading / 2.0 + size * 0.36;
+        for (i, line) in lines.iter().enumerate() {
+            let baseline = first + i as f64 * leading;
+            match kind {
+                ColumnKind::Notes | ColumnKind::Response => {
+                    svg.text(cx + size * 0.3, baseline, line, head)
+                }
+                _ => svg.text(
+                    cx + width / 2.0,
+                    baseline,
+                    line,
+                    head.anchor(Anchor::Middle),
+                ),
             }
-            _ => svg.text(
-                cx + width / 2.0,
-                baseline,
-                &text,
-                head.anchor(Anchor::Middle),
-            ),
         }
         cx += width;
     }
     let mut previous_block = None;
     for (i, row) in rows.iter().enumerate() {
-        let y = top + ROW_H * (i as f64 + 1.0);
+        let y = top + HEAD_H + ROW_H * i as f64;
         if i % 2 == 1 {
             svg.rect(x, y, total_w, ROW_H, Some("#f4f4f4"), None);
         }
@@ -370,7 +389,7 @@ fn table(svg: &mut Svg, layout: &Layout, rows: &[SheetRow], x: f64, top: f64) {
         }
         previous_block = Some(row.block);
     }
-    let bottom = top + ROW_H * (rows.len() as f64 + 1.0);
+    let bottom = top + HEAD_H + ROW_H * rows.len() as f64;
     // Vertical rules between columns.
     let mut cx = x;
     for (_, width, _) in &layout.columns {
