@@ -61,6 +61,7 @@ const GRID: &[(usize, &[(usize, bool)])] = &[
             (14, false),
             (15, false),
             (16, false),
+            (17, false),
             (18, true),
             (20, true),
         ],

@@ -39,8 +39,8 @@
 //!   basic factors (N ≤ 128) all q! relabellings, above that the transpositions of two basic
 //!   factors. Any set of relabellings is safe: the smallest member of every isomorphism class
 //!   survives the test at every step, so the optimum is never lost.
-//! * **Many runs, few generators.** Beyond 2^16 runs the search works on the other side of the
-//!   duality: the defining contrast subgroup is a binary linear code of length k and dimension p
+//! * **Many runs, few generators.** Beyond 2^16 runs, and from 256 runs on for up to three
+//!   generators, the search works on the other side of the duality: the defining contrast subgroup is a binary linear code of length k and dimension p
 //!   whose weight distribution is the word-length pattern (MacWilliams & Sloane 1977, *The Theory
 //!   of Error-Correcting Codes*, ch. 1). In systematic form each basic factor is a vector of p bits
 //!   saying which generators contain it; the search chooses those q vectors (repeats allowed) in
@@ -247,16 +247,20 @@ pub fn design_options(
             now + share
         });
         let runs = 1usize << q;
-        let raw = search_columns(factor_count, q, deadline);
-        let design = design_from_columns(factor_count, &raw.columns)?;
-        let pattern: Vec<usize> = raw.pattern.iter().map(|&a| a as usize).collect();
+        let found = minimum_aberration_until(factor_count, runs, deadline)?;
+        let columns: Vec<u32> = found
+            .design
+            .generators()
+            .iter()
+            .map(|g| g.word.term.bits())
+            .collect();
         out.push(DesignOption {
             runs,
-            resolution: resolution_of(&pattern),
-            clear_two_factor_interactions: clear_two_factor_interaction_count(q, &raw.columns),
-            word_length_pattern: pattern,
-            generators: design.generators().to_vec(),
-            proven: raw.proven,
+            resolution: resolution_of(&found.word_length_pattern),
+            clear_two_factor_interactions: clear_two_factor_interaction_count(q, &columns),
+            generators: found.design.generators().to_vec(),
+            word_length_pattern: found.word_length_pattern,
+            proven: found.proven_minimum_aberration,
             ofat_equivalent_runs: ofat::equivalent_runs(factor_count, runs),
         });
     }
@@ -347,6 +351,9 @@ struct RawOutcome {
 /// factorial (its tables have 2^q entries per word length).
 const PRIMAL_MAX_BASIC: usize = 16;
 
+/// Longest candidate list for which [`ColumnSearch::pair_bound`] is worth its quadratic cost.
+const PAIR_BOUND_MAX_CANDIDATES: usize = 1024;
+
 /// Largest q for which the isomorphism test uses every relabelling of the basic factors (q! of
 /// them: 5040 at q = 7).
 const ALL_RELABELLINGS_MAX_BASIC: usize = 7;
@@ -362,7 +369,9 @@ fn search_columns(k: usize, q: usize, deadline: Option<Instant>) -> RawOutcome {
             nodes: 0,
         };
     }
-    if q <= PRIMAL_MAX_BASIC {
+    // The code side is exact and quick for up to three generators; the column side keeps the
+    // tidier generators of the small designs.
+    if q <= PRIMAL_MAX_BASIC && (q <= ALL_RELABELLINGS_MAX_BASIC || p > 3) {
         ColumnSearch::new(k, q, deadline).run()
     } else {
         CodeSearch::new(k, q, deadline).run()
@@ -421,7 +430,7 @@ enum PairBound {
     Cut,
     /// The candidates that may still take part in a better completion (in search order).
     Keep(Vec<u32>),
-    /// No incumbent yet.
+    /// No incumbent yet, or too many candidates to try.
     Unknown,
 }
 
@@ -833,6 +842,9 @@ impl ColumnSearch {
         let Some((best, _)) = &self.best else {
             return PairBound::Unknown;
         };
+        if next.len() > PAIR_BOUND_MAX_CANDIDATES {
+            return PairBound::Unknown;
+        }
         let Some(d) = best.iter().position(|&a| a > 0) else {
             return PairBound::Unknown;
         };
@@ -934,6 +946,7 @@ impl ColumnSearch {
             self.best_pair(chosen, &pattern, &next);
             return;
         }
+        // The pair bound costs the square of the candidate count: skip it for long lists.
         let next = match self.pair_bound(&pattern, &next, r) {
             PairBound::Cut => return,
             PairBound::Keep(kept) => kept,
