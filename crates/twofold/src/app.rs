@@ -352,7 +352,9 @@ impl TwofoldApp {
     pub fn apply(&mut self, cmd: Command) {
         match cmd {
             Command::Edit(edit) => self.apply_edit(edit),
-            Command::Group(edits) => self.apply_group(edits),
+            Command::Group(edits) => {
+                self.apply_group(edits);
+            }
             Command::ChangeDesign(design) => {
                 let p = self.project();
                 let typed = p.typed_value_count();
@@ -364,7 +366,10 @@ impl TwofoldApp {
                         typed,
                     });
                 } else {
-                    self.apply_group(vec![Edit::SetDesign(design), Edit::RegenerateRuns]);
+                    if self.apply_group(vec![Edit::SetDesign(design), Edit::RegenerateRuns]) {
+                        // The next thing to do is to run the experiment.
+                        self.step = Step::Runs;
+                    }
                 }
             }
             Command::SelectResponse(r) => {
@@ -397,20 +402,23 @@ impl TwofoldApp {
         }
     }
 
-    fn apply_group(&mut self, edits: Vec<Edit>) {
+    /// Applies `edits` as one undo step, all or none; `false` (with the error shown) when one
+    /// of them cannot be applied.
+    fn apply_group(&mut self, edits: Vec<Edit>) -> bool {
         self.coalesce = None;
         if edits.is_empty() {
-            return;
+            return true;
         }
         let mut next = self.project().clone();
         for edit in edits {
             if let Err(e) = next.apply(edit) {
                 // All or nothing: the project is left as it was.
                 self.modal = Some(Modal::Error(e.to_string()));
-                return;
+                return false;
             }
         }
         self.history.replace(next);
+        true
     }
 
     /// Undoes the last step.
@@ -861,16 +869,22 @@ impl TwofoldApp {
                         ui.colored_label(pal.error, format!("✖ {errors} to fix"));
                     }
                     if warnings > 0 {
-                        ui.colored_label(pal.warn, format!("⚠ {warnings} warnings"))
-                            .on_hover_text(
-                                self.derived
-                                    .problems
-                                    .iter()
-                                    .filter(|p| p.severity == Severity::Warning)
-                                    .map(|p| p.message.clone())
-                                    .collect::<Vec<_>>()
-                                    .join("\n"),
-                            );
+                        ui.colored_label(
+                            pal.warn,
+                            format!(
+                                "⚠ {warnings} warning{}",
+                                if warnings == 1 { "" } else { "s" }
+                            ),
+                        )
+                        .on_hover_text(
+                            self.derived
+                                .problems
+                                .iter()
+                                .filter(|p| p.severity == Severity::Warning)
+                                .map(|p| p.message.clone())
+                                .collect::<Vec<_>>()
+                                .join("\n"),
+                        );
                     }
                     if let Some(n) = &self.notice {
                         ui.weak(n);
@@ -903,7 +917,10 @@ impl TwofoldApp {
                 let p = self.history.project();
                 for (i, step) in Step::ALL.iter().enumerate() {
                     let hint = match step {
-                        Step::Factors => format!("{} factors", p.factors.len()),
+                        Step::Factors => match p.factors.len() {
+                            1 => "1 factor".to_string(),
+                            n => format!("{n} factors"),
+                        },
                         Step::Design => {
                             if p.runs.is_empty() {
                                 "not chosen".into()
@@ -976,10 +993,12 @@ impl TwofoldApp {
                         if ui.button("Change the design").clicked() {
                             let design = design.clone();
                             then = Some(Box::new(move |app: &mut TwofoldApp| {
-                                app.apply_group(vec![
+                                if app.apply_group(vec![
                                     Edit::SetDesign(design),
                                     Edit::RegenerateRuns,
-                                ]);
+                                ]) {
+                                    app.step = Step::Runs;
+                                }
                                 app.refresh();
                             }));
                             close = true;
@@ -1029,7 +1048,7 @@ impl TwofoldApp {
                     ui.label(format!(
                         "A recovery copy of “{}” from {} holds changes that are not in {}.",
                         offer.project.name,
-                        offer.written_at,
+                        readable_time(&offer.written_at),
                         self.path
                             .as_ref()
                             .map_or("any saved file".to_string(), |p| p.display().to_string())
@@ -1118,6 +1137,14 @@ fn save_project(project: &Project, path: &Path) -> Result<(), String> {
 
 fn load_project(path: &Path) -> Result<Project, String> {
     crate::project::load_project(path).map_err(|e| e.to_string())
+}
+
+/// `2025-03-04T10:22:05Z` → `2025-03-04 10:22 UTC`; other text is shown as it is.
+fn readable_time(iso: &str) -> String {
+    match (iso.get(0..10), iso.get(11..16), iso.ends_with('Z')) {
+        (Some(d), Some(t), true) => format!("{d} {t} UTC"),
+        _ => iso.to_string(),
+    }
 }
 
 /// The current time in UTC as ISO-8601 text (`2025-03-04T10:22:05Z`).
@@ -1225,6 +1252,11 @@ mod tests {
         assert_eq!(iso_from_unix(0), "1970-01-01T00:00:00Z");
         assert_eq!(iso_from_unix(951_868_800), "2000-03-01T00:00:00Z");
         assert_eq!(iso_from_unix(1_709_210_096), "2024-02-29T12:34:56Z");
+        assert_eq!(
+            readable_time("2024-02-29T12:34:56Z"),
+            "2024-02-29 12:34 UTC"
+        );
+        assert_eq!(readable_time("yesterday"), "yesterday");
     }
 
     #[test]

@@ -287,6 +287,8 @@ fn visuals(choice: ThemeChoice, pal: &Palette) -> egui::Visuals {
     v.widgets.inactive.weak_bg_fill = widget;
     v.widgets.inactive.bg_fill = widget;
     v.widgets.inactive.fg_stroke = Stroke::new(1.0, pal.ink);
+    // A visible edge on every control: radio buttons and check boxes must be found at a glance.
+    v.widgets.inactive.bg_stroke = Stroke::new(1.0, stroke);
     v.widgets.hovered.weak_bg_fill = hover;
     v.widgets.hovered.bg_fill = hover;
     v.widgets.hovered.bg_stroke = Stroke::new(1.0, pal.accent);

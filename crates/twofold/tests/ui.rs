@@ -371,3 +371,56 @@ fn every_step_of_the_demo_project_draws_with_real_glyphs_and_named_widgets() {
     h.run();
     assert!(h.query_by_label("Analysis of variance").is_some());
 }
+
+#[test]
+fn after_enter_the_card_keeps_the_keyboard_for_the_next_run() {
+    let mut h = harness(TwofoldApp::new_for_test(three_factor_project()));
+    choose_design(&mut h, 8);
+    h.state_mut().set_step(Step::Runs);
+    h.run();
+    type_next(&mut h, "Gloss", "71.5");
+    // No click: the field of the next run already has the keyboard.
+    h.get_by_label("next run Gloss").type_text("64");
+    h.run();
+    h.key_press(egui::Key::Enter);
+    h.run();
+    let p = h.state().project();
+    let second = p.runs.iter().find(|r| r.run_order == 2).unwrap();
+    assert_eq!(second.values[0].text, "64");
+}
+
+#[test]
+fn in_the_grid_tab_moves_across_responses_and_enter_to_the_next_unfinished_run() {
+    let mut p = three_factor_project();
+    p.responses.push(ResponseDef::new("Haze", "%"));
+    let mut h = harness(TwofoldApp::new_for_test(p));
+    choose_design(&mut h, 8);
+    h.state_mut().set_step(Step::Runs);
+    h.run();
+    h.get_by_label("value run 1 Gloss").focus();
+    h.run();
+    h.get_by_label("value run 1 Gloss").type_text("80");
+    h.run();
+    h.key_press(egui::Key::Tab);
+    h.run();
+    // The keyboard is now in the Haze cell of the same run.
+    h.get_by_label("value run 1 Haze").type_text("2.5");
+    h.run();
+    h.key_press(egui::Key::Enter);
+    h.run();
+    h.get_by_label("value run 2 Haze").type_text("3.1");
+    h.run();
+    h.key_press(egui::Key::Enter);
+    h.run();
+    let p = h.state().project();
+    let run = |n: u32| p.runs.iter().find(|r| r.run_order == n).unwrap();
+    assert_eq!(run(1).values[0].text, "80");
+    assert_eq!(run(1).values[1].text, "2.5");
+    assert_eq!(run(1).status, twofold_app::project::RunStatus::Done);
+    assert_eq!(run(2).values[1].text, "3.1");
+    assert_eq!(
+        run(2).status,
+        twofold_app::project::RunStatus::ToDo,
+        "Gloss still missing"
+    );
+}

@@ -92,11 +92,13 @@ pub fn nice_ticks(lo: f64, hi: f64, target: usize) -> Vec<f64> {
 
 /// A tick label with as few decimals as the step needs.
 pub fn tick_label(v: f64, step: f64) -> String {
-    let decimals = if step >= 1.0 {
-        0
-    } else {
-        (-step.log10().floor()) as usize + usize::from(step.log10().fract().abs() > 0.35)
-    };
+    // As many decimals as the step needs to be written exactly (2.5 needs one, 0.25 two).
+    let decimals = (0..7)
+        .find(|&d| {
+            let scaled = step * 10f64.powi(d);
+            (scaled - scaled.round()).abs() < 1e-6 * scaled.abs().max(1.0)
+        })
+        .unwrap_or(6) as usize;
     let s = format!("{v:.decimals$}");
     if s.starts_with('-') && s.trim_start_matches(['-', '0', '.']).is_empty() {
         // "-0.0" reads as a bug to a reader.
@@ -310,6 +312,9 @@ mod tests {
         assert_eq!(fmt_num(f64::NAN, 3), "—");
         assert_eq!(tick_label(-0.0, 0.5), "0.0");
         assert_eq!(tick_label(-2.0, 1.0), "\u{2212}2");
+        assert_eq!(tick_label(2.5, 2.5), "2.5");
+        assert_eq!(tick_label(0.75, 0.25), "0.75");
+        assert_eq!(tick_label(20.0, 5.0), "20");
     }
 
     #[test]

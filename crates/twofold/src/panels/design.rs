@@ -298,7 +298,8 @@ fn generators_row(
             .add(
                 egui::TextEdit::singleline(&mut pane.generator_text)
                     .hint_text("e.g. E=ABCD, F=-BCD")
-                    .desired_width(260.0),
+                    .desired_width(260.0)
+                    .min_size(egui::vec2(260.0, 0.0)),
             )
             .accessible_name("generators");
         if resp.changed() {

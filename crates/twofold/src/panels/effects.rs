@@ -5,7 +5,7 @@
 use egui::{RichText, Ui};
 
 use super::plots::{EffectBar, EffectBars, HalfNormalPlot, HalfNormalPoint};
-use super::results::ResponseResults;
+use super::results::{ResponseResults, WarningKind};
 use super::widgets::{not_available, warning_box};
 use super::{Command, Pane, View};
 use crate::project::{Edit, Project};
@@ -150,7 +150,7 @@ impl Pane for EffectsPane {
         let Some(built) = &self.built else {
             return;
         };
-        for w in &res.warnings {
+        for w in res.warnings_of(&[WarningKind::Data, WarningKind::Effects]) {
             warning_box(ui, &pal, w);
         }
         if let Err(why) = &res.lenth {

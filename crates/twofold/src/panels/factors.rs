@@ -29,6 +29,15 @@ impl Pane for FactorsPane {
         for p in view.problems.iter().filter(|p| p.field == Field::Factors) {
             ui.colored_label(pal.error, &p.message);
         }
+        let typed = project.typed_value_count();
+        if typed > 0 {
+            ui.label(
+                RichText::new(format!(
+                    "The run sheet holds {typed} measured values. Changing a level here relabels runs that were carried out at the old setting."
+                ))
+                .color(pal.warn),
+            );
+        }
         if project.runs_outdated {
             warning_box(
                 ui,

@@ -5,7 +5,7 @@ use egui::{RichText, Ui, vec2};
 
 use super::plots::{InteractionPlot, MainEffectPlot, shared_range};
 use super::run_sheet::natural_setting;
-use super::widgets::not_available;
+use super::widgets::{not_available, tiles};
 use super::{Command, Pane, View};
 use crate::project::Project;
 use twofold_core::term::{LETTERS, Term};
@@ -135,26 +135,18 @@ impl Pane for PlotsPane {
             .project
             .responses
             .get(res.response)
-            .map_or(String::new(), |r| {
-                if r.unit.is_empty() {
-                    format!("mean {}", r.name)
-                } else {
-                    format!("mean {} ({})", r.name, r.unit)
-                }
-            });
+            .map_or(String::new(), |r| r.name.clone());
         egui::ScrollArea::vertical()
             .auto_shrink([false, false])
             .show(ui, |ui| {
                 ui.label(RichText::new("Main effects").strong());
+                ui.label(RichText::new("● green title and line: the term is in the model").color(pal.in_model));
                 if res.centre_mean.is_some() {
                     ui.weak("◆ mean of the centre points");
                 }
                 let size = vec2(230.0, 170.0);
-                ui.horizontal_wrapped(|ui| {
-                    for m in &built.mains {
-                        m.show(ui, &pal, size, built.y, &y_label);
-                        ui.add_space(8.0);
-                    }
+                tiles(ui, built.mains.len(), size.x, |ui, i| {
+                    built.mains[i].show(ui, &pal, size, built.y, &y_label);
                 });
                 ui.add_space(10.0);
                 ui.horizontal(|ui| {
@@ -180,11 +172,9 @@ impl Pane for PlotsPane {
                     ui.weak("No interaction is in the model yet: showing every pair.");
                 }
                 ui.weak("Parallel lines: no interaction. Crossing or diverging lines: the effect of one factor depends on the other.");
-                ui.horizontal_wrapped(|ui| {
-                    for i in &shown {
-                        i.show(ui, &pal, vec2(260.0, 180.0), built.y);
-                        ui.add_space(8.0);
-                    }
+                let isize = vec2(290.0, 190.0);
+                tiles(ui, shown.len(), isize.x, |ui, i| {
+                    shown[i].show(ui, &pal, isize, built.y);
                 });
                 if built.interactions.len() > MAX_INTERACTION_PLOTS && self.pairs == PairChoice::All {
                     ui.weak(format!(

@@ -4,6 +4,7 @@
 use egui::{Grid, RichText, Ui};
 
 use super::chart::fmt_num;
+use super::results::WarningKind;
 use super::widgets::{not_available, warning_box};
 use super::{Command, Pane, View};
 use crate::project::{Edit, ResponseTransform};
@@ -109,7 +110,7 @@ impl Pane for ModelPane {
                 added.join(", ")
             ));
         }
-        for w in &res.warnings {
+        for w in res.warnings_of(&[WarningKind::Data, WarningKind::Model]) {
             warning_box(ui, &pal, w);
         }
         egui::ScrollArea::vertical()

@@ -45,7 +45,7 @@ impl EffectBars {
             return None;
         }
         let row_h = 22.0;
-        let label_w = 150.0;
+        let label_w = 190.0;
         let width = ui.available_width().max(320.0);
         let top_pad = 18.0;
         let height = top_pad + row_h * shown as f32 + 4.0;
@@ -113,7 +113,7 @@ impl EffectBars {
             painter.text(
                 pos2(outer.left() + 4.0, row.center().y),
                 Align2::LEFT_CENTER,
-                truncate(&text, 22),
+                truncate(&text, 28),
                 FontId::proportional(13.5),
                 if bar.in_model { pal.ink } else { pal.muted },
             );
@@ -416,13 +416,22 @@ pub struct InteractionPlot {
 }
 
 impl InteractionPlot {
+    /// Letter of the factor drawn as two lines (the second letter of the term).
+    fn b_letter(&self) -> String {
+        self.term
+            .chars()
+            .nth(1)
+            .map(String::from)
+            .unwrap_or_default()
+    }
+
     /// Draws the plot in `size` with a y range `y` shared by the plots of one response.
     pub fn show(&self, ui: &mut Ui, pal: &Palette, size: egui::Vec2, y: (f64, f64)) {
         ui.vertical(|ui| {
             ui.set_width(size.x);
             title(
                 ui,
-                &format!("{}  ({} × {})", self.term, self.a, self.b),
+                &format!("{}: {} × {}", self.term, self.a, self.b),
                 self.in_model,
                 pal,
             );
@@ -431,7 +440,8 @@ impl InteractionPlot {
                 (1.0, self.a_levels[1].clone()),
             ];
             let spec = AxesSpec {
-                x: (-1.5, 1.5),
+                // Room on the right for the line labels.
+                x: (-1.45, 1.8),
                 y,
                 x_label: &self.a,
                 y_label: "",
@@ -440,15 +450,17 @@ impl InteractionPlot {
             };
             let (frame, _) = chart::axes(ui, size, &spec, pal);
             let width = if self.in_model { 2.5 } else { 1.5 };
+            let letter = self.b_letter();
             let styles = [
-                (pal.low_line, Marker::Circle, "\u{2212}"),
-                (pal.high_line, Marker::Square, "+"),
+                (pal.low_line, Marker::Circle, "\u{2212}", "low"),
+                (pal.high_line, Marker::Square, "+", "high"),
             ];
-            for (j, (color, marker, sign)) in styles.iter().enumerate() {
+            for (j, (color, marker, sign, _)) in styles.iter().enumerate() {
                 let [m0, m1] = self.means[j];
                 if let (Some(a), Some(b)) = (m0, m1) {
                     let pa = frame.to_screen(-1.0, a);
                     let pb = frame.to_screen(1.0, b);
+                    // Low level dashed, high level solid: told apart without colour.
                     if j == 0 {
                         chart::dashed(ui, pa, pb, Stroke::new(width, *color));
                     } else {
@@ -465,45 +477,37 @@ impl InteractionPlot {
                     ui.painter().text(
                         frame.to_screen(1.0, m) + vec2(8.0, 0.0),
                         Align2::LEFT_CENTER,
-                        format!("{}{sign}", first_word(&self.b)),
-                        FontId::proportional(12.0),
+                        format!("{letter}{sign}"),
+                        FontId::proportional(13.0),
                         *color,
                     );
                 }
             }
-            ui.horizontal_wrapped(|ui| {
-                ui.spacing_mut().item_spacing.x = 4.0;
-                for (j, (color, _, sign)) in styles.iter().enumerate() {
-                    ui.colored_label(
-                        *color,
-                        format!(
-                            "{} {} {}",
-                            if j == 0 { "- -" } else { "——" },
-                            first_word(&self.b),
-                            sign
-                        ),
-                    );
-                    ui.weak(format!("({})", self.b_levels[j]));
-                }
-            });
+            for (j, (color, _, sign, word)) in styles.iter().enumerate() {
+                ui.label(
+                    egui::RichText::new(format!(
+                        "{} {letter}{sign} {} {word}: {}",
+                        if j == 0 { "- - -" } else { "——" },
+                        self.b,
+                        self.b_levels[j]
+                    ))
+                    .color(*color)
+                    .size(12.5),
+                );
+            }
         });
     }
 }
 
-fn first_word(s: &str) -> &str {
-    s.split_whitespace().next().unwrap_or(s)
-}
-
 fn title(ui: &mut Ui, text: &str, in_model: bool, pal: &Palette) {
-    if in_model {
-        ui.label(
-            egui::RichText::new(format!("● {text}  (in model)"))
-                .color(pal.in_model)
-                .strong(),
-        );
+    let text = if in_model {
+        egui::RichText::new(format!("● {text}"))
+            .color(pal.in_model)
+            .strong()
     } else {
-        ui.label(egui::RichText::new(text).color(pal.ink));
-    }
+        egui::RichText::new(text).color(pal.ink)
+    };
+    ui.add(egui::Label::new(text).truncate());
 }
 
 /// Which residual picture to draw.

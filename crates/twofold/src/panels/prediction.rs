@@ -91,6 +91,7 @@ impl Pane for PredictionPane {
         let unit = def.map_or("", |d| d.unit.as_str());
         let name = def.map_or("", |d| d.name.as_str());
         ui.label(RichText::new("Settings").strong());
+        ui.spacing_mut().slider_width = 280.0;
         Grid::new("predict_controls")
             .num_columns(3)
             .spacing([12.0, 6.0])
@@ -250,7 +251,7 @@ fn prediction_card(
                     "{name} ≈ {} {unit}",
                     back.value.map_or("—".to_string(), |v| fmt_num(v, 4))
                 ))
-                .size(26.0)
+                .size(26.0).family(crate::theme::bold_family())
                 .strong(),
             );
             ui.label(format!(

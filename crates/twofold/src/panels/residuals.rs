@@ -4,7 +4,7 @@
 use egui::{Ui, vec2};
 
 use super::plots::{ResidualKind, ResidualPlot};
-use super::widgets::not_available;
+use super::widgets::{not_available, tiles};
 use super::{Command, Pane, View};
 
 /// View state of the residuals pane: the three plots built once per data revision.
@@ -92,12 +92,9 @@ impl Pane for ResidualsPane {
         egui::ScrollArea::vertical()
             .auto_shrink([false, false])
             .show(ui, |ui| {
-                let w = ((ui.available_width() - 24.0) / 2.0).clamp(300.0, 560.0);
-                ui.horizontal_wrapped(|ui| {
-                    for p in plots {
-                        p.show(ui, &pal, vec2(w, 260.0));
-                        ui.add_space(8.0);
-                    }
+                let w = ((ui.available_width() - 40.0) / 2.0).clamp(300.0, 560.0);
+                tiles(ui, plots.len(), w, |ui, i| {
+                    plots[i].show(ui, &pal, vec2(w, 260.0));
                 });
             });
     }

@@ -31,6 +31,26 @@ pub struct BadCell {
     pub reason: String,
 }
 
+/// What a warning is about, so each pane shows the ones that concern it.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum WarningKind {
+    /// The data: cells that are not numbers.
+    Data,
+    /// The effect estimates: chains that missing runs leave inestimable.
+    Effects,
+    /// The fitted model: curvature, aliased or inestimable terms.
+    Model,
+}
+
+/// A warning in plain words.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Warning {
+    /// What it is about.
+    pub kind: WarningKind,
+    /// The text.
+    pub text: String,
+}
+
 /// Observed means of one pair of factors at its four corners.
 #[derive(Debug, Clone, PartialEq)]
 pub struct PairMeans {
@@ -86,7 +106,7 @@ pub struct ResponseResults {
     /// Each factor's (low, high) in natural units; categorical factors as (−1, +1).
     pub ranges: Vec<(f64, f64)>,
     /// Warnings in plain words.
-    pub warnings: Vec<String>,
+    pub warnings: Vec<Warning>,
 }
 
 /// The core's transform for the project's choice.
@@ -249,16 +269,23 @@ impl ResponseResults {
                     .map(|t| t.label())
                     .collect();
                 let more = table.not_estimable.len().saturating_sub(12);
-                out.warnings.push(format!(
-                    "{} runs have no value yet, so these effects cannot be estimated: {}{}.",
-                    out.missing_runs + out.bad_cells.len(),
-                    list.join(", "),
-                    if more > 0 {
-                        format!(" and {more} more")
-                    } else {
-                        String::new()
-                    }
-                ));
+                push_warning(
+                    &mut out.warnings,
+                    WarningKind::Effects,
+                    format!(
+                        "{} no usable value yet, so these effects cannot be estimated: {}{}.",
+                        match out.missing_runs + out.bad_cells.len() {
+                            1 => "1 run has".to_string(),
+                            n => format!("{n} runs have"),
+                        },
+                        list.join(", "),
+                        if more > 0 {
+                            format!(" and {more} more")
+                        } else {
+                            String::new()
+                        }
+                    ),
+                );
             }
             for term in &out.chosen_terms {
                 if let Some(rep) = table.aliasing.representative_of(*term)
@@ -275,11 +302,15 @@ impl ResponseResults {
                         )
                         .collect();
                     if !mates.is_empty() {
-                        out.warnings.push(format!(
-                            "{} is aliased with {}: the estimate is their sum, the data cannot tell them apart.",
-                            term.label(),
-                            mates.join(", ")
-                        ));
+                        push_warning(
+                            &mut out.warnings,
+                            WarningKind::Model,
+                            format!(
+                                "{} is aliased with {}: the estimate is their sum, the data cannot tell them apart.",
+                                term.label(),
+                                mates.join(", ")
+                            ),
+                        );
                     }
                 }
             }
@@ -301,23 +332,34 @@ impl ResponseResults {
                 && let Some(p) = c.p
                 && p < CURVATURE_ALPHA
             {
-                out.warnings.push(format!(
-                    "Curvature: the centre points differ from the corners' average by {} (p = {}). The response bends inside the box, so predictions between the corners are not reliable and the best setting may lie inside.",
-                    super::chart::fmt_num(-c.factorial_minus_centre, 3),
-                    super::chart::fmt_num(p, 2)
-                ));
+                push_warning(
+                    &mut out.warnings,
+                    WarningKind::Model,
+                    format!(
+                        "Curvature: the centre points differ from the corners' average by {} (p = {}). The response bends inside the box, so predictions between the corners are not reliable and the best setting may lie inside.",
+                        super::chart::fmt_num(-c.factorial_minus_centre, 3),
+                        super::chart::fmt_num(p, 2)
+                    ),
+                );
             }
             for u in &fit.unestimable {
                 let with: Vec<String> = u.aliased_with.iter().map(|(c, _)| c.to_string()).collect();
-                out.warnings.push(if with.is_empty() {
-                    format!("{} cannot be estimated from the runs at hand and was left out of the fit.", u.column)
-                } else {
-                    format!(
-                        "{} cannot be told apart from {} with the runs at hand and was left out of the fit.",
-                        u.column,
-                        with.join(", ")
-                    )
-                });
+                push_warning(
+                    &mut out.warnings,
+                    WarningKind::Model,
+                    if with.is_empty() {
+                        format!(
+                            "{} cannot be estimated from the runs at hand and was left out of the fit.",
+                            u.column
+                        )
+                    } else {
+                        format!(
+                            "{} cannot be told apart from {} with the runs at hand and was left out of the fit.",
+                            u.column,
+                            with.join(", ")
+                        )
+                    },
+                );
             }
         }
         if !out.bad_cells.is_empty() {
@@ -327,13 +369,28 @@ impl ResponseResults {
                 .take(6)
                 .map(|b| format!("run {} (“{}”: {})", b.run_order, b.text, b.reason))
                 .collect();
-            out.warnings.push(format!(
-                "Text that is not a number is left out of the analysis: {}.",
-                list.join("; ")
-            ));
+            push_warning(
+                &mut out.warnings,
+                WarningKind::Data,
+                format!(
+                    "Text that is not a number is left out of the analysis: {}.",
+                    list.join("; ")
+                ),
+            );
         }
         out.observations = Ok(obs);
         out
+    }
+
+    /// The warnings of the given kinds, in order.
+    pub fn warnings_of<'a>(
+        &'a self,
+        kinds: &'a [WarningKind],
+    ) -> impl Iterator<Item = &'a str> + 'a {
+        self.warnings
+            .iter()
+            .filter(|w| kinds.contains(&w.kind))
+            .map(|w| w.text.as_str())
     }
 
     fn set_all_unavailable(&mut self, why: &str) {
@@ -353,6 +410,10 @@ impl ResponseResults {
     pub fn fitted(&self, term: Term) -> bool {
         self.fit.as_ref().is_ok_and(|f| f.terms.contains(&term))
     }
+}
+
+fn push_warning(list: &mut Vec<Warning>, kind: WarningKind, text: String) {
+    list.push(Warning { kind, text });
 }
 
 /// Observed means at the four corners of every pair of factors (centre points left out).
@@ -425,7 +486,7 @@ mod tests {
         let r = ResponseResults::compute(&two_by_two(&["6", "12", "4x", "10"]), 0);
         assert_eq!(r.used_runs, 3);
         assert_eq!(r.bad_cells.len(), 1);
-        assert!(r.warnings.iter().any(|w| w.contains("run 3")));
+        assert!(r.warnings.iter().any(|w| w.text.contains("run 3")));
     }
 
     #[test]

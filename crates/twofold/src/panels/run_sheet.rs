@@ -4,6 +4,8 @@
 //! unfinished run; Tab moves across the responses of a run. Text that is not a number stays in the
 //! cell, marked, with the reason on hover, and is left out of the analysis by the analysis itself.
 
+use std::rc::Rc;
+
 use egui::{Id, Key, Modifiers, RichText, TextEdit, Ui};
 use egui_extras::{Column, TableBuilder};
 
@@ -34,10 +36,12 @@ pub struct RunSheetPane {
     pub coded: bool,
     /// Cell whose text is being typed: `(run position, response)` and the text so far.
     editing: Option<((usize, usize), String)>,
-    /// Cell that should take the keyboard focus when next drawn.
+    /// Grid cell that should take the keyboard focus when next drawn.
     focus_next: Option<(usize, usize)>,
+    /// Entry field of the next-run card that should take the focus: `(run, response)`.
+    focus_card: Option<(usize, usize)>,
     /// Row order cached for one data revision and one [`SheetOrder`].
-    rows: Option<(u64, SheetOrder, Vec<usize>)>,
+    rows: Option<(u64, SheetOrder, Rc<[usize]>)>,
 }
 
 /// Accessible name of a response cell: `value run 7 Gloss` (run-order number, response name).
@@ -51,7 +55,7 @@ pub fn card_field_name(response: &ResponseDef) -> String {
 }
 
 impl RunSheetPane {
-    fn row_order(&mut self, view: &View<'_>) -> Vec<usize> {
+    fn row_order(&mut self, view: &View<'_>) -> Rc<[usize]> {
         let fresh = match &self.rows {
             Some((rev, ord, _)) => *rev != view.revision || *ord != self.order,
             None => true,
@@ -63,9 +67,12 @@ impl RunSheetPane {
                 SheetOrder::Run => idx.sort_by_key(|&i| runs[i].run_order),
                 SheetOrder::Standard => idx.sort_by_key(|&i| runs[i].std_order),
             }
-            self.rows = Some((view.revision, self.order, idx));
+            self.rows = Some((view.revision, self.order, idx.into()));
         }
-        self.rows.as_ref().map(|r| r.2.clone()).unwrap_or_default()
+        // A shared handle: drawing borrows the pane mutably while it reads the order.
+        self.rows
+            .as_ref()
+            .map_or_else(|| Rc::from(Vec::new()), |r| Rc::clone(&r.2))
     }
 }
 
@@ -90,10 +97,20 @@ impl Pane for RunSheetPane {
         }
         responses_bar(ui, project, out);
         if project.responses.is_empty() {
-            return;
+            egui::Frame::new()
+                .fill(pal.card_bg)
+                .inner_margin(egui::Margin::same(10))
+                .show(ui, |ui| {
+                    ui.label(
+                        RichText::new("Add a response: the quantity you will measure in each run.")
+                            .size(18.0),
+                    );
+                });
         }
-        let rows = self.row_order(view);
-        next_run_card(self, ui, view, &rows, out);
+        if !project.responses.is_empty() {
+            let rows = self.row_order(view);
+            next_run_card(self, ui, view, &rows, out);
+        }
         ui.add_space(6.0);
         ui.horizontal(|ui| {
             ui.label("List in");
@@ -105,7 +122,10 @@ impl Pane for RunSheetPane {
             ui.selectable_value(&mut self.coded, true, "coded −1/+1");
         });
         let rows = self.row_order(view);
-        grid(self, ui, view, &rows, out);
+        // Many factors make the sheet wider than the window: scroll sideways, never squeeze.
+        egui::ScrollArea::horizontal()
+            .id_salt("run_sheet_sideways")
+            .show(ui, |ui| grid(self, ui, view, &rows, out));
     }
 }
 
@@ -213,6 +233,19 @@ pub fn natural_setting(f: &Factor, coded: i8) -> String {
     }
 }
 
+/// Whether the natural setting of `coded` lies outside the factor's declared safe range.
+pub fn outside_safe_range(f: &Factor, coded: i8) -> bool {
+    let (FactorKind::Numeric { low, high }, Some((lo, hi))) = (&f.kind, f.safe_range) else {
+        return false;
+    };
+    let v = match coded {
+        -1 => *low,
+        1 => *high,
+        _ => 0.5 * (low + high),
+    };
+    v < lo || v > hi
+}
+
 fn coded_text(c: i8) -> &'static str {
     match c {
         -1 => "\u{2212}1",
@@ -257,7 +290,12 @@ fn next_run_card(
                 }
             );
             let Some(pos) = next_unfinished(&project.runs, rows, None) else {
-                ui.label(RichText::new("Every run is finished.").size(24.0).strong());
+                ui.label(
+                    RichText::new("Every run is finished.")
+                        .size(24.0)
+                        .family(crate::theme::bold_family())
+                        .strong(),
+                );
                 ui.label(RichText::new(progress).size(18.0));
                 return;
             };
@@ -267,6 +305,7 @@ fn next_run_card(
                 ui.label(
                     RichText::new(format!("Next: run {}", run.run_order))
                         .size(30.0)
+                        .family(crate::theme::bold_family())
                         .strong()
                         .color(pal.ink),
                 );
@@ -306,12 +345,22 @@ fn next_run_card(
                             .size(20.0)
                             .color(pal.muted),
                         );
-                        ui.label(
-                            RichText::new(natural_setting(f, c))
-                                .size(26.0)
-                                .strong()
-                                .color(pal.ink),
-                        );
+                        ui.horizontal(|ui| {
+                            ui.label(
+                                RichText::new(natural_setting(f, c))
+                                    .size(26.0)
+                                    .family(crate::theme::bold_family())
+                                    .strong()
+                                    .color(pal.ink),
+                            );
+                            if outside_safe_range(f, c) {
+                                ui.label(
+                                    RichText::new("⚠ outside the safe range")
+                                        .size(18.0)
+                                        .color(pal.warn),
+                                );
+                            }
+                        });
                         ui.end_row();
                     }
                 });
@@ -330,9 +379,9 @@ fn next_run_card(
                         Some((k, t)) if *k == key => t.clone(),
                         _ => stored.clone(),
                     };
-                    if pane.focus_next == Some(key) {
+                    if pane.focus_card == Some(key) {
                         ui.memory_mut(|m| m.request_focus(id));
-                        pane.focus_next = None;
+                        pane.focus_card = None;
                     }
                     let resp = ui
                         .add(
@@ -340,6 +389,7 @@ fn next_run_card(
                                 .id(id)
                                 .font(egui::FontId::proportional(22.0))
                                 .desired_width(140.0)
+                                .min_size(egui::vec2(140.0, 0.0))
                                 .hint_text("type, Enter"),
                         )
                         .accessible_name(card_field_name(def));
@@ -350,7 +400,8 @@ fn next_run_card(
                         pane.editing = Some((key, text.clone()));
                     }
                     if resp.lost_focus() {
-                        let enter = ui.input(|i| i.key_pressed(Key::Enter));
+                        // Consumed: the field that takes the focus next must not see this Enter as well.
+                        let enter = ui.input_mut(|i| i.consume_key(Modifiers::NONE, Key::Enter));
                         if text != stored {
                             out.push(Command::Group(store_value(
                                 project,
@@ -373,7 +424,7 @@ fn next_run_card(
                                     (after.map_or(run_idx, |p| rows[p]), 0)
                                 }
                             };
-                            pane.focus_next = Some(target);
+                            pane.focus_card = Some(target);
                         }
                     }
                     if let CellValue::Bad { reason } = crate::project::Cell::new(&text).value() {
@@ -474,7 +525,12 @@ fn grid(
                         } else {
                             natural_setting(f, c)
                         };
-                        ui.label(text);
+                        if outside_safe_range(f, c) {
+                            ui.label(RichText::new(format!("⚠ {text}")).color(pal.warn))
+                                .on_hover_text("Outside the factor's declared safe range");
+                        } else {
+                            ui.label(text);
+                        }
                     });
                 }
                 for (r, def) in project.responses.iter().enumerate() {
@@ -532,12 +588,12 @@ fn response_cell(
         pane.focus_next = None;
     }
     let focused = ui.memory(|m| m.has_focus(id));
+    // Consumed, so the cell that takes the focus next does not see the same key press.
     let (tab, shift_tab) = if focused {
-        ui.input(|i| {
-            (
-                i.key_pressed(Key::Tab) && i.modifiers.is_none(),
-                i.key_pressed(Key::Tab) && i.modifiers.matches_exact(Modifiers::SHIFT),
-            )
+        ui.input_mut(|i| {
+            let shift_tab = i.consume_key(Modifiers::SHIFT, Key::Tab);
+            let tab = !shift_tab && i.consume_key(Modifiers::NONE, Key::Tab);
+            (tab, shift_tab)
         })
     } else {
         (false, false)
@@ -567,7 +623,8 @@ fn response_cell(
     }
     let leaving = resp.lost_focus() || tab || shift_tab;
     if leaving {
-        let enter = ui.input(|i| i.key_pressed(Key::Enter));
+        // Consumed: the field that takes the focus next must not see this Enter as well.
+        let enter = ui.input_mut(|i| i.consume_key(Modifiers::NONE, Key::Enter));
         if text != stored {
             out.push(Command::Group(store_value(
                 project,

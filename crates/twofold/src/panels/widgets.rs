@@ -16,6 +16,8 @@ pub fn text_field(ui: &mut Ui, id: Id, current: &str, width: f32, hint: &str) ->
         TextEdit::singleline(&mut text)
             .id(id)
             .desired_width(width)
+            // Inside a grid the available width starts small; a minimum keeps names readable.
+            .min_size(egui::vec2(width, 0.0))
             .hint_text(hint),
     );
     (resp.changed() && text != current).then_some(text)
@@ -51,6 +53,7 @@ pub fn number_field(
     let mut edit = TextEdit::singleline(&mut text)
         .id(id)
         .desired_width(width)
+        .min_size(egui::vec2(width, 0.0))
         .hint_text(hint);
     if before_error {
         edit = edit.text_color(ui.visuals().error_fg_color);
@@ -86,6 +89,25 @@ pub fn plain_number(v: f64) -> String {
         format!("{}", v as i64)
     } else {
         format!("{v}")
+    }
+}
+
+/// Lays out `count` tiles of width `tile_width` in rows that fit the available width (fixed-size
+/// plots do not wrap by themselves).
+pub fn tiles(ui: &mut Ui, count: usize, tile_width: f32, mut tile: impl FnMut(&mut Ui, usize)) {
+    let gap = ui.spacing().item_spacing.x + 8.0;
+    let per_row = (((ui.available_width() + gap) / (tile_width + gap)).floor() as usize).max(1);
+    let mut start = 0;
+    while start < count {
+        let end = (start + per_row).min(count);
+        ui.horizontal_top(|ui| {
+            for i in start..end {
+                tile(ui, i);
+                ui.add_space(8.0);
+            }
+        });
+        ui.add_space(6.0);
+        start = end;
     }
 }
 
