@@ -449,3 +449,67 @@ fn missing_file_is_bad_input() {
     assert_eq!(code, 2);
     assert!(err.contains("cannot read"), "{err}");
 }
+
+/// The demo project analysed headless gives the same numbers as the window's analysis cache
+/// (one computation, two front ends): effects, Lenth's margins, coefficients, ANOVA and R².
+#[test]
+fn project_file_gives_the_same_numbers_as_the_window() {
+    // The same computation on both sides; the tolerance (1e-12 relative) only absorbs the last
+    // bit that JSON number reading may round differently.
+    fn same(a: f64, b: f64) {
+        assert!(
+            (a - b).abs() <= 1e-12 * a.abs().max(b.abs()).max(1.0),
+            "{a} vs {b}"
+        );
+    }
+    let path = concat!(
+        env!("CARGO_MANIFEST_DIR"),
+        "/../demo-projects/powder-coating-cure.ron"
+    );
+    let (code, out, err) = analyze(&[path, "--json"]);
+    assert_eq!(code, 0, "{err}");
+    let j: Value = serde_json::from_str(&out).unwrap();
+    let project = twofold_app::project::load_project(std::path::Path::new(path)).unwrap();
+    let terms: Vec<String> = j["model"]["terms"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|t| t.as_str().unwrap().to_string())
+        .collect();
+    assert!(!terms.is_empty());
+    let settings = twofold_app::project::ModelSettings {
+        terms,
+        ..Default::default()
+    };
+    let mut cache = twofold_app::analysis::AnalysisCache::new();
+    let pane = cache.get_with(&project, 1, 0, &settings);
+    let effects = &pane.effects.as_ref().unwrap().table.effects;
+    let cli_effects = j["effects"].as_array().unwrap();
+    assert_eq!(cli_effects.len(), effects.len());
+    for (c, e) in cli_effects.iter().zip(effects) {
+        assert_eq!(c["term"], e.term.label());
+        same(c["effect"].as_f64().unwrap(), e.effect);
+    }
+    let (lenth, _) = pane.effects.as_ref().unwrap().lenth.as_ref().unwrap();
+    same(j["lenth"]["pse"].as_f64().unwrap(), lenth.pse);
+    same(j["lenth"]["me"].as_f64().unwrap(), lenth.me);
+    let model = &pane.model.as_ref().unwrap().fit;
+    let coefs: Vec<f64> = model.coefficients.iter().map(|c| c.estimate).collect();
+    let cli_coefs: Vec<f64> = j["model"]["coefficients"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|v| v.as_f64().unwrap())
+        .collect();
+    assert_eq!(cli_coefs.len(), coefs.len());
+    for (c, m) in cli_coefs.iter().zip(&coefs) {
+        same(*c, *m);
+    }
+    same(j["model"]["r2"].as_f64().unwrap(), model.r2.unwrap());
+    let rows = j["anova"].as_array().unwrap();
+    assert_eq!(rows.len(), model.anova.len());
+    for (c, r) in rows.iter().zip(&model.anova) {
+        assert_eq!(c["source"], r.source.to_string());
+        same(c["ss"].as_f64().unwrap(), r.ss);
+    }
+}

@@ -3,6 +3,7 @@
 //!
 //! ```text
 //! twofold analyze --csv FILE [--response NAME] [--terms A,C,AC] [--transform T] [--json]
+//! twofold analyze PROJECT.ron [--response NAME] [--terms A,C,AC] [--transform T] [--json]
 //! ```
 //!
 //! The CSV file is a coded table: a header row, one column per factor named by its letter in
@@ -36,12 +37,14 @@ use super::{EXIT_BAD_INPUT, EXIT_FAILURE};
 /// Usage text printed by `--help`.
 pub const USAGE: &str = "\
 usage: twofold analyze --csv FILE [options]
+       twofold analyze PROJECT.ron [options]
 
 Effects, Lenth's margins, half-normal positions, a model fit and its ANOVA for one response of a
 coded table (header row: factor columns A, B, C, ... with cells -1, 0 or +1, an optional `block`
 column, then response columns; an empty response cell is a missing value).
 
 options:
+  PROJECT.ron         a project file: its run sheet, chosen terms and transform
   --csv FILE          the coded table to analyse
   --response NAME     the response column (default: the first one)
   --terms LIST        model terms, comma-separated, e.g. A,C,D,AC,AD
@@ -54,16 +57,26 @@ options:
 /// The options of one `analyze` call, validated.
 #[derive(Debug, Clone, PartialEq)]
 pub struct AnalyzeArgs {
-    /// The coded table.
-    pub csv: PathBuf,
+    /// Where the data come from: a coded table or a project file.
+    pub input: Input,
     /// The response column; `None` = the first.
     pub response: Option<String>,
     /// Model terms as typed; `None` = chosen by Lenth's method.
     pub terms: Option<Vec<String>>,
-    /// Transform of the response.
-    pub transform: Transform,
+    /// Transform of the response; `None` = none for a table, the project's choice for a project.
+    pub transform: Option<Transform>,
     /// Print JSON instead of the text report.
     pub json: bool,
+}
+
+/// The data source of an `analyze` call.
+#[derive(Debug, Clone, PartialEq)]
+pub enum Input {
+    /// A coded CSV table (`--csv FILE`).
+    Csv(PathBuf),
+    /// A project file (`twofold analyze PROJECT.ron`): its run sheet, and by default its chosen
+    /// model terms and transform, exactly as the window analyses them.
+    Project(PathBuf),
 }
 
 /// What the command line asked for.
@@ -78,6 +91,7 @@ pub enum Request {
 /// Reads the arguments after `analyze`. Errors are one-line messages.
 pub fn parse_args(args: &[String]) -> Result<Request, String> {
     let mut csv: Option<PathBuf> = None;
+    let mut project: Option<PathBuf> = None;
     let mut response: Option<String> = None;
     let mut terms: Option<Vec<String>> = None;
     let mut transform: Option<Transform> = None;
@@ -127,21 +141,33 @@ pub fn parse_args(args: &[String]) -> Result<Request, String> {
                 ));
             }
             (other, _) => {
-                return Err(format!(
-                    "unexpected argument `{other}`: project files are not read by `analyze` yet; give a coded table with --csv FILE"
-                ));
+                if project.is_some() {
+                    return Err(format!(
+                        "unexpected argument `{other}`: give one project file"
+                    ));
+                }
+                project = Some(PathBuf::from(other));
             }
         }
         i += 1;
     }
-    let Some(csv) = csv else {
-        return Err("`analyze` needs a coded table: --csv FILE (see --help)".into());
+    let input = match (csv, project) {
+        (Some(_), Some(_)) => {
+            return Err("give a project file or --csv FILE, not both".into());
+        }
+        (Some(c), None) => Input::Csv(c),
+        (None, Some(p)) => Input::Project(p),
+        (None, None) => {
+            return Err(
+                "`analyze` needs a project file or a coded table: --csv FILE (see --help)".into(),
+            );
+        }
     };
     Ok(Request::Analyze(AnalyzeArgs {
-        csv,
+        input,
         response,
         terms,
-        transform: transform.unwrap_or_default(),
+        transform,
         json,
     }))
 }
@@ -1056,53 +1082,13 @@ pub fn run(args: &[String], out: &mut dyn Write, err: &mut dyn Write) -> i32 {
         }
         Request::Analyze(a) => a,
     };
-    let bytes = match std::fs::read(&a.csv) {
-        Ok(b) => b,
-        Err(e) => {
-            return bad_input(err, &format!("cannot read `{}`: {e}", a.csv.display()));
-        }
+    let analysis = match &a.input {
+        Input::Csv(path) => analyse_csv(path, &a),
+        Input::Project(path) => analyse_project(path, &a),
     };
-    let table = match read_coded_csv(&bytes) {
-        Ok(t) => t,
-        Err(e) => return bad_input(err, &format!("{}: {e}", a.csv.display())),
-    };
-    let index = match &a.response {
-        None => 0,
-        Some(name) => match table.responses.iter().position(|r| &r.name == name) {
-            Some(i) => i,
-            None => {
-                let names: Vec<&str> = table.responses.iter().map(|r| r.name.as_str()).collect();
-                return bad_input(
-                    err,
-                    &format!(
-                        "unknown response `{name}` (the file has: {})",
-                        names.join(", ")
-                    ),
-                );
-            }
-        },
-    };
-    let response = table.responses[index].name.clone();
-    let terms = match &a.terms {
-        None => None,
-        Some(list) => {
-            let mut v = Vec::new();
-            for label in list {
-                match Term::parse(label, table.factor_count) {
-                    Ok(t) => v.push(t),
-                    Err(e) => return bad_input(err, &format!("--terms: {e}")),
-                }
-            }
-            Some(v)
-        }
-    };
-    let obs = match table.observations(index) {
-        Ok(o) => o,
-        Err(e) => return bad_input(err, &format!("column `{response}`: {e}")),
-    };
-    let analysis = match analyse(&obs, &response, a.transform, terms.as_deref()) {
+    let analysis = match analysis {
         Ok(x) => x,
-        Err(e) => return bad_input(err, &analysis_message(&e, &table, &response)),
+        Err(message) => return bad_input(err, &message),
     };
     let text = if a.json {
         match serde_json::to_string_pretty(&analysis_json(&analysis)) {
@@ -1119,6 +1105,109 @@ pub fn run(args: &[String], out: &mut dyn Write, err: &mut dyn Write) -> i32 {
         Ok(()) => 0,
         Err(_) => EXIT_FAILURE,
     }
+}
+
+/// Reads and analyses a coded table; errors are one-line messages.
+fn analyse_csv(path: &std::path::Path, a: &AnalyzeArgs) -> Result<Analysis, String> {
+    let bytes = match std::fs::read(path) {
+        Ok(b) => b,
+        Err(e) => {
+            return Err(format!("cannot read `{}`: {e}", path.display()));
+        }
+    };
+    let table = match read_coded_csv(&bytes) {
+        Ok(t) => t,
+        Err(e) => return Err(format!("{}: {e}", path.display())),
+    };
+    let index = match &a.response {
+        None => 0,
+        Some(name) => match table.responses.iter().position(|r| &r.name == name) {
+            Some(i) => i,
+            None => {
+                let names: Vec<&str> = table.responses.iter().map(|r| r.name.as_str()).collect();
+                return Err(format!(
+                    "unknown response `{name}` (the file has: {})",
+                    names.join(", ")
+                ));
+            }
+        },
+    };
+    let response = table.responses[index].name.clone();
+    let terms = match &a.terms {
+        None => None,
+        Some(list) => {
+            let mut v = Vec::new();
+            for label in list {
+                match Term::parse(label, table.factor_count) {
+                    Ok(t) => v.push(t),
+                    Err(e) => return Err(format!("--terms: {e}")),
+                }
+            }
+            Some(v)
+        }
+    };
+    let obs = match table.observations(index) {
+        Ok(o) => o,
+        Err(e) => return Err(format!("column `{response}`: {e}")),
+    };
+    analyse(
+        &obs,
+        &response,
+        a.transform.unwrap_or_default(),
+        terms.as_deref(),
+    )
+    .map_err(|e| analysis_message(&e, &table, &response))
+}
+
+/// Reads a project file and analyses one response of its run sheet the way the window does:
+/// the same table (bad and empty cells missing, excluded runs out of the fit), by default the
+/// response's chosen transform and model terms (Lenth's choice when none are chosen yet).
+fn analyse_project(path: &std::path::Path, a: &AnalyzeArgs) -> Result<Analysis, String> {
+    let project = crate::project::load_project(path).map_err(|e| e.to_string())?;
+    let index = match &a.response {
+        None if project.responses.is_empty() => {
+            return Err(format!("project `{}` has no responses", path.display()));
+        }
+        None => 0,
+        Some(name) => project
+            .responses
+            .iter()
+            .position(|r| &r.name == name)
+            .ok_or_else(|| {
+                let names: Vec<&str> = project.responses.iter().map(|r| r.name.as_str()).collect();
+                format!(
+                    "unknown response `{name}` (the project has: {})",
+                    names.join(", ")
+                )
+            })?,
+    };
+    let def = &project.responses[index];
+    let k = project.factors.len();
+    let data =
+        crate::analysis::response_data(&project, index, crate::project::ResponseTransform::None)
+            .map_err(|e| format!("response `{}`: {e}", def.name))?;
+    let transform = a
+        .transform
+        .unwrap_or_else(|| crate::analysis::core_transform(def.model.transform));
+    let labels: Option<&[String]> = match &a.terms {
+        Some(list) => Some(list),
+        None if def.model.terms.is_empty() => None,
+        None => Some(&def.model.terms),
+    };
+    let terms = match labels {
+        None => None,
+        Some(list) => {
+            let mut v = Vec::with_capacity(list.len());
+            for label in list {
+                v.push(Term::parse(label, k).map_err(|e| format!("model term: {e}"))?);
+            }
+            if a.terms.is_none() && def.model.hierarchical {
+                v = anova::hierarchical_closure(&v);
+            }
+            Some(v)
+        }
+    };
+    analyse(&data.raw, &def.name, transform, terms.as_deref()).map_err(|e| e.to_string())
 }
 
 fn bad_input(err: &mut dyn Write, message: &str) -> i32 {
