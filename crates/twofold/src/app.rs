@@ -175,6 +175,9 @@ impl Panes {
     }
 }
 
+/// What a modal's button does to the window once the modal is closed.
+type AfterModal = Box<dyn FnOnce(&mut TwofoldApp)>;
+
 /// The state of the window.
 pub struct TwofoldApp {
     history: History,
@@ -966,7 +969,7 @@ impl TwofoldApp {
             return;
         };
         let mut close = false;
-        let mut then: Option<Box<dyn FnOnce(&mut TwofoldApp)>> = None;
+        let mut then: Option<AfterModal> = None;
         let response = egui::Modal::new(egui::Id::unique("twofold_modal")).show(ctx, |ui| {
             ui.set_max_width(460.0);
             match &modal {

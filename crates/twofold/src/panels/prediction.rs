@@ -26,6 +26,9 @@ pub enum Aim {
     Target,
 }
 
+/// A prediction with the data revision, response and coded point it was made for.
+type CachedPrediction = (u64, usize, Vec<f64>, Result<Prediction, String>);
+
 /// View state of the prediction pane.
 #[derive(Debug, Default)]
 pub struct PredictionPane {
@@ -36,7 +39,7 @@ pub struct PredictionPane {
     /// The target value for [`Aim::Target`].
     pub target: Option<f64>,
     /// Prediction at `coded`, cached for one revision and one point.
-    prediction: Option<(u64, usize, Vec<f64>, Result<Prediction, String>)>,
+    prediction: Option<CachedPrediction>,
     /// Result of the last best-settings search and the data it was made for.
     optimum: Option<(u64, usize, Result<Optimum, String>)>,
 }

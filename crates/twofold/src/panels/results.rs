@@ -117,7 +117,7 @@ pub fn core_transform(t: ResponseTransform) -> Transform {
         ResponseTransform::Log10 => Transform::Log10,
         ResponseTransform::Sqrt => Transform::Sqrt,
         ResponseTransform::Reciprocal => Transform::Inverse,
-        ResponseTransform::Power { lambda } if lambda == 0.0 => Transform::Ln,
+        ResponseTransform::Power { lambda: 0.0 } => Transform::Ln,
         ResponseTransform::Power { lambda } => Transform::Power(lambda),
     }
 }

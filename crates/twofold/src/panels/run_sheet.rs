@@ -652,13 +652,12 @@ fn response_cell(
                 (rows[p], nr.saturating_sub(1))
             });
             ui.memory_mut(|m| m.surrender_focus(id));
-        } else if enter {
-            if let Some(p) = next_unfinished(&project.runs, rows, Some(pos))
-                // The run just typed may still be unfinished (other responses empty): move on.
-                .filter(|&p| p != pos)
-            {
-                pane.focus_next = Some((rows[p], r));
-            }
+        } else if enter
+            // The run just typed may still be unfinished (other responses empty): move on.
+            && let Some(p) =
+                next_unfinished(&project.runs, rows, Some(pos)).filter(|&p| p != pos)
+        {
+            pane.focus_next = Some((rows[p], r));
         }
     }
 }
