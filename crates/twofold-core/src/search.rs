@@ -1241,6 +1241,36 @@ mod tests {
         }
     }
 
+    proptest::proptest! {
+        #[test]
+        fn incremental_word_counts_match_the_defining_group(
+            q in 3usize..=7,
+            picks in proptest::collection::vec(0usize..10_000, 1..9),
+        ) {
+            // Any distinct interaction columns: the subset counts after adding them give the
+            // pattern of the whole defining group, and removing them restores the start.
+            let candidates: Vec<u32> = (1u32..1 << q).filter(|m| m.count_ones() >= 2).collect();
+            let mut columns: Vec<u32> = Vec::new();
+            for pick in picks {
+                let c = candidates[pick % candidates.len()];
+                if !columns.contains(&c) {
+                    columns.push(c);
+                }
+            }
+            let k = q + columns.len();
+            let mut search = ColumnSearch::new(k, q, None);
+            for &c in &columns {
+                search.add(c);
+            }
+            proptest::prop_assert_eq!(search.pattern(), pattern_of_columns(k, &columns));
+            for &c in columns.iter().rev() {
+                search.remove(c);
+            }
+            let fresh = ColumnSearch::new(k, q, None);
+            proptest::prop_assert_eq!(&search.counts, &fresh.counts);
+        }
+    }
+
     #[test]
     fn isomorphism_pruning_loses_nothing() {
         // The same search with all relabellings, with transpositions only, and with no
