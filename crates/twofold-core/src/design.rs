@@ -287,9 +287,11 @@ impl FractionalDesign {
             solved,
         };
         // A product of generators may still alias two main effects (E=ABC, F=ABC gives I=EF).
-        if let Some(short) = crate::alias::defining_relation(&design)
+        // (The shortest such word in trade order, found without sorting the whole group.)
+        if let Some(short) = crate::alias::defining_group(&design)
             .into_iter()
-            .find(|w| w.term.order() < 3)
+            .filter(|w| !w.term.is_identity() && w.term.order() < 3)
+            .min_by(|a, b| a.term.cmp(&b.term))
         {
             let culprit = design
                 .generators
