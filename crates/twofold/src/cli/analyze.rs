@@ -1238,7 +1238,7 @@ mod tests {
             panic!("expected an analysis request")
         };
         assert!(a.json);
-        assert_eq!(a.transform, Transform::Power(0.5));
+        assert_eq!(a.transform, Some(Transform::Power(0.5)));
         let cases: &[(&[&str], &str)] = &[
             (&["--csv"], "option `--csv` needs a value"),
             (&["--csv", "a", "--bogus"], "unknown option `--bogus`"),

@@ -446,8 +446,8 @@ fn write_text(p: &Planned, out: &mut dyn Write) -> std::io::Result<()> {
     writeln!(out, "Seed: {}", p.seed)?;
     writeln!(out)?;
     write!(out, "{:>4} {:>4} {:>5}", "run", "std", "block")?;
-    for i in 0..k {
-        write!(out, " {:>3}", LETTERS[i])?;
+    for letter in &LETTERS[..k] {
+        write!(out, " {letter:>3}")?;
     }
     writeln!(out)?;
     for run in &p.plan.runs {
