@@ -8,6 +8,7 @@
 //! disk, and [`TwofoldApp::ui_in`] draws it into any `Ui`, so tests drive the real window code.
 
 use std::path::{Path, PathBuf};
+use std::sync::Arc;
 use std::sync::mpsc::{Receiver, channel};
 
 use egui::{Key, KeyboardShortcut, Modifiers, RichText, Ui};
@@ -126,8 +127,6 @@ fn coalesce_key(edit: &Edit) -> Option<CoalesceKey> {
 struct Derived {
     revision: u64,
     problems: Vec<Problem>,
-    /// Analysis of one response, computed when an analysis step first needs it.
-    results: Option<ResponseResults>,
 }
 
 impl Derived {
@@ -135,15 +134,71 @@ impl Derived {
         Derived {
             revision,
             problems: project.validate(),
-            results: None,
         }
     }
+}
 
-    /// Makes sure the analysis of `response` is at hand.
-    fn ensure_results(&mut self, project: &Project, response: usize) {
-        if self.results.as_ref().map(|r| r.response) != Some(response) {
-            self.results = Some(ResponseResults::compute(project, response));
+/// The analysis of one response, computed once per (revision, response) when an analysis step
+/// needs it. In the window it runs on a worker thread, because a large sheet with few values can
+/// take long, and the sheet must stay responsive while the engineer types; the last finished
+/// result stays on screen, marked as updating, until the new one arrives.
+#[derive(Default)]
+struct AnalysisSlot {
+    results: Option<Arc<ResponseResults>>,
+    pending: Option<((u64, usize), Receiver<ResponseResults>)>,
+}
+
+impl AnalysisSlot {
+    /// Makes sure the analysis of `response` at `revision` is done or under way. Returns whether
+    /// the shown results are current.
+    fn ensure(
+        &mut self,
+        project: &Project,
+        revision: u64,
+        response: usize,
+        inline: bool,
+        ctx: &egui::Context,
+    ) -> bool {
+        let want = (revision, response);
+        let have = |r: &Option<Arc<ResponseResults>>| {
+            r.as_ref().map(|x| (x.revision, x.response)) == Some(want)
+        };
+        if have(&self.results) {
+            return true;
         }
+        if inline {
+            self.results = Some(Arc::new(ResponseResults::compute_at(
+                project, revision, response,
+            )));
+            return true;
+        }
+        if let Some((_, rx)) = &self.pending {
+            match rx.try_recv() {
+                Ok(r) => {
+                    self.results = Some(Arc::new(r));
+                    self.pending = None;
+                }
+                Err(std::sync::mpsc::TryRecvError::Empty) => {}
+                Err(std::sync::mpsc::TryRecvError::Disconnected) => self.pending = None,
+            }
+        }
+        if have(&self.results) {
+            return true;
+        }
+        // One computation at a time (two cores, shared): a stale one finishes first, then the
+        // latest data is analysed.
+        if self.pending.is_none() {
+            let (tx, rx) = channel();
+            let project = project.clone();
+            let repaint = ctx.clone();
+            std::thread::spawn(move || {
+                let _ = tx.send(ResponseResults::compute_at(&project, revision, response));
+                repaint.request_repaint();
+            });
+            self.pending = Some((want, rx));
+        }
+        ctx.request_repaint_after(std::time::Duration::from_millis(200));
+        false
     }
 }
 
@@ -188,6 +243,7 @@ pub struct TwofoldApp {
     applied_theme: Option<ThemeChoice>,
     panes: Panes,
     derived: Derived,
+    analysis: AnalysisSlot,
     coalesce: Option<(CoalesceKey, u64)>,
     modal: Option<Modal>,
     picker: FilePicker,
@@ -222,6 +278,7 @@ impl TwofoldApp {
             applied_theme: None,
             panes: Panes::default(),
             derived,
+            analysis: AnalysisSlot::default(),
             coalesce: None,
             modal: None,
             picker,
@@ -291,6 +348,17 @@ impl TwofoldApp {
             }
         }
         self.debouncer.deadline()
+    }
+
+    /// Computes searches and analyses on worker threads (`true`, as the window does) or in the
+    /// frame that needs them (`false`, the default of [`Self::new_for_test`]).
+    pub fn set_background_compute(&mut self, on: bool) {
+        self.inline_compute = !on;
+        self.panes.design.compute = if on {
+            Compute::Background
+        } else {
+            Compute::Inline
+        };
     }
 
     /// Replaces the source of file-dialog answers (tests use [`FilePicker::Fixed`]).
@@ -477,27 +545,50 @@ impl TwofoldApp {
                 response,
                 panes,
                 derived,
+                analysis,
+                inline_compute,
                 ..
             } = self;
+            let mut current = false;
             if step.is_analysis()
                 && let Some(r) = *response
             {
-                derived.ensure_results(history.project(), r);
+                current = analysis.ensure(
+                    history.project(),
+                    history.revision(),
+                    r,
+                    *inline_compute,
+                    &ctx,
+                );
             }
             let view = View {
                 project: history.project(),
                 revision: history.revision(),
                 problems: &derived.problems,
                 response: *response,
-                results: derived
+                results: analysis
                     .results
-                    .as_ref()
+                    .as_deref()
                     .filter(|res| Some(res.response) == *response),
+                results_current: current,
                 pal,
                 now: &now,
             };
             if step.is_analysis() {
                 response_picker(ui, &view, &mut cmds);
+                if response.is_some() && !current {
+                    ui.horizontal(|ui| {
+                        ui.spinner();
+                        ui.label(if view.results.is_some() {
+                            "Updating the analysis for the latest values…"
+                        } else {
+                            "Computing the analysis…"
+                        });
+                    });
+                    if view.results.is_none() {
+                        return;
+                    }
+                }
             }
             panes.get(*step).ui(ui, &view, &mut cmds);
         });
@@ -587,6 +678,7 @@ impl TwofoldApp {
             self.panes.design.compute = Compute::Inline;
         }
         self.derived = Derived::of(self.history.project(), self.history.revision());
+        self.analysis = AnalysisSlot::default();
         self.debouncer.settled(self.history.revision());
         self.response = None;
         self.refresh();

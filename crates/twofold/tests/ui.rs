@@ -424,3 +424,21 @@ fn in_the_grid_tab_moves_across_responses_and_enter_to_the_next_unfinished_run()
         "Gloss still missing"
     );
 }
+
+#[test]
+fn the_analysis_runs_beside_the_window_and_appears_when_ready() {
+    let mut app = TwofoldApp::new_for_test(twofold_app::project::demo_project());
+    app.set_background_compute(true);
+    let mut h = harness(app);
+    h.state_mut().set_step(Step::Effects);
+    h.step();
+    // The first frame does not wait for the computation.
+    assert!(h.query_by_label("Computing the analysis…").is_some());
+    let start = std::time::Instant::now();
+    while h.query_by_label_contains("effect A ").is_none() {
+        assert!(start.elapsed().as_secs() < 60, "the analysis never arrived");
+        std::thread::sleep(std::time::Duration::from_millis(20));
+        h.step();
+    }
+    assert!(h.query_by_label("Computing the analysis…").is_none());
+}

@@ -98,7 +98,7 @@ fn build(view: &View<'_>, res: &ResponseResults) -> Option<Built> {
     };
     let half_terms = res.half_normal.iter().map(|p| p.term).collect();
     Some(Built {
-        key: (view.revision, res.response),
+        key: (res.revision, res.response),
         bars: EffectBars { bars, me, sme },
         bar_terms,
         half,
@@ -144,7 +144,7 @@ impl Pane for EffectsPane {
                 return;
             }
         };
-        if self.built.as_ref().map(|b| b.key) != Some((view.revision, res.response)) {
+        if self.built.as_ref().map(|b| b.key) != Some((res.revision, res.response)) {
             self.built = build(view, res);
         }
         let Some(built) = &self.built else {

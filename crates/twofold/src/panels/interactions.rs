@@ -96,7 +96,7 @@ fn build(view: &View<'_>, res: &super::results::ResponseResults) -> Built {
             ),
     );
     Built {
-        key: (view.revision, res.response),
+        key: (res.revision, res.response),
         mains,
         interactions,
         y,
@@ -125,7 +125,7 @@ impl Pane for PlotsPane {
             not_available(ui, &pal, "Not available yet: no run has a value.");
             return;
         }
-        if self.built.as_ref().map(|b| b.key) != Some((view.revision, res.response)) {
+        if self.built.as_ref().map(|b| b.key) != Some((res.revision, res.response)) {
             self.built = Some(build(view, res));
         }
         let Some(built) = &self.built else {

@@ -106,8 +106,11 @@ pub struct View<'a> {
     pub problems: &'a [Problem],
     /// The response shown in the analysis panes, if there is one.
     pub response: Option<usize>,
-    /// Analysis of that response (computed once per change, only while an analysis step shows).
+    /// Analysis of that response (computed once per change, only while an analysis step shows);
+    /// possibly of an earlier revision while the new one is computed.
     pub results: Option<&'a results::ResponseResults>,
+    /// Whether `results` are of the current revision.
+    pub results_current: bool,
     /// Colours of the current theme.
     pub pal: Palette,
     /// The current time as ISO-8601 text, recorded with entered values.

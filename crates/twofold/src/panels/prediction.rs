@@ -158,10 +158,10 @@ impl Pane for PredictionPane {
             self.coded.iter_mut().for_each(|c| *c = 0.0);
         }
         let stale = !matches!(&self.prediction,
-            Some((rev, r, point, _)) if *rev == view.revision && *r == res.response && *point == self.coded);
+            Some((rev, r, point, _)) if *rev == res.revision && *r == res.response && *point == self.coded);
         if stale {
             let p = predict(fit, &self.coded, DEFAULT_CONFIDENCE).map_err(|e| e.to_string());
-            self.prediction = Some((view.revision, res.response, self.coded.clone(), p));
+            self.prediction = Some((res.revision, res.response, self.coded.clone(), p));
         }
         ui.add_space(8.0);
         if let Some((_, _, _, p)) = &self.prediction {
@@ -205,12 +205,12 @@ impl Pane for PredictionPane {
             {
                 let r = best_settings(fit, goal, &res.transform, DEFAULT_CONFIDENCE)
                     .map_err(|e| e.to_string());
-                self.optimum = Some((view.revision, res.response, r));
+                self.optimum = Some((res.revision, res.response, r));
             }
         });
         let mut use_settings = None;
         if let Some((rev, r, result)) = &self.optimum {
-            if *rev != view.revision || *r != res.response {
+            if *rev != res.revision || *r != res.response {
                 ui.weak("The data or the model changed since: press Find again.");
             } else {
                 match result {

@@ -72,7 +72,7 @@ impl Pane for ResidualsPane {
             not_available(ui, &pal, &format!("Not available yet: {why}."));
             return;
         }
-        let key = (view.revision, res.response);
+        let key = (res.revision, res.response);
         if self.built.as_ref().map(|b| b.0) != Some(key) {
             self.built = build(res).map(|p| (key, p));
         }

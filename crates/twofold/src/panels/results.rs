@@ -63,6 +63,8 @@ pub struct PairMeans {
 /// Everything the analysis panes read for one response.
 #[derive(Debug, Clone)]
 pub struct ResponseResults {
+    /// Revision of the project data analysed.
+    pub revision: u64,
     /// Response position.
     pub response: usize,
     /// Runs in the sheet.
@@ -136,8 +138,15 @@ pub fn natural_ranges(project: &Project) -> Vec<(f64, f64)> {
 }
 
 impl ResponseResults {
-    /// Analyses response `response` of `project`.
+    /// Analyses response `response` of `project` (revision 0: for callers without a history,
+    /// such as exports).
     pub fn compute(project: &Project, response: usize) -> ResponseResults {
+        ResponseResults::compute_at(project, 0, response)
+    }
+
+    /// Analyses response `response` of `project`, whose content has revision `revision` (the
+    /// window's caches compare it).
+    pub fn compute_at(project: &Project, revision: u64, response: usize) -> ResponseResults {
         let k = project.factors.len();
         let def = project.responses.get(response);
         let transform = def.map_or(Transform::None, |d| core_transform(d.model.transform));
@@ -187,6 +196,7 @@ impl ResponseResults {
         let hierarchical = def.is_none_or(|d| d.model.hierarchical);
 
         let mut out = ResponseResults {
+            revision,
             response,
             total_runs: project.runs.len(),
             used_runs,

@@ -330,37 +330,51 @@ fn next_run_card(
             };
             ui.add(egui::ProgressBar::new(frac).desired_height(8.0));
             ui.add_space(4.0);
+            // Many factors go side by side, so the card never pushes the sheet off the screen.
+            let k = project.factors.len();
+            let per_column = 5;
+            let columns = k.div_ceil(per_column).clamp(1, 5);
+            let rows_per_column = k.div_ceil(columns);
             egui::Grid::new("next_run_settings")
-                .num_columns(2)
-                .spacing([24.0, 4.0])
+                .num_columns(2 * columns)
+                .spacing([18.0, 4.0])
                 .show(ui, |ui| {
-                    for (i, f) in project.factors.iter().enumerate() {
-                        let c = run.levels.get(i).copied().unwrap_or(0);
-                        ui.label(
-                            RichText::new(format!(
-                                "{}  {}",
-                                LETTERS.get(i).copied().unwrap_or('?'),
-                                f.name
-                            ))
-                            .size(20.0)
-                            .color(pal.muted),
-                        );
-                        ui.horizontal(|ui| {
+                    for row in 0..rows_per_column {
+                        for col in 0..columns {
+                            let i = col * rows_per_column + row;
+                            let Some(f) = project.factors.get(i) else {
+                                ui.label("");
+                                ui.label("");
+                                continue;
+                            };
+                            let c = run.levels.get(i).copied().unwrap_or(0);
                             ui.label(
-                                RichText::new(natural_setting(f, c))
-                                    .size(26.0)
-                                    .family(crate::theme::bold_family())
-                                    .strong()
-                                    .color(pal.ink),
+                                RichText::new(format!(
+                                    "{}  {}",
+                                    LETTERS.get(i).copied().unwrap_or('?'),
+                                    f.name
+                                ))
+                                .size(19.0)
+                                .color(pal.muted),
                             );
-                            if outside_safe_range(f, c) {
+                            ui.horizontal(|ui| {
                                 ui.label(
-                                    RichText::new("⚠ outside the safe range")
-                                        .size(18.0)
-                                        .color(pal.warn),
+                                    RichText::new(natural_setting(f, c))
+                                        .size(26.0)
+                                        .family(crate::theme::bold_family())
+                                        .strong()
+                                        .color(pal.ink),
                                 );
-                            }
-                        });
+                                if outside_safe_range(f, c) {
+                                    ui.label(
+                                        RichText::new("⚠ outside the safe range")
+                                            .size(18.0)
+                                            .color(pal.warn),
+                                    );
+                                }
+                                ui.add_space(16.0);
+                            });
+                        }
                         ui.end_row();
                     }
                 });
