@@ -289,14 +289,34 @@ mod tests {
         assert!(
             layers[1].contains(">Bold title</text>") && !layers[0].contains(">Bold title</text>")
         );
-        let first = pdf(&[svg.clone()], "t").unwrap();
+        let first = pdf(std::slice::from_ref(&svg), "t").unwrap();
         // The fonts of a two-face conversion come out in hash order; ten tries would catch it.
         for _ in 0..10 {
             assert!(
-                pdf(&[svg.clone()], "t").unwrap() == first,
+                pdf(std::slice::from_ref(&svg), "t").unwrap() == first,
                 "PDF bytes differ between runs"
             );
         }
+    }
+
+    #[test]
+    fn png_has_the_paper_size_and_says_300_dpi() {
+        let svg =
+            crate::export::summary_svg(&crate::export::SummaryInput::default(), Paper::Letter);
+        let bytes = png(&svg, Paper::Letter).unwrap();
+        let be = |at: usize| {
+            u32::from_be_bytes([bytes[at], bytes[at + 1], bytes[at + 2], bytes[at + 3]])
+        };
+        assert_eq!((be(16), be(20)), (2550, 3300), "IHDR width and height");
+        assert_eq!(&bytes[37..41], b"pHYs");
+        assert_eq!(
+            (be(41), be(45), bytes[49]),
+            (11811, 11811, 1),
+            "300 dpi in dots per metre"
+        );
+        assert_eq!(be(50), crc32(&bytes[37..50]));
+        let decoded = tiny_skia::Pixmap::decode_png(&bytes).unwrap();
+        assert_eq!((decoded.width(), decoded.height()), (2550, 3300));
     }
 
     #[test]

@@ -32,16 +32,36 @@ pub fn render_svg(input: &SummaryInput, paper: Paper) -> String {
 
     let header_bottom = header(&mut svg, input, m, m, content_w);
 
-    // Measure the full-width block at the foot of the page, then draw it there.
-    let bottom_h = {
+    // Measure the full-width block at the foot of the page, then draw it there. It may take a
+    // quarter of the page; beyond that fewer warnings are shown (the rest are counted).
+    let measure = |limits: FootLimits| {
         let mut scratch = Svg::new(w, h, paper.physical());
         let mut flow = Flow::new(m, content_w, 0.0, f64::INFINITY);
-        foot(&mut scratch, &mut flow, input);
+        foot(&mut scratch, &mut flow, input, limits);
         flow.y
     };
+    let budget = 0.25 * (h - 2.0 * m);
+    let mut limits = FootLimits {
+        equation_lines: 4,
+        warnings: input.warnings.len().min(6),
+        warning_lines: 3,
+    };
+    let mut bottom_h = measure(limits);
+    while bottom_h > budget {
+        if limits.warning_lines > 2 {
+            limits.warning_lines = 2;
+        } else if limits.equation_lines > 2 {
+            limits.equation_lines -= 1;
+        } else if limits.warnings > 1 {
+            limits.warnings -= 1;
+        } else {
+            break;
+        }
+        bottom_h = measure(limits);
+    }
     let foot_top = (h - m - bottom_h).max(header_bottom + 400.0);
     let mut flow = Flow::new(m, content_w, foot_top, h - m);
-    foot(&mut svg, &mut flow, input);
+    foot(&mut svg, &mut flow, input, limits);
 
     let gap = 70.0;
     let col_w = (content_w - gap) / 2.0;
@@ -140,7 +160,13 @@ fn left_column(svg: &mut Svg, input: &SummaryInput, mut flow: Flow) {
         anova(&mut scratch, &mut probe, input);
         probe.y
     };
-    let anova_h = anova_h.min(flow.remaining() * 0.5);
+    // The effect ranking keeps room for its ten largest effects and its notes first.
+    let shown = input.effects.len().min(10) as f64;
+    let effects_min = sizes::HEADING * 1.55
+        + row_height() * (shown + 1.0)
+        + sizes::SMALL * sizes::LEADING * 5.0
+        + sizes::BODY * 0.6;
+    let anova_h = anova_h.min((flow.remaining() - effects_min).max(0.0));
     let split = flow.bottom - anova_h;
     let mut effects_flow = Flow::new(flow.x, flow.w, flow.y, split);
     effects(svg, &mut effects_flow, input);
@@ -179,7 +205,7 @@ fn factors(svg: &mut Svg, flow: &mut Flow, input: &SummaryInput) {
             ]
         })
         .collect();
-    flow.table(svg, &columns, &rows, 12);
+    flow.table(svg, &columns, &rows, 10);
 }
 
 /// `2⁵⁻¹` in superscript digits.
@@ -273,7 +299,7 @@ fn design(svg: &mut Svg, flow: &mut Flow, input: &SummaryInput) {
     } else {
         d.aliases.join(";  ")
     };
-    let all = flow.fact(svg, "Aliases", &aliases, LABEL_W, 4);
+    let all = flow.fact(svg, "Aliases", &aliases, LABEL_W, 3);
     if !all {
         flow.paragraph_at(
             svg,
@@ -502,7 +528,14 @@ fn anova(svg: &mut Svg, flow: &mut Flow, input: &SummaryInput) {
             cells
         })
         .collect();
-    flow.table(svg, &columns, &rows, 30);
+    if flow.table(svg, &columns, &rows, 30) == 0 && !rows.is_empty() {
+        flow.paragraph(
+            svg,
+            "The ANOVA table does not fit on this page; it is in the app.",
+            TextStyle::new(sizes::BODY).fill(MUTED),
+            2,
+        );
+    }
     let mut fit = Vec::new();
     if let Some(v) = table.r_squared {
         fit.push(format!("R² = {}", format::percent(v)));
@@ -531,26 +564,39 @@ fn right_column(svg: &mut Svg, input: &SummaryInput, flow: Flow) {
     };
     let charts_bottom = (flow.bottom - tail_h).max(flow.y + 600.0);
     let mut top = Flow::new(flow.x, flow.w, flow.y, charts_bottom);
-    let panels: Vec<_> = input.interactions.iter().take(4).cloned().collect();
+    let mut panels: Vec<_> = input.interactions.iter().take(4).cloned().collect();
     let heading_h = sizes::HEADING * 1.55;
     let note_h = 2.0 * sizes::SMALL * sizes::LEADING;
     let gap = 50.0;
-    let rows = panels.len().div_ceil(2);
     let panel_w = (top.w - gap) / 2.0;
     let available = top.remaining() - 2.0 * heading_h - 20.0 - note_h;
     // The interaction panels get up to 55 % of the room (never taller than wide); the
-    // half-normal plot takes the rest, up to a square.
-    let panel_h = if rows == 0 {
-        0.0
-    } else {
-        ((available * 0.55 - gap * (rows as f64 - 1.0)) / rows as f64).min(panel_w * 1.1)
+    // half-normal plot takes the rest, up to a little taller than wide. On a crowded page
+    // fewer panels are drawn rather than panels too small to read.
+    let mut dropped_for_room = false;
+    let (rows, panel_h, hn_h) = loop {
+        let rows = panels.len().div_ceil(2);
+        let panel_h = if rows == 0 {
+            0.0
+        } else {
+            ((available * 0.55 - gap * (rows as f64 - 1.0)) / rows as f64).min(panel_w * 1.1)
+        };
+        let interactions_h = if rows == 0 {
+            2.0 * sizes::BODY * sizes::LEADING
+        } else {
+            rows as f64 * panel_h + (rows as f64 - 1.0) * gap
+        };
+        let hn_h = (available - interactions_h).min(flow.w * 1.2).max(0.0);
+        let cramped = panel_h < 420.0 || hn_h < 600.0;
+        if cramped && panels.len() > 2 {
+            panels.truncate(2);
+        } else if cramped && !panels.is_empty() && (panel_h < 330.0 || hn_h < 450.0) {
+            panels.clear();
+            dropped_for_room = true;
+        } else {
+            break (rows, panel_h, hn_h);
+        }
     };
-    let interactions_h = if rows == 0 {
-        sizes::BODY * sizes::LEADING
-    } else {
-        rows as f64 * panel_h + (rows as f64 - 1.0) * gap
-    };
-    let hn_h = (available - interactions_h).min(flow.w * 1.2).max(0.0);
 
     top.heading(svg, "Half-normal plot of effects");
     match top.take(hn_h) {
@@ -563,12 +609,12 @@ fn right_column(svg: &mut Svg, input: &SummaryInput, flow: Flow) {
     top.space(20.0);
     top.heading(svg, "Interaction plots");
     if panels.is_empty() {
-        top.paragraph(
-            svg,
-            "No two-factor interaction to plot.",
-            TextStyle::new(sizes::BODY).fill(MUTED),
-            1,
-        );
+        let text = if dropped_for_room {
+            "The interaction plots do not fit on this page; they are in the app."
+        } else {
+            "No two-factor interaction to plot."
+        };
+        top.paragraph(svg, text, TextStyle::new(sizes::BODY).fill(MUTED), 2);
     } else {
         let ticks: Ticks = charts::shared_interaction_ticks(&panels);
         for (i, panel) in panels.iter().enumerate() {
@@ -583,9 +629,11 @@ fn right_column(svg: &mut Svg, input: &SummaryInput, flow: Flow) {
             charts::interaction(svg, area, panel, &ticks);
         }
         top.space(rows as f64 * panel_h + (rows as f64 - 1.0) * gap);
-        let shown = if input.interactions.len() > 4 {
+        let shown = if input.interactions.len() > panels.len() {
+            let count = ["", "one", "two", "three", "four"];
             format!(
-                " The four strongest of {} are shown.",
+                " The {} strongest of {} are shown.",
+                count.get(panels.len()).copied().unwrap_or("four"),
                 input.interactions.len()
             )
         } else {
@@ -681,7 +729,15 @@ fn tail(svg: &mut Svg, flow: &mut Flow, input: &SummaryInput) {
 }
 
 /// Equation, warnings, cautions and footer, across the page.
-fn foot(svg: &mut Svg, flow: &mut Flow, input: &SummaryInput) {
+/// How much of the variable text the foot may show.
+#[derive(Debug, Clone, Copy)]
+struct FootLimits {
+    equation_lines: usize,
+    warnings: usize,
+    warning_lines: usize,
+}
+
+fn foot(svg: &mut Svg, flow: &mut Flow, input: &SummaryInput, limits: FootLimits) {
     let body = TextStyle::new(sizes::BODY);
     let small = TextStyle::new(sizes::SMALL).fill(MUTED);
     svg.line((flow.x, flow.y), (flow.x + flow.w, flow.y), INK, 3.0, None);
@@ -689,7 +745,10 @@ fn foot(svg: &mut Svg, flow: &mut Flow, input: &SummaryInput) {
     flow.heading(svg, "Model equation in natural units");
     match &input.equation {
         Some(eq) => {
-            flow.paragraph(svg, &eq.text, body, 4);
+            let all = flow.paragraph(svg, &eq.text, body, limits.equation_lines);
+            if !all {
+                flow.paragraph(svg, "(the full equation is in the app)", small, 1);
+            }
             if !eq.note.is_empty() {
                 flow.paragraph(svg, &eq.note, small, 2);
             }
@@ -702,9 +761,9 @@ fn foot(svg: &mut Svg, flow: &mut Flow, input: &SummaryInput) {
     if input.warnings.is_empty() {
         flow.paragraph(svg, "None.", body.fill(MUTED), 1);
     }
-    let max_warnings = 6;
+    let max_warnings = limits.warnings;
     for w in input.warnings.iter().take(max_warnings) {
-        bullet(svg, flow, w, body, ALERT);
+        bullet(svg, flow, w, body, ALERT, limits.warning_lines);
     }
     if input.warnings.len() > max_warnings {
         let n = input.warnings.len() - max_warnings;
@@ -717,7 +776,7 @@ fn foot(svg: &mut Svg, flow: &mut Flow, input: &SummaryInput) {
     }
     flow.heading(svg, "Before acting on this page");
     for c in CAUTIONS {
-        bullet(svg, flow, c, body, INK);
+        bullet(svg, flow, c, body, INK, 3);
     }
     flow.space(sizes::SMALL * 0.6);
     let f = &input.footer;
@@ -736,7 +795,14 @@ fn foot(svg: &mut Svg, flow: &mut Flow, input: &SummaryInput) {
     flow.paragraph(svg, &facts.join("  ·  "), small, 2);
 }
 
-fn bullet(svg: &mut Svg, flow: &mut Flow, text: &str, style: TextStyle, mark: super::svg::Colour) {
+fn bullet(
+    svg: &mut Svg,
+    flow: &mut Flow,
+    text: &str,
+    style: TextStyle,
+    mark: super::svg::Colour,
+    max_lines: usize,
+) {
     let indent = style.size * 1.1;
     if flow.remaining() < style.size {
         return;
@@ -747,7 +813,7 @@ fn bullet(svg: &mut Svg, flow: &mut Flow, text: &str, style: TextStyle, mark: su
         "•",
         TextStyle::new(style.size).bold().fill(mark),
     );
-    flow.paragraph_at(svg, text, style, 3, indent);
+    flow.paragraph_at(svg, text, style, max_lines, indent);
 }
 
 #[cfg(test)]
@@ -760,6 +826,75 @@ mod tests {
         assert_eq!(fraction_symbol(11, 0), "2¹¹");
         assert_eq!(roman(4), "IV");
         assert_eq!(roman(20), "20");
+    }
+
+    /// A project at the edge of what a page holds: many factors, long names, every effect of a
+    /// 32-run design, a long ANOVA, four interactions, many warnings.
+    fn crowded() -> SummaryInput {
+        use crate::export::input::*;
+        let letters = "ABCDEFGHJKLMN";
+        let long = "Concentration of the secondary accelerator in the premix";
+        SummaryInput {
+            title: "A very long project title that goes on and on about the trial it describes in detail".into(),
+            date: "2025-03-04".into(),
+            description: "Word ".repeat(400),
+            response: ResponseFacts { name: "Peel strength after humid ageing".into(), unit: "N/25 mm".into(), transform: "natural log".into(), runs_used: 35, runs_total: 36 },
+            factors: letters.chars().map(|l| FactorRow { letter: l, name: format!("{long} {l}"), unit: "g/kg".into(), low: LevelValue::Number(-1.25e-5), high: LevelValue::Label("supplier with a long name".into()) }).collect(),
+            design: DesignFacts { factors: 13, generators_count: 8, base_runs: 32, centre_points: 4, replicates: 1, blocks: 2, total_runs: 36, generators: (0..8).map(|i| format!("{} = ABCDE", &letters[5 + i..6 + i])).collect(), block_generators: vec!["ABC".into()], resolution: Some(4), aliases: (0..40).map(|i| format!("T{i} = ABCD = BCDE = CDEF")).collect(), seed: Some(42) },
+            effects: (0..31).map(|i| EffectRow { term: format!("AB{i}=CDE=FGH"), effect: 40.0 / (i as f64 + 1.0) * if i % 2 == 0 { 1.0 } else { -1.0 }, in_model: i < 6 }).collect(),
+            lenth: Some(LenthFacts { pse: 1.5, me: 3.2, sme: 6.1, alpha: 0.05, df: 10.3 }),
+            half_normal: (0..31).map(|i| HalfNormalPoint { term: format!("T{i}"), abs_effect: 40.0 / (i as f64 + 1.0), quantile: 2.5 - i as f64 * 0.08, in_model: i < 6 }).collect(),
+            interactions: (0..6).map(|i| InteractionPanel { term: format!("A{i}"), x_factor: long.into(), x_levels: ["low setting with words".into(), "high".into()], trace_factor: long.into(), trace_levels: ["a".into(), "b".into()], means: [[Some(1.0 + i as f64), Some(3.0)], [None, Some(-2.0)]] }).collect(),
+            interaction_note: String::new(),
+            anova: Some(AnovaTable { rows: (0..40).map(|i| AnovaRow { source: format!("Source {i}"), df: 1, ss: 12345.678, ms: Some(0.00012), f: Some(1e9), p: Some(0.5), emphasis: i == 0 }).collect(), r_squared: Some(0.9), adj_r_squared: Some(0.8), pred_r_squared: None, std_dev: Some(2.0) }),
+            equation: Some(Equation { text: format!("y = {}", "+ 1.234567*Concentration of the secondary accelerator ".repeat(30)), note: "note".into() }),
+            best: Some(BestSettings { goal: "maximise Peel strength".into(), settings: (0..13).map(|i| (format!("{long} {i}"), "supplier with a long name".into())).collect(), predicted: Some(12.5), interval: Some((10.0, 15.0, "95 % prediction interval".into())) }),
+            ofat: Some(OfatFacts { ofat_runs: 224, design_runs: 32, explanation: "x ".repeat(200) }),
+            warnings: (0..12).map(|i| format!("Warning {i}: {}", "something needs a look ".repeat(12))).collect(),
+            footer: Footer { tool: "Twofold test".into(), seed: Some(42), data_hash: "f".repeat(64) },
+        }
+    }
+
+    /// Every `x`/`y` attribute of every text element.
+    fn text_positions(svg: &str) -> Vec<(f64, f64)> {
+        svg.lines()
+            .filter(|l| l.starts_with("<text x="))
+            .map(|l| {
+                let attr = |name: &str| -> f64 {
+                    let start = l.find(&format!(" {name}=\"")).unwrap() + name.len() + 3;
+                    let end = start + l[start..].find('"').unwrap();
+                    l[start..end].parse().unwrap()
+                };
+                (attr("x"), attr("y"))
+            })
+            .collect()
+    }
+
+    #[test]
+    fn a_crowded_page_stays_inside_its_margins_and_says_what_it_left_out() {
+        for paper in [Paper::A4, Paper::Letter] {
+            let svg = render_svg(&crowded(), paper);
+            let (w, h) = paper.size();
+            let m = paper.margin();
+            for (x, y) in text_positions(&svg) {
+                assert!(
+                    x >= m - 1.0 && x <= w - m + 1.0,
+                    "{paper:?}: text at x = {x}"
+                );
+                assert!(y >= m && y <= h - m + 1.0, "{paper:?}: text at y = {y}");
+            }
+            assert!(svg.contains("smaller effects not listed"), "{paper:?}");
+            assert!(svg.contains("more rows not shown"), "{paper:?}");
+            assert!(
+                svg.contains("more warnings are listed in the app"),
+                "{paper:?}"
+            );
+            assert!(svg.contains("strongest of 6"), "{paper:?}");
+            assert!(
+                svg.contains("confirmation runs"),
+                "{paper:?}: the cautions always fit"
+            );
+        }
     }
 
     #[test]

@@ -358,7 +358,7 @@ mod tests {
         assert_eq!(num(12.0), "12");
         assert_eq!(num(12.25), "12.3");
         assert_eq!(num(-0.04), "0");
-        assert_eq!(num(-3.14), "-3.1");
+        assert_eq!(num(-3.26), "-3.3");
         assert_eq!(num(f64::NAN), "0");
     }
 
