@@ -41,14 +41,3 @@ pub fn run(args: &[String], out: &mut dyn Write, err: &mut dyn Write) -> i32 {
         }
     }
 }
-
-/// A text cell made safe for spreadsheets: text starting with `=`, `+`, `-`, `@`, a tab or a
-/// carriage return is prefixed with a single quote so it is not read as a formula (OWASP, "CSV
-/// Injection"). Used for names in headless CSV output.
-pub fn csv_text(text: &str) -> String {
-    if text.starts_with(['=', '+', '-', '@', '\t', '\r']) {
-        format!("'{text}")
-    } else {
-        text.to_string()
-    }
-}

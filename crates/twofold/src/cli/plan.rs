@@ -331,7 +331,11 @@ fn write_csv(p: &Planned, out: &mut dyn Write) -> std::io::Result<()> {
         "centre".into(),
         "replicate".into(),
     ];
-    header.extend(p.names.iter().map(|n| crate::cli::csv_text(n)));
+    header.extend(
+        p.names
+            .iter()
+            .map(|n| crate::interchange::guard(n).into_owned()),
+    );
     w.write_record(&header).map_err(std::io::Error::other)?;
     for r in &p.plan.runs {
         let mut row = vec![
