@@ -192,7 +192,19 @@ impl AnalysisSlot {
             let project = project.clone();
             let repaint = ctx.clone();
             std::thread::spawn(move || {
-                let _ = tx.send(ResponseResults::compute_at(&project, revision, response));
+                // A fault in the mathematics must not leave the pane waiting for ever (or
+                // restart the same computation again and again): it becomes the shown reason.
+                let result = std::panic::catch_unwind(|| {
+                    ResponseResults::compute_at(&project, revision, response)
+                })
+                .unwrap_or_else(|_| {
+                    ResponseResults::unavailable(
+                        revision,
+                        response,
+                        "the analysis stopped with an internal error (please report it)",
+                    )
+                });
+                let _ = tx.send(result);
                 repaint.request_repaint();
             });
             self.pending = Some((want, rx));

@@ -442,3 +442,22 @@ fn the_analysis_runs_beside_the_window_and_appears_when_ready() {
     }
     assert!(h.query_by_label("Computing the analysis…").is_none());
 }
+
+#[test]
+fn a_new_factor_takes_the_keyboard_so_typing_names_it_in_one_undo_step() {
+    let mut h = harness(TwofoldApp::new_for_test(three_factor_project()));
+    h.state_mut().set_step(Step::Factors);
+    h.run();
+    h.get_by_label("+ Add factor").click();
+    h.run();
+    // One key at a time, as a person types.
+    for c in "Pressure".chars() {
+        h.get_by_label("+ Add factor").type_text(&c.to_string());
+        h.run();
+    }
+    assert_eq!(h.state().project().factors[3].name, "Pressure");
+    // The keystrokes make one step: one undo restores the placeholder name.
+    h.state_mut().undo();
+    h.run();
+    assert_eq!(h.state().project().factors[3].name, "Factor D");
+}

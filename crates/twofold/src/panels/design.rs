@@ -69,7 +69,12 @@ impl DesignPane {
                         ui.ctx()
                             .request_repaint_after(std::time::Duration::from_millis(100));
                     }
-                    Err(std::sync::mpsc::TryRecvError::Disconnected) => self.pending = None,
+                    Err(std::sync::mpsc::TryRecvError::Disconnected) => {
+                        // The worker died without an answer: say so rather than search again.
+                        self.options =
+                            Some((k, Err("the search stopped with an internal error".into())));
+                        self.pending = None;
+                    }
                 }
             } else {
                 self.pending = None;

@@ -10,13 +10,17 @@ use crate::project::{
 };
 use twofold_core::term::LETTERS;
 
-/// View state of the factors pane (none beyond what egui keeps for the text fields).
+/// View state of the factors pane.
 #[derive(Debug, Default)]
-pub struct FactorsPane {}
+pub struct FactorsPane {
+    /// A factor just added: its name field takes the keyboard with the placeholder selected,
+    /// so typing replaces it.
+    focus_name: Option<usize>,
+}
 
 impl Pane for FactorsPane {
     fn ui(&mut self, ui: &mut Ui, view: &View<'_>, out: &mut Vec<Command>) {
-        let Self {} = self;
+        let Self { focus_name } = self;
         let project = view.project;
         let pal = view.pal;
         ui.heading("Factors");
@@ -49,7 +53,7 @@ impl Pane for FactorsPane {
         egui::ScrollArea::vertical()
             .auto_shrink([false, true])
             .show(ui, |ui| {
-                factor_grid(ui, view, out);
+                factor_grid(ui, view, focus_name, out);
                 ui.add_space(8.0);
                 let next = project.factors.len();
                 ui.add_enabled_ui(next < MAX_FACTORS, |ui| {
@@ -59,6 +63,7 @@ impl Pane for FactorsPane {
                         .clicked()
                     {
                         let letter = LETTERS.get(next).copied().unwrap_or('?');
+                        *focus_name = Some(next);
                         out.push(Command::Edit(Edit::AddFactor(Factor::numeric(
                             &format!("Factor {letter}"),
                             "",
@@ -71,7 +76,12 @@ impl Pane for FactorsPane {
     }
 }
 
-fn factor_grid(ui: &mut Ui, view: &View<'_>, out: &mut Vec<Command>) {
+fn factor_grid(
+    ui: &mut Ui,
+    view: &View<'_>,
+    focus_name: &mut Option<usize>,
+    out: &mut Vec<Command>,
+) {
     let project = view.project;
     let pal = view.pal;
     let n = project.factors.len();
@@ -102,6 +112,10 @@ fn factor_grid(ui: &mut Ui, view: &View<'_>, out: &mut Vec<Command>) {
                 let id = ui.scope_id().with(("factor", index));
                 let letter = LETTERS.get(index).copied().unwrap_or('?');
                 ui.label(RichText::new(letter.to_string()).strong().size(17.0));
+                if *focus_name == Some(index) {
+                    select_all_and_focus(ui, id.with("name"), &f.name);
+                    *focus_name = None;
+                }
                 if let Some(name) = text_field(ui, id.with("name"), &f.name, 170.0, "name") {
                     out.push(Command::Edit(Edit::RenameFactor { index, name }));
                 }
@@ -290,4 +304,14 @@ fn problems_cell(ui: &mut Ui, view: &View<'_>, index: usize) {
             }
         }
     });
+}
+
+/// Gives the text field `id` the keyboard with all of `text` selected.
+fn select_all_and_focus(ui: &mut Ui, id: egui::Id, text: &str) {
+    let mut state = egui::TextEdit::load_state(ui.ctx(), id).unwrap_or_default();
+    state
+        .cursor
+        .set_char_range(Some(egui::text::CCursorRange::select_all_str(text)));
+    state.store(ui.ctx(), id);
+    ui.memory_mut(|m| m.request_focus(id));
 }

@@ -110,10 +110,13 @@ impl EffectBars {
             } else {
                 format!("{}  {}", bar.label, bar.detail)
             };
-            painter.text(
+            // Clipped to the label column: a long name must not run under the bars.
+            let label_clip =
+                Rect::from_min_max(row.left_top(), pos2(bar_area.left() - 6.0, row.bottom()));
+            painter.with_clip_rect(label_clip).text(
                 pos2(outer.left() + 4.0, row.center().y),
                 Align2::LEFT_CENTER,
-                truncate(&text, 28),
+                truncate(&text, 40),
                 FontId::proportional(13.5),
                 if bar.in_model { pal.ink } else { pal.muted },
             );

@@ -403,6 +403,38 @@ impl ResponseResults {
             .map(|w| w.text.as_str())
     }
 
+    /// Results that say only why there are none (e.g. the computation stopped with an internal
+    /// error): every step unavailable with `why`.
+    pub fn unavailable(revision: u64, response: usize, why: &str) -> ResponseResults {
+        let mut out = ResponseResults {
+            revision,
+            response,
+            total_runs: 0,
+            used_runs: 0,
+            missing_runs: 0,
+            excluded_runs: 0,
+            bad_cells: Vec::new(),
+            transform: Transform::None,
+            observations: Err(String::new()),
+            effects: Err(String::new()),
+            lenth: Err(String::new()),
+            half_normal: Vec::new(),
+            chosen_terms: Vec::new(),
+            fit: Err(String::new()),
+            diagnostics: None,
+            run_order: Vec::new(),
+            main_means: Vec::new(),
+            centre_mean: None,
+            pairs: Vec::new(),
+            equation_coded: None,
+            equation_natural: Err(String::new()),
+            ranges: Vec::new(),
+            warnings: Vec::new(),
+        };
+        out.set_all_unavailable(why);
+        out
+    }
+
     fn set_all_unavailable(&mut self, why: &str) {
         self.observations = Err(why.into());
         self.effects = Err(why.into());
