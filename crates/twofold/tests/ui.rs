@@ -80,7 +80,10 @@ fn choose_design(h: &mut Harness<'static, TwofoldApp>, runs: usize) {
     let make = h
         .query_by_label("Make the run sheet")
         .or_else(|| h.query_by_label("Apply and remake the run sheet"));
-    make.expect("the button that makes the run sheet").click();
+    let Some(make) = make else {
+        panic!("no button makes the run sheet");
+    };
+    make.click();
     h.run();
 }
 
@@ -225,13 +228,15 @@ fn fill_runs(h: &mut Harness<'static, TwofoldApp>, skip: &[u32]) {
     for (order, levels) in runs {
         if skip.contains(&order) {
             // Leave it for later: mark it done without a value so the card moves on.
-            let idx = h
+            let Some(idx) = h
                 .state()
                 .project()
                 .runs
                 .iter()
                 .position(|r| r.run_order == order)
-                .unwrap();
+            else {
+                panic!("no run {order}");
+            };
             h.state_mut().apply(twofold_app::panels::Command::Edit(
                 twofold_app::project::Edit::SetStatus {
                     run: idx,
@@ -272,10 +277,10 @@ fn entering_the_last_value_updates_the_effect_ranking() {
         .clone();
     h.state_mut().set_step(Step::Runs);
     h.run();
-    let cell = format!("value run 8 Gloss");
-    h.get_by_label(&cell).focus();
+    let cell = "value run 8 Gloss";
+    h.get_by_label(cell).focus();
     h.run();
-    h.get_by_label(&cell)
+    h.get_by_label(cell)
         .type_text(&formula(&last.levels).to_string());
     h.key_press(egui::Key::Enter);
     h.run();
