@@ -8,11 +8,12 @@
 //! disk, and [`TwofoldApp::ui_in`] draws it into any `Ui`, so tests drive the real window code.
 
 use std::path::{Path, PathBuf};
-use std::sync::Arc;
 use std::sync::mpsc::{Receiver, channel};
+use std::sync::{Arc, Mutex};
 
 use egui::{Key, KeyboardShortcut, Modifiers, RichText, Ui};
 
+use crate::analysis::AnalysisCache;
 use crate::panels::design::{Compute, DesignPane};
 use crate::panels::effects::EffectsPane;
 use crate::panels::factors::FactorsPane;
@@ -146,6 +147,24 @@ impl Derived {
 struct AnalysisSlot {
     results: Option<Arc<ResponseResults>>,
     pending: Option<((u64, usize), Receiver<ResponseResults>)>,
+    /// The shared analysis cache: going back with undo finds the earlier analysis there. Only the
+    /// one worker (or, in tests, the frame) locks it, never the drawing.
+    cache: Arc<Mutex<AnalysisCache>>,
+}
+
+/// The digest of `response` at `revision`, from the analysis cache.
+fn cached_results(
+    cache: &Mutex<AnalysisCache>,
+    project: &Project,
+    revision: u64,
+    response: usize,
+) -> ResponseResults {
+    // A poisoned lock only means an earlier computation panicked; the entries are still sound.
+    let mut cache = cache
+        .lock()
+        .unwrap_or_else(std::sync::PoisonError::into_inner);
+    let analysis = cache.get(project, revision, response);
+    ResponseResults::from_analysis(project, &analysis)
 }
 
 impl AnalysisSlot {
@@ -167,8 +186,11 @@ impl AnalysisSlot {
             return true;
         }
         if inline {
-            self.results = Some(Arc::new(ResponseResults::compute_at(
-                project, revision, response,
+            self.results = Some(Arc::new(cached_results(
+                &self.cache,
+                project,
+                revision,
+                response,
             )));
             return true;
         }
@@ -191,11 +213,12 @@ impl AnalysisSlot {
             let (tx, rx) = channel();
             let project = project.clone();
             let repaint = ctx.clone();
+            let cache = Arc::clone(&self.cache);
             std::thread::spawn(move || {
                 // A fault in the mathematics must not leave the pane waiting for ever (or
                 // restart the same computation again and again): it becomes the shown reason.
                 let result = std::panic::catch_unwind(|| {
-                    ResponseResults::compute_at(&project, revision, response)
+                    cached_results(&cache, &project, revision, response)
                 })
                 .unwrap_or_else(|_| {
                     ResponseResults::unavailable(

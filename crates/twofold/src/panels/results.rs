@@ -1,24 +1,25 @@
 //! What the analysis panes show for one response, computed from the project once per change of
 //! the data and then only read while drawing.
 //!
-//! This is the bridge from the project (typed cells, run status, model choices) to the core's
-//! analysis: it builds the checked observation table, then the effects, Lenth's margins, the
-//! half-normal positions, the model fit, its diagnostics and the means the plots draw. Every
-//! step that cannot be done yet keeps the reason, in words, so a pane can say "not available
-//! yet, because ..." instead of showing a number that is not there.
+//! The computing is done by the analysis cache ([`crate::analysis`]); this is the panes' digest
+//! of one of its entries: the counts of used, missing and excluded runs, the cells that are not
+//! numbers, the observed corner means the interaction plots draw, and the warnings in plain
+//! words. Every step that cannot be done yet keeps the reason, in words, so a pane can say "not
+//! available yet, because ..." instead of showing a number that is not there.
 
-use twofold_core::anova::{Equation, ModelFit, ModelSpec, fit_model};
+use twofold_core::anova::{Equation, ModelFit};
 use twofold_core::data::Observations;
-use twofold_core::diagnostics::{Diagnostics, diagnostics};
-use twofold_core::effects::{EffectTable, estimate_effects};
-use twofold_core::halfnormal::{HalfNormalPoint, half_normal};
-use twofold_core::lenth::{Lenth, lenth};
-use twofold_core::means::{MainEffectMeans, main_effect_means};
+use twofold_core::diagnostics::Diagnostics;
+use twofold_core::effects::EffectTable;
+use twofold_core::halfnormal::HalfNormalPoint;
+use twofold_core::lenth::Lenth;
+use twofold_core::means::MainEffectMeans;
 use twofold_core::predict::CURVATURE_ALPHA;
 use twofold_core::term::Term;
 use twofold_core::transform::Transform;
 
-use crate::project::{CellValue, FactorKind, Project, ResponseTransform, RunStatus};
+use crate::analysis::{Analysis, AnalysisError};
+use crate::project::{FactorKind, Project, ResponseTransform};
 
 /// A cell whose text is not a number, for the warnings.
 #[derive(Debug, Clone, PartialEq)]
@@ -111,17 +112,9 @@ pub struct ResponseResults {
     pub warnings: Vec<Warning>,
 }
 
-/// The core's transform for the project's choice.
+/// The core's transform for the project's choice (the analysis cache's mapping).
 pub fn core_transform(t: ResponseTransform) -> Transform {
-    match t {
-        ResponseTransform::None => Transform::None,
-        ResponseTransform::Ln => Transform::Ln,
-        ResponseTransform::Log10 => Transform::Log10,
-        ResponseTransform::Sqrt => Transform::Sqrt,
-        ResponseTransform::Reciprocal => Transform::Inverse,
-        ResponseTransform::Power { lambda: 0.0 } => Transform::Ln,
-        ResponseTransform::Power { lambda } => Transform::Power(lambda),
-    }
+    crate::analysis::core_transform(t)
 }
 
 /// Each factor's (low, high) for natural-unit equations and predictions.
@@ -147,109 +140,107 @@ impl ResponseResults {
     /// Analyses response `response` of `project`, whose content has revision `revision` (the
     /// window's caches compare it).
     pub fn compute_at(project: &Project, revision: u64, response: usize) -> ResponseResults {
-        let k = project.factors.len();
-        let def = project.responses.get(response);
-        let transform = def.map_or(Transform::None, |d| core_transform(d.model.transform));
-        let mut bad_cells = Vec::new();
-        let mut raw: Vec<Option<f64>> = Vec::with_capacity(project.runs.len());
-        let mut excluded = Vec::with_capacity(project.runs.len());
-        for run in &project.runs {
-            let cell = run.values.get(response);
-            let v = match cell.map(|c| c.value()) {
-                Some(CellValue::Number(x)) => Some(x),
-                Some(CellValue::Bad { reason }) => {
-                    bad_cells.push(BadCell {
-                        run_order: run.run_order,
-                        text: cell.map(|c| c.text.clone()).unwrap_or_default(),
-                        reason,
-                    });
-                    None
-                }
-                _ => None,
-            };
-            raw.push(v);
-            excluded.push(run.status.is_excluded());
-        }
-        let excluded_runs = excluded.iter().filter(|&&e| e).count();
-        let used_runs = raw
-            .iter()
-            .zip(&excluded)
-            .filter(|(v, e)| v.is_some() && !**e)
-            .count();
-        let missing_runs = project
-            .runs
-            .iter()
-            .zip(&raw)
-            .filter(|(r, v)| v.is_none() && !matches!(r.status, RunStatus::Excluded { .. }))
-            .count();
-        let run_order: Vec<usize> = project.runs.iter().map(|r| r.run_order as usize).collect();
-        let ranges = natural_ranges(project);
-        let chosen_terms: Vec<Term> = def
-            .map(|d| {
-                d.model
-                    .terms
-                    .iter()
-                    .filter_map(|t| Term::parse(t, k).ok())
-                    .collect()
-            })
+        let model = project
+            .responses
+            .get(response)
+            .map(|r| r.model.clone())
             .unwrap_or_default();
-        let hierarchical = def.is_none_or(|d| d.model.hierarchical);
+        let analysis = Analysis::compute(project, revision, response, &model);
+        ResponseResults::from_analysis(project, &analysis)
+    }
 
+    /// The panes' digest of one entry of the analysis cache ([`crate::analysis`]), which does the
+    /// computing; added here are the observed corner means, the counts and the warnings in words.
+    pub fn from_analysis(project: &Project, analysis: &Analysis) -> ResponseResults {
+        let revision = analysis.key.revision;
+        let response = analysis.key.response;
+        let k = project.factors.len();
+        let text = |e: &AnalysisError| e.to_string();
+        let data = match &analysis.data {
+            Ok(d) => d,
+            Err(e) => {
+                let why = match e {
+                    AnalysisError::NoSuchResponse(_) => {
+                        "there is no response yet: add one on the run sheet".to_string()
+                    }
+                    AnalysisError::NoRuns => {
+                        "there are no runs yet: choose a design first".to_string()
+                    }
+                    other => other.to_string(),
+                };
+                return ResponseResults::unavailable(revision, response, &why);
+            }
+        };
+        let bad_cells: Vec<BadCell> = data
+            .bad
+            .iter()
+            .filter_map(|(i, reason)| {
+                let run = project.runs.get(*i)?;
+                Some(BadCell {
+                    run_order: run.run_order,
+                    text: run
+                        .values
+                        .get(response)
+                        .map(|c| c.text.clone())
+                        .unwrap_or_default(),
+                    reason: reason.clone(),
+                })
+            })
+            .collect();
+        let missing_runs = data
+            .missing
+            .iter()
+            .filter(|i| !data.excluded.contains(i))
+            .count();
+        let chosen_terms: Vec<Term> = analysis
+            .key
+            .model
+            .terms
+            .iter()
+            .filter_map(|t| Term::parse(t, k).ok())
+            .collect();
+        let obs = &data.analysed;
+        let centres: Vec<f64> = data
+            .used
+            .iter()
+            .filter(|&&r| obs.is_centre(r))
+            .filter_map(|&r| obs.response().get(r).copied().flatten())
+            .collect();
         let mut out = ResponseResults {
             revision,
             response,
             total_runs: project.runs.len(),
-            used_runs,
+            used_runs: data.used.len(),
             missing_runs,
-            excluded_runs,
+            excluded_runs: data.excluded.len(),
             bad_cells,
-            transform,
-            observations: Err(String::new()),
+            transform: data.transform,
+            observations: Ok(obs.clone()),
             effects: Err(String::new()),
             lenth: Err(String::new()),
             half_normal: Vec::new(),
             chosen_terms,
             fit: Err(String::new()),
             diagnostics: None,
-            run_order,
-            main_means: Vec::new(),
-            centre_mean: None,
-            pairs: Vec::new(),
+            run_order: project.runs.iter().map(|r| r.run_order as usize).collect(),
+            main_means: if data.used.is_empty() {
+                Vec::new()
+            } else {
+                analysis.main_effect_means.clone()
+            },
+            centre_mean: (!centres.is_empty())
+                .then(|| centres.iter().sum::<f64>() / centres.len() as f64),
+            pairs: if data.used.is_empty() {
+                Vec::new()
+            } else {
+                pair_means(obs)
+            },
             equation_coded: None,
             equation_natural: Err(String::new()),
-            ranges,
+            ranges: natural_ranges(project),
             warnings: Vec::new(),
         };
-        if def.is_none() {
-            out.set_all_unavailable("there is no response yet: add one on the run sheet");
-            return out;
-        }
-        if project.runs.is_empty() {
-            out.set_all_unavailable("there are no runs yet: choose a design first");
-            return out;
-        }
-        let transformed = match transform.apply_column(&raw) {
-            Ok(t) => t,
-            Err(e) => {
-                out.set_all_unavailable(&format!("the transform cannot be applied: {e}"));
-                return out;
-            }
-        };
-        let levels: Vec<Vec<f64>> = project
-            .runs
-            .iter()
-            .map(|r| r.levels.iter().map(|&c| f64::from(c)).collect())
-            .collect();
-        let blocks: Vec<u32> = project.runs.iter().map(|r| r.block).collect();
-        let obs = match Observations::new(k, levels, blocks, transformed, excluded) {
-            Ok(o) => o,
-            Err(e) => {
-                out.set_all_unavailable(&e.to_string());
-                return out;
-            }
-        };
-        if used_runs == 0 {
-            out.observations = Ok(obs);
+        if data.used.is_empty() {
             let why = "no run has a value yet";
             out.effects = Err(why.into());
             out.lenth = Err(why.into());
@@ -257,20 +248,42 @@ impl ResponseResults {
             out.equation_natural = Err(why.into());
             return out;
         }
-        out.main_means = main_effect_means(&obs);
-        out.pairs = pair_means(&obs);
-        let centres: Vec<f64> = obs
-            .used_runs()
-            .into_iter()
-            .filter(|&r| obs.is_centre(r))
-            .filter_map(|r| obs.response()[r])
-            .collect();
-        out.centre_mean =
-            (!centres.is_empty()).then(|| centres.iter().sum::<f64>() / centres.len() as f64);
-        out.effects = estimate_effects(&obs).map_err(|e| e.to_string());
-        if let Ok(table) = &out.effects {
-            out.half_normal = half_normal(&table.effects);
-            out.lenth = lenth(&table.contrasts()).map_err(|e| e.to_string());
+        match &analysis.effects {
+            Ok(e) => {
+                out.effects = Ok(e.table.clone());
+                out.lenth = e.lenth.as_ref().map(|(l, _)| *l).map_err(text);
+                out.half_normal = e.half_normal.clone();
+            }
+            Err(e) => {
+                out.effects = Err(e.to_string());
+                out.lenth = Err(e.to_string());
+            }
+        }
+        match &analysis.model {
+            Ok(m) => {
+                out.fit = Ok(m.fit.clone());
+                out.diagnostics = Some(m.diagnostics.clone());
+                out.equation_coded = Some(m.equation_coded.clone());
+                out.equation_natural = m.equation_natural.clone().map_err(|e| text(&e));
+            }
+            Err(AnalysisError::NoModel) => {
+                let why = "no terms chosen yet: click the largest effects in the effect bars or the half-normal plot";
+                out.fit = Err(why.into());
+                out.equation_natural = Err(why.into());
+            }
+            Err(e) => {
+                out.fit = Err(e.to_string());
+                out.equation_natural = Err(e.to_string());
+            }
+        }
+        out.collect_warnings();
+        out
+    }
+
+    /// Puts the plain-words warnings together from the results.
+    fn collect_warnings(&mut self) {
+        let mut warnings = Vec::new();
+        if let Ok(table) = &self.effects {
             if !table.not_estimable.is_empty() {
                 let list: Vec<String> = table
                     .not_estimable
@@ -280,11 +293,11 @@ impl ResponseResults {
                     .collect();
                 let more = table.not_estimable.len().saturating_sub(12);
                 push_warning(
-                    &mut out.warnings,
+                    &mut warnings,
                     WarningKind::Effects,
                     format!(
                         "{} no usable value yet, so these effects cannot be estimated: {}{}.",
-                        match out.missing_runs + out.bad_cells.len() {
+                        match self.missing_runs + self.bad_cells.len() {
                             1 => "1 run has".to_string(),
                             n => format!("{n} runs have"),
                         },
@@ -297,7 +310,7 @@ impl ResponseResults {
                     ),
                 );
             }
-            for term in &out.chosen_terms {
+            for term in &self.chosen_terms {
                 if let Some(rep) = table.aliasing.representative_of(*term)
                     && let Some(e) = table.get(rep.term)
                 {
@@ -313,7 +326,7 @@ impl ResponseResults {
                         .collect();
                     if !mates.is_empty() {
                         push_warning(
-                            &mut out.warnings,
+                            &mut warnings,
                             WarningKind::Model,
                             format!(
                                 "{} is aliased with {}: the estimate is their sum, the data cannot tell them apart.",
@@ -325,25 +338,13 @@ impl ResponseResults {
                 }
             }
         }
-        if out.chosen_terms.is_empty() {
-            out.fit = Err(
-                "no terms chosen yet: click the largest effects in the effect bars or the half-normal plot"
-                    .into(),
-            );
-        } else {
-            let spec = ModelSpec::new(out.chosen_terms.clone()).hierarchical(hierarchical);
-            out.fit = fit_model(&obs, &spec).map_err(|e| e.to_string());
-        }
-        if let Ok(fit) = &out.fit {
-            out.diagnostics = Some(diagnostics(fit));
-            out.equation_coded = Some(fit.equation_coded());
-            out.equation_natural = fit.equation_natural(&out.ranges).map_err(|e| e.to_string());
+        if let Ok(fit) = &self.fit {
             if let Some(c) = &fit.curvature
                 && let Some(p) = c.p
                 && p < CURVATURE_ALPHA
             {
                 push_warning(
-                    &mut out.warnings,
+                    &mut warnings,
                     WarningKind::Model,
                     format!(
                         "Curvature: the centre points differ from the corners' average by {} (p = {}). The response bends inside the box, so predictions between the corners are not reliable and the best setting may lie inside.",
@@ -355,7 +356,7 @@ impl ResponseResults {
             for u in &fit.unestimable {
                 let with: Vec<String> = u.aliased_with.iter().map(|(c, _)| c.to_string()).collect();
                 push_warning(
-                    &mut out.warnings,
+                    &mut warnings,
                     WarningKind::Model,
                     if with.is_empty() {
                         format!(
@@ -372,15 +373,15 @@ impl ResponseResults {
                 );
             }
         }
-        if !out.bad_cells.is_empty() {
-            let list: Vec<String> = out
+        if !self.bad_cells.is_empty() {
+            let list: Vec<String> = self
                 .bad_cells
                 .iter()
                 .take(6)
                 .map(|b| format!("run {} (“{}”: {})", b.run_order, b.text, b.reason))
                 .collect();
             push_warning(
-                &mut out.warnings,
+                &mut warnings,
                 WarningKind::Data,
                 format!(
                     "Text that is not a number is left out of the analysis: {}.",
@@ -388,8 +389,7 @@ impl ResponseResults {
                 ),
             );
         }
-        out.observations = Ok(obs);
-        out
+        self.warnings = warnings;
     }
 
     /// The warnings of the given kinds, in order.
@@ -490,7 +490,7 @@ fn pair_means(obs: &Observations) -> Vec<PairMeans> {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::project::{Cell, Factor, ResponseDef, RunRecord};
+    use crate::project::{Cell, Factor, ResponseDef, RunRecord, RunStatus};
 
     /// A 2^2 with y = 10 + 3A (+ −1 for B), values in standard order.
     fn two_by_two(values: &[&str]) -> Project {
