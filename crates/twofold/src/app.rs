@@ -55,6 +55,13 @@ pub enum FilePicker {
     Fixed(Option<PathBuf>),
 }
 
+/// A native dialog's answer and how long it was open.
+type DialogAnswer = (Option<PathBuf>, std::time::Duration);
+
+/// A dialog that answers "cancelled" faster than this was never shown: there is no dialog
+/// service on this desktop, so the window asks for a typed path instead.
+const NO_DIALOG_WITHIN: std::time::Duration = std::time::Duration::from_millis(400);
+
 /// What to do once the engineer has decided about unsaved changes.
 #[derive(Debug, Clone, PartialEq)]
 pub enum AfterUnsaved {
@@ -88,6 +95,13 @@ pub enum Modal {
     Safety,
     /// A recovery copy newer than the project was found.
     Restore(Box<RecoveryOffer>),
+    /// No file dialog could be shown (no desktop portal or dialog program): type the path.
+    TypePath {
+        /// What the path is for.
+        action: FileAction,
+        /// The path typed so far.
+        text: String,
+    },
 }
 
 /// Fields whose consecutive edits (keystrokes in one field) merge into one undo step.
@@ -282,7 +296,7 @@ pub struct TwofoldApp {
     coalesce: Option<(CoalesceKey, u64)>,
     modal: Option<Modal>,
     picker: FilePicker,
-    pending_dialog: Option<(FileAction, Receiver<Option<PathBuf>>)>,
+    pending_dialog: Option<(FileAction, Receiver<DialogAnswer>)>,
     recent: RecentFiles,
     recent_store: Option<PathBuf>,
     recovery: Option<RecoveryStore>,
@@ -809,6 +823,7 @@ impl TwofoldApp {
                     .as_ref()
                     .and_then(|p| p.parent())
                     .map(Path::to_path_buf);
+                let started = std::time::Instant::now();
                 std::thread::spawn(move || {
                     let mut dialog = rfd::FileDialog::new().add_filter("Twofold project", &["ron"]);
                     if let Some(d) = dir {
@@ -819,7 +834,7 @@ impl TwofoldApp {
                         FileAction::SaveAs => dialog.set_file_name(suggested).save_file(),
                     };
                     // The window may have closed meanwhile; then nobody needs the answer.
-                    let _ = tx.send(answer);
+                    let _ = tx.send((answer, started.elapsed()));
                 });
                 self.pending_dialog = Some((action, rx));
             }
@@ -831,7 +846,15 @@ impl TwofoldApp {
             return;
         };
         match rx.try_recv() {
-            Ok(answer) => {
+            Ok((None, open_for)) if open_for < NO_DIALOG_WITHIN => {
+                let action = *action;
+                self.pending_dialog = None;
+                self.modal = Some(Modal::TypePath {
+                    action,
+                    text: self.suggested_path().display().to_string(),
+                });
+            }
+            Ok((answer, _)) => {
                 let action = *action;
                 self.pending_dialog = None;
                 self.finish_dialog(action, answer);
@@ -841,8 +864,23 @@ impl TwofoldApp {
         }
     }
 
+    /// Where Save as suggests to save: beside the current file, else in the home folder.
+    fn suggested_path(&self) -> PathBuf {
+        let name = format!("{}.ron", file_stem(&self.project().name));
+        match &self.path {
+            Some(p) => p.clone(),
+            None => std::env::var_os("HOME")
+                .map(PathBuf::from)
+                .unwrap_or_default()
+                .join(name),
+        }
+    }
+
     fn finish_dialog(&mut self, action: FileAction, answer: Option<PathBuf>) {
         let Some(path) = answer else {
+            if action == FileAction::SaveAs {
+                self.notice = Some("Not saved: no file was chosen.".into());
+            }
             return;
         };
         match action {
@@ -1097,6 +1135,10 @@ impl TwofoldApp {
         };
         let mut close = false;
         let mut then: Option<AfterModal> = None;
+        let mut typed = match &modal {
+            Modal::TypePath { text, .. } => text.clone(),
+            _ => String::new(),
+        };
         let response = egui::Modal::new(egui::Id::unique("twofold_modal")).show(ctx, |ui| {
             ui.set_max_width(460.0);
             match &modal {
@@ -1204,6 +1246,38 @@ impl TwofoldApp {
                         }
                     });
                 }
+                Modal::TypePath { action, .. } => {
+                    let (title, verb) = match action {
+                        FileAction::Open => ("Open a project", "Open"),
+                        FileAction::SaveAs => ("Save the project", "Save"),
+                    };
+                    ui.heading(title);
+                    ui.label("No file dialog is available on this desktop. Type the full path of the project file:");
+                    let resp = ui.add(
+                        egui::TextEdit::singleline(&mut typed)
+                            .desired_width(420.0)
+                            .min_size(egui::vec2(420.0, 0.0)),
+                    )
+                    .accessible_name("project file path");
+                    let enter = resp.lost_focus() && ui.input(|i| i.key_pressed(Key::Enter));
+                    ui.horizontal(|ui| {
+                        if (ui.button(verb).clicked() || enter) && !typed.trim().is_empty() {
+                            let action = *action;
+                            let path = PathBuf::from(typed.trim());
+                            then = Some(Box::new(move |app: &mut TwofoldApp| {
+                                app.finish_dialog(action, Some(path));
+                            }));
+                            close = true;
+                        }
+                        if ui.button("Cancel").clicked() {
+                            let action = *action;
+                            then = Some(Box::new(move |app: &mut TwofoldApp| {
+                                app.finish_dialog(action, None);
+                            }));
+                            close = true;
+                        }
+                    });
+                }
                 Modal::Safety => {
                     ui.heading("Safety caution");
                     ui.label(SAFETY_NOTE);
@@ -1219,6 +1293,8 @@ impl TwofoldApp {
         }
         if close {
             self.modal = None;
+        } else if let Some(Modal::TypePath { text, .. }) = &mut self.modal {
+            *text = typed;
         }
         if let Some(f) = then {
             f(self);
@@ -1245,20 +1321,23 @@ fn response_picker(ui: &mut Ui, view: &View<'_>, out: &mut Vec<Command>) {
     ui.separator();
 }
 
-/// A file name from a project name: letters, digits, `-` and `_`, others become `_`.
+/// A file name from a project name: letters and digits kept, every other run of characters
+/// becomes one `-` (`Gloss trial / May` → `Gloss-trial-May`).
 fn file_stem(name: &str) -> String {
-    let s: String = name
-        .trim()
-        .chars()
-        .map(|c| {
-            if c.is_alphanumeric() || c == '-' || c == '_' {
-                c
-            } else {
-                '_'
-            }
-        })
-        .collect();
-    if s.is_empty() { "project".into() } else { s }
+    let mut out = String::new();
+    for c in name.trim().chars() {
+        if c.is_alphanumeric() || c == '_' {
+            out.push(c);
+        } else if !out.is_empty() && !out.ends_with('-') {
+            out.push('-');
+        }
+    }
+    let out = out.trim_end_matches('-').to_string();
+    if out.is_empty() {
+        "project".into()
+    } else {
+        out
+    }
 }
 
 fn save_project(project: &Project, path: &Path) -> Result<(), String> {
@@ -1391,7 +1470,11 @@ mod tests {
 
     #[test]
     fn file_names_come_from_project_names() {
-        assert_eq!(file_stem("Gloss trial / May"), "Gloss_trial___May");
+        assert_eq!(file_stem("Gloss trial / May"), "Gloss-trial-May");
+        assert_eq!(
+            file_stem("Powder-coating cure (demo)"),
+            "Powder-coating-cure-demo"
+        );
         assert_eq!(file_stem("  "), "project");
     }
 }
