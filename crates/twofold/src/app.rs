@@ -1102,7 +1102,11 @@ impl TwofoldApp {
                                 .iter()
                                 .filter(|r| r.status == crate::project::RunStatus::Done)
                                 .count();
-                            format!("{done} of {} done", p.runs.len())
+                            if p.runs.is_empty() {
+                                "no runs yet".to_string()
+                            } else {
+                                format!("{done} of {} done", p.runs.len())
+                            }
                         }
                         _ => String::new(),
                     };

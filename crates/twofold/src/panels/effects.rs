@@ -108,6 +108,7 @@ fn build(view: &View<'_>, res: &ResponseResults) -> Option<Built> {
 
 impl Pane for EffectsPane {
     fn ui(&mut self, ui: &mut Ui, view: &View<'_>, out: &mut Vec<Command>) {
+        let Self { built } = self;
         let pal = view.pal;
         let Some(res) = view.results else {
             ui.heading("Effects");
@@ -144,10 +145,10 @@ impl Pane for EffectsPane {
                 return;
             }
         };
-        if self.built.as_ref().map(|b| b.key) != Some((res.revision, res.response)) {
-            self.built = build(view, res);
+        if built.as_ref().map(|b| b.key) != Some((res.revision, res.response)) {
+            *built = build(view, res);
         }
-        let Some(built) = &self.built else {
+        let Some(built) = built.as_ref() else {
             return;
         };
         for w in res.warnings_of(&[WarningKind::Data, WarningKind::Effects]) {

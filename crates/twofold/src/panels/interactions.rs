@@ -105,6 +105,7 @@ fn build(view: &View<'_>, res: &super::results::ResponseResults) -> Built {
 
 impl Pane for PlotsPane {
     fn ui(&mut self, ui: &mut Ui, view: &View<'_>, _out: &mut Vec<Command>) {
+        let Self { pairs, built } = self;
         let pal = view.pal;
         let Some(res) = view.results else {
             ui.heading("Factor plots");
@@ -125,10 +126,10 @@ impl Pane for PlotsPane {
             not_available(ui, &pal, "Not available yet: no run has a value.");
             return;
         }
-        if self.built.as_ref().map(|b| b.key) != Some((res.revision, res.response)) {
-            self.built = Some(build(view, res));
+        if built.as_ref().map(|b| b.key) != Some((res.revision, res.response)) {
+            *built = Some(build(view, res));
         }
-        let Some(built) = &self.built else {
+        let Some(built) = built.as_ref() else {
             return;
         };
         let y_label = view
@@ -151,15 +152,15 @@ impl Pane for PlotsPane {
                 ui.add_space(10.0);
                 ui.horizontal(|ui| {
                     ui.label(RichText::new("Interactions").strong());
-                    ui.selectable_value(&mut self.pairs, PairChoice::InModel, "in the model");
-                    ui.selectable_value(&mut self.pairs, PairChoice::All, "every pair");
+                    ui.selectable_value(pairs, PairChoice::InModel, "in the model");
+                    ui.selectable_value(pairs, PairChoice::All, "every pair");
                 });
                 let any_in_model = built.interactions.iter().any(|i| i.in_model);
                 let few = view.project.factors.len() <= 5;
                 let shown: Vec<&InteractionPlot> = built
                     .interactions
                     .iter()
-                    .filter(|i| match self.pairs {
+                    .filter(|i| match *pairs {
                         PairChoice::All => true,
                         PairChoice::InModel => i.in_model || (!any_in_model && few),
                     })
@@ -168,7 +169,7 @@ impl Pane for PlotsPane {
                 if shown.is_empty() {
                     ui.weak("No two-factor interaction is in the model. Choose “every pair” to see them all.");
                 }
-                if !any_in_model && few && self.pairs == PairChoice::InModel {
+                if !any_in_model && few && *pairs == PairChoice::InModel {
                     ui.weak("No interaction is in the model yet: showing every pair.");
                 }
                 ui.weak("Parallel lines: no interaction. Crossing or diverging lines: the effect of one factor depends on the other.");
@@ -176,7 +177,7 @@ impl Pane for PlotsPane {
                 tiles(ui, shown.len(), isize.x, |ui, i| {
                     shown[i].show(ui, &pal, isize, built.y);
                 });
-                if built.interactions.len() > MAX_INTERACTION_PLOTS && self.pairs == PairChoice::All {
+                if built.interactions.len() > MAX_INTERACTION_PLOTS && *pairs == PairChoice::All {
                     ui.weak(format!(
                         "The first {MAX_INTERACTION_PLOTS} of {} pairs are drawn.",
                         built.interactions.len()

@@ -58,6 +58,7 @@ fn build(res: &super::results::ResponseResults) -> Option<[ResidualPlot; 3]> {
 
 impl Pane for ResidualsPane {
     fn ui(&mut self, ui: &mut Ui, view: &View<'_>, _out: &mut Vec<Command>) {
+        let Self { built } = self;
         let pal = view.pal;
         ui.heading("Residuals");
         let Some(res) = view.results else {
@@ -73,10 +74,10 @@ impl Pane for ResidualsPane {
             return;
         }
         let key = (res.revision, res.response);
-        if self.built.as_ref().map(|b| b.0) != Some(key) {
-            self.built = build(res).map(|p| (key, p));
+        if built.as_ref().map(|b| b.0) != Some(key) {
+            *built = build(res).map(|p| (key, p));
         }
-        let Some((_, plots)) = &self.built else {
+        let Some((_, plots)) = &built else {
             not_available(ui, &pal, "Not available yet: the fit has no residuals.");
             return;
         };
