@@ -627,7 +627,8 @@ impl TwofoldApp {
                 response_picker(ui, &view, &mut cmds);
                 if response.is_some() && !current {
                     ui.horizontal(|ui| {
-                        ui.spinner();
+                        // No spinner: it repaints every frame, which on two cores without
+                        // a GPU takes time from the computation it waits for.
                         ui.label(if view.results.is_some() {
                             "Updating the analysis for the latest values…"
                         } else {

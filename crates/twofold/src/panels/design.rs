@@ -215,7 +215,8 @@ fn options_table(
         }
         None => {
             ui.horizontal(|ui| {
-                ui.spinner();
+                // No spinner: it repaints every frame, which on two cores without
+                // a GPU takes time from the computation it waits for.
                 ui.label("Searching for the best fraction of each size…");
             });
             return;
