@@ -268,6 +268,7 @@ impl HalfNormalPlot {
             let qy = spec.y.1.min(spec.x.1 / pse);
             let b = frame.to_screen(pse * qy, qy);
             ui.painter()
+                .with_clip_rect(frame.rect)
                 .line_segment([a, b], Stroke::new(1.0, pal.muted));
         }
         if let Some(me) = self.me
