@@ -14,6 +14,8 @@ use std::sync::{Arc, Mutex};
 use egui::{Key, KeyboardShortcut, Modifiers, RichText, Ui};
 
 use crate::analysis::AnalysisCache;
+use crate::export::{BuildOptions, ExportJob, Paper};
+use crate::interchange::ImportPlan;
 use crate::panels::design::{Compute, DesignPane};
 use crate::panels::effects::EffectsPane;
 use crate::panels::factors::FactorsPane;
@@ -45,6 +47,42 @@ pub enum FileAction {
     Open,
     /// Pick where to save the project.
     SaveAs,
+    /// Pick where to write the summary page of the shown response (PNG, SVG or PDF).
+    ExportSummary,
+    /// Pick where to write the blank run sheet for the bench (PNG, SVG or PDF).
+    PrintRunSheet,
+    /// Pick where to write the run sheet as CSV.
+    ExportCsv,
+    /// Pick a CSV file to import response values from.
+    ImportCsv,
+}
+
+impl FileAction {
+    /// Title and button word of the typed-path question.
+    fn words(self) -> (&'static str, &'static str) {
+        match self {
+            FileAction::Open => ("Open a project", "Open"),
+            FileAction::SaveAs => ("Save the project", "Save"),
+            FileAction::ExportSummary => ("Export the summary page", "Export"),
+            FileAction::PrintRunSheet => ("Write the printable run sheet", "Write"),
+            FileAction::ExportCsv => ("Export the run sheet as CSV", "Export"),
+            FileAction::ImportCsv => ("Import values from a CSV file", "Read"),
+        }
+    }
+
+    /// Whether the answer names a file to read (rather than one to write).
+    fn reads(self) -> bool {
+        matches!(self, FileAction::Open | FileAction::ImportCsv)
+    }
+
+    /// The extension given to a typed or chosen name that has none.
+    fn default_extension(self, paper_ext: &str) -> String {
+        match self {
+            FileAction::Open | FileAction::SaveAs => "ron".into(),
+            FileAction::ExportSummary | FileAction::PrintRunSheet => paper_ext.into(),
+            FileAction::ExportCsv | FileAction::ImportCsv => "csv".into(),
+        }
+    }
 }
 
 /// Where file dialogs come from.
@@ -95,6 +133,15 @@ pub enum Modal {
     Safety,
     /// A recovery copy newer than the project was found.
     Restore(Box<RecoveryOffer>),
+    /// What a CSV import would change; nothing is written until the engineer confirms.
+    ConfirmImport {
+        /// The file read.
+        file: String,
+        /// The planned changes and the rows that did not match.
+        plan: Box<ImportPlan>,
+    },
+    /// A paste put text that is not a number into cells: they are kept, marked, and listed here.
+    PasteReport(String),
     /// No file dialog could be shown (no desktop portal or dialog program): type the path.
     TypePath {
         /// What the path is for.
@@ -307,6 +354,14 @@ pub struct TwofoldApp {
     quit_confirmed: bool,
     /// Compute searches in the frame (tests) rather than on worker threads.
     inline_compute: bool,
+    /// Paper of exported pages.
+    paper: Paper,
+    /// Format of exported pages when the chosen name has no extension.
+    page_ext: &'static str,
+    /// The export running on a worker thread, and what it writes (for the status bar).
+    export: Option<(String, ExportJob)>,
+    /// The window's context, for worker threads to wake it (none until the first frame).
+    ctx: Option<egui::Context>,
 }
 
 impl TwofoldApp {
@@ -341,6 +396,10 @@ impl TwofoldApp {
             clock: now_iso,
             quit_confirmed: false,
             inline_compute: false,
+            paper: Paper::A4,
+            page_ext: "pdf",
+            export: None,
+            ctx: None,
         }
     }
 
@@ -413,6 +472,26 @@ impl TwofoldApp {
     /// Replaces the source of file-dialog answers (tests use [`FilePicker::Fixed`]).
     pub fn set_file_picker(&mut self, picker: FilePicker) {
         self.picker = picker;
+    }
+
+    /// Whether an export is still running on its worker thread.
+    pub fn export_running(&self) -> bool {
+        self.export.is_some()
+    }
+
+    /// The message in the status bar, if any.
+    pub fn notice(&self) -> Option<&str> {
+        self.notice.as_deref()
+    }
+
+    /// Paper of exported pages.
+    pub fn set_paper(&mut self, paper: Paper) {
+        self.paper = paper;
+    }
+
+    /// Starts a file action as the menu does: the dialog (or the test picker), then the action.
+    pub fn start_file_action(&mut self, action: FileAction) {
+        self.start_dialog(action);
     }
 
     /// The current project.
@@ -498,6 +577,11 @@ impl TwofoldApp {
                 }
             }
             Command::Goto(step) => self.step = step,
+            Command::Paste {
+                response,
+                targets,
+                text,
+            } => self.paste(response, &targets, &text),
         }
         self.refresh();
     }
@@ -541,6 +625,25 @@ impl TwofoldApp {
         true
     }
 
+    /// Pastes clipboard `text` into response `response` from run `targets[0]` down, as one undo
+    /// step. Text that is not a number is kept in its cell (marked) and listed in a message.
+    fn paste(&mut self, response: usize, targets: &[usize], text: &str) {
+        let plan = crate::interchange::plan_paste(self.project(), response, targets, text);
+        if plan.cells.is_empty() {
+            self.notice = Some("Nothing to paste: the clipboard held no values.".into());
+            return;
+        }
+        let at = (self.clock)();
+        if self.apply_group(plan.edits(Some(at))) {
+            let summary = plan.summary();
+            if plan.bad_cells().is_empty() {
+                self.notice = Some(summary);
+            } else {
+                self.modal = Some(Modal::PasteReport(summary));
+            }
+        }
+    }
+
     /// Undoes the last step.
     pub fn undo(&mut self) {
         self.coalesce = None;
@@ -579,7 +682,11 @@ impl TwofoldApp {
             theme::apply(&ctx, self.theme);
             self.applied_theme = Some(self.theme);
         }
+        if self.ctx.is_none() {
+            self.ctx = Some(ctx.clone());
+        }
         self.poll_dialog();
+        self.poll_export();
         let mut cmds = Vec::new();
         self.shortcuts(&ctx);
         let pal = Palette::of(self.theme);
@@ -818,7 +925,11 @@ impl TwofoldApp {
             }
             FilePicker::Native => {
                 let (tx, rx) = channel();
-                let suggested = format!("{}.ron", file_stem(&self.project().name));
+                let suggested = self
+                    .suggested_path_for(action)
+                    .file_name()
+                    .map(|f| f.to_string_lossy().into_owned())
+                    .unwrap_or_default();
                 let dir = self
                     .path
                     .as_ref()
@@ -826,13 +937,27 @@ impl TwofoldApp {
                     .map(Path::to_path_buf);
                 let started = std::time::Instant::now();
                 std::thread::spawn(move || {
-                    let mut dialog = rfd::FileDialog::new().add_filter("Twofold project", &["ron"]);
+                    let mut dialog = match action {
+                        FileAction::Open | FileAction::SaveAs => {
+                            rfd::FileDialog::new().add_filter("Twofold project", &["ron"])
+                        }
+                        FileAction::ExportSummary | FileAction::PrintRunSheet => {
+                            rfd::FileDialog::new()
+                                .add_filter("PDF document", &["pdf"])
+                                .add_filter("PNG image, 300 dpi", &["png"])
+                                .add_filter("SVG drawing", &["svg"])
+                        }
+                        FileAction::ExportCsv | FileAction::ImportCsv => {
+                            rfd::FileDialog::new().add_filter("CSV table", &["csv"])
+                        }
+                    };
                     if let Some(d) = dir {
                         dialog = dialog.set_directory(d);
                     }
-                    let answer = match action {
-                        FileAction::Open => dialog.pick_file(),
-                        FileAction::SaveAs => dialog.set_file_name(suggested).save_file(),
+                    let answer = if action.reads() {
+                        dialog.pick_file()
+                    } else {
+                        dialog.set_file_name(suggested).save_file()
                     };
                     // The window may have closed meanwhile; then nobody needs the answer.
                     let _ = tx.send((answer, started.elapsed()));
@@ -852,7 +977,7 @@ impl TwofoldApp {
                 self.pending_dialog = None;
                 self.modal = Some(Modal::TypePath {
                     action,
-                    text: self.suggested_path().display().to_string(),
+                    text: self.suggested_path_for(action).display().to_string(),
                 });
             }
             Ok((answer, _)) => {
@@ -865,12 +990,20 @@ impl TwofoldApp {
         }
     }
 
-    /// Where Save as suggests to save: beside the current file, else in the home folder.
-    fn suggested_path(&self) -> PathBuf {
-        let name = format!("{}.ron", file_stem(&self.project().name));
-        match &self.path {
-            Some(p) => p.clone(),
-            None => std::env::var_os("HOME")
+    /// Where a dialog suggests a file: Save as the current file, exports beside it (named after
+    /// the project), else in the home folder.
+    fn suggested_path_for(&self, action: FileAction) -> PathBuf {
+        let stem = file_stem(&self.project().name);
+        let name = match action {
+            FileAction::Open | FileAction::SaveAs => format!("{stem}.ron"),
+            FileAction::ExportSummary => format!("{stem}-summary.{}", self.page_ext),
+            FileAction::PrintRunSheet => format!("{stem}-run-sheet.{}", self.page_ext),
+            FileAction::ExportCsv | FileAction::ImportCsv => format!("{stem}-runs.csv"),
+        };
+        match (&self.path, action) {
+            (Some(p), FileAction::Open | FileAction::SaveAs) => p.clone(),
+            (Some(p), _) => p.with_file_name(name),
+            (None, _) => std::env::var_os("HOME")
                 .map(PathBuf::from)
                 .unwrap_or_default()
                 .join(name),
@@ -879,22 +1012,196 @@ impl TwofoldApp {
 
     fn finish_dialog(&mut self, action: FileAction, answer: Option<PathBuf>) {
         let Some(path) = answer else {
-            if action == FileAction::SaveAs {
-                self.notice = Some("Not saved: no file was chosen.".into());
+            if !action.reads() {
+                self.notice = Some("Nothing was written: no file was chosen.".into());
             }
             return;
         };
+        let path = if path.extension().is_none() && action != FileAction::Open {
+            path.with_extension(action.default_extension(self.page_ext))
+        } else {
+            path
+        };
         match action {
+            FileAction::ExportSummary => self.export_summary(path),
+            FileAction::PrintRunSheet => self.print_run_sheet(path),
+            FileAction::ExportCsv => self.export_csv(&path),
+            FileAction::ImportCsv => self.import_csv(&path),
             FileAction::Open => {
                 self.open_path(&path);
             }
             FileAction::SaveAs => {
-                let path = if path.extension().is_none() {
-                    path.with_extension("ron")
-                } else {
-                    path
-                };
                 self.save_to(&path);
+            }
+        }
+    }
+
+    /// Where the window keeps the shown response's analysis, and which goal the prediction pane
+    /// has chosen for the best settings.
+    fn build_options(&self) -> BuildOptions {
+        use crate::panels::prediction::Aim;
+        use twofold_core::predict::Goal;
+        let predict = &self.panes.predict;
+        let goal = match (predict.aim, predict.target) {
+            (Aim::Minimise, _) => Goal::Minimise,
+            (Aim::Target, Some(t)) => Goal::Target(t),
+            _ => Goal::Maximise,
+        };
+        BuildOptions { date: None, goal }
+    }
+
+    /// A closure for export threads that wakes the window when progress changes.
+    fn repaint_hook(&self) -> impl Fn() + Send + 'static {
+        let ctx = self.ctx.clone();
+        move || {
+            if let Some(c) = &ctx {
+                c.request_repaint();
+            }
+        }
+    }
+
+    /// Starts writing the summary page of the shown response on a worker thread: the analysis
+    /// comes from the shared cache (computed there if needed), so the window never waits.
+    fn export_summary(&mut self, path: PathBuf) {
+        if self.export.is_some() {
+            self.notice = Some("An export is still running; wait for it or cancel it.".into());
+            return;
+        }
+        let Some(response) = self.response else {
+            self.modal = Some(Modal::Error(
+                "There is no response to summarise yet. Add a response and enter values first."
+                    .into(),
+            ));
+            return;
+        };
+        let project = self.project().clone();
+        let revision = self.history.revision();
+        let cache = Arc::clone(&self.analysis.cache);
+        let options = self.build_options();
+        let paper = self.paper;
+        let target = path.clone();
+        let work: crate::export::job::Work = Box::new(move |progress, cancelled| {
+            progress(crate::export::Stage::LayingOut);
+            let results =
+                std::panic::catch_unwind(|| cached_results(&cache, &project, revision, response))
+                    .map_err(|_| {
+                    crate::export::ExportError::Render(
+                        "the analysis stopped with an internal error (please report it)".into(),
+                    )
+                })?;
+            let input = crate::export::summary_input(&project, &results, &options);
+            let page = crate::export::summary_svg(&input, paper);
+            crate::export::write_pages(
+                &[page],
+                paper,
+                &target,
+                &crate::export::summary_title(&input),
+                progress,
+                cancelled,
+            )
+        });
+        let job = ExportJob::spawn(work, self.repaint_hook());
+        self.export = Some((format!("summary to {}", path.display()), job));
+    }
+
+    /// Starts writing the blank run sheet, in run order, on a worker thread.
+    fn print_run_sheet(&mut self, path: PathBuf) {
+        if self.export.is_some() {
+            self.notice = Some("An export is still running; wait for it or cancel it.".into());
+            return;
+        }
+        if self.project().runs.is_empty() {
+            self.modal = Some(Modal::Error(
+                "There are no runs to print yet. Choose a design first.".into(),
+            ));
+            return;
+        }
+        let now = (self.clock)();
+        let date = now.get(..10).map(str::to_string);
+        let sheet = crate::export::run_sheet_input(self.project(), date);
+        let job = ExportJob::run_sheet(sheet, path.clone(), self.paper, self.repaint_hook());
+        self.export = Some((format!("run sheet to {}", path.display()), job));
+    }
+
+    /// Collects a finished export: a notice on success, the error in plain words otherwise.
+    fn poll_export(&mut self) {
+        let Some((what, job)) = &mut self.export else {
+            return;
+        };
+        let Some(result) = job.poll() else {
+            return;
+        };
+        let what = what.clone();
+        self.export = None;
+        match result {
+            Ok(report) => {
+                let files = report.paths.len();
+                self.notice = Some(if files == 1 {
+                    format!("Exported the {what} ({} kB).", report.bytes.div_ceil(1024))
+                } else {
+                    format!(
+                        "Exported the {what} as {files} files, one per page ({} kB).",
+                        report.bytes.div_ceil(1024)
+                    )
+                });
+            }
+            Err(crate::export::ExportError::Cancelled) => {
+                self.notice = Some("Export cancelled; no file was written.".into());
+            }
+            Err(e) => {
+                self.modal = Some(Modal::Error(format!("Could not export the {what}: {e}")));
+            }
+        }
+    }
+
+    fn export_csv(&mut self, path: &Path) {
+        if self.project().runs.is_empty() {
+            self.modal = Some(Modal::Error(
+                "There are no runs to export yet. Choose a design first.".into(),
+            ));
+            return;
+        }
+        match crate::interchange::write_run_sheet_csv(self.project(), path) {
+            Ok(_) => {
+                self.notice = Some(format!(
+                    "Exported {} runs to {}",
+                    self.project().runs.len(),
+                    path.display()
+                ));
+            }
+            Err(e) => {
+                self.modal = Some(Modal::Error(format!(
+                    "Could not write {}: {e}",
+                    path.display()
+                )));
+            }
+        }
+    }
+
+    /// Reads a CSV file and shows what importing it would change; nothing changes yet.
+    fn import_csv(&mut self, path: &Path) {
+        let text = match std::fs::read(path) {
+            Ok(bytes) => String::from_utf8_lossy(&bytes).into_owned(),
+            Err(e) => {
+                self.modal = Some(Modal::Error(format!(
+                    "Could not read {}: {e}",
+                    path.display()
+                )));
+                return;
+            }
+        };
+        match crate::interchange::plan_import(self.project(), &text) {
+            Ok(plan) => {
+                self.modal = Some(Modal::ConfirmImport {
+                    file: path.display().to_string(),
+                    plan: Box::new(plan),
+                });
+            }
+            Err(e) => {
+                self.modal = Some(Modal::Error(format!(
+                    "Nothing was imported from {}: {e}",
+                    path.display()
+                )));
             }
         }
     }
@@ -1010,6 +1317,43 @@ impl TwofoldApp {
             {
                 self.start_dialog(FileAction::SaveAs);
             }
+            ui.separator();
+            let busy = self.export.is_some();
+            if ui
+                .add_enabled(!busy, egui::Button::new("Export summary…"))
+                .on_hover_text("The one-page summary of the shown response: PDF, PNG (300 dpi) or SVG, by the file name")
+                .clicked()
+            {
+                self.start_dialog(FileAction::ExportSummary);
+            }
+            if ui
+                .add_enabled(!busy, egui::Button::new("Printable run sheet…"))
+                .on_hover_text("A blank sheet in run order to fill in at the bench")
+                .clicked()
+            {
+                self.start_dialog(FileAction::PrintRunSheet);
+            }
+            ui.horizontal(|ui| {
+                ui.label("Paper:");
+                ui.selectable_value(&mut self.paper, Paper::A4, "A4");
+                ui.selectable_value(&mut self.paper, Paper::Letter, "Letter");
+            });
+            ui.horizontal(|ui| {
+                ui.label("Without extension:");
+                ui.selectable_value(&mut self.page_ext, "pdf", "PDF");
+                ui.selectable_value(&mut self.page_ext, "png", "PNG");
+            });
+            ui.separator();
+            if ui.button("Export run sheet as CSV…").clicked() {
+                self.start_dialog(FileAction::ExportCsv);
+            }
+            if ui
+                .button("Import values from CSV…")
+                .on_hover_text("Matched by run number; you see what changes before anything does")
+                .clicked()
+            {
+                self.start_dialog(FileAction::ImportCsv);
+            }
         });
     }
 
@@ -1060,6 +1404,18 @@ impl TwofoldApp {
                     }
                     if self.pending_dialog.is_some() {
                         ui.weak("A file dialog is open…");
+                    }
+                    if let Some((what, job)) = &self.export {
+                        let stage = job.stage();
+                        ui.add(
+                            egui::ProgressBar::new(job.progress())
+                                .desired_width(140.0)
+                                .text(stage.label()),
+                        );
+                        ui.weak(format!("Exporting the {what}"));
+                        if ui.small_button("Cancel export").clicked() {
+                            job.cancel();
+                        }
                     }
                     ui.with_layout(egui::Layout::right_to_left(egui::Align::Center), |ui| {
                         if ui
@@ -1252,18 +1608,15 @@ impl TwofoldApp {
                     });
                 }
                 Modal::TypePath { action, .. } => {
-                    let (title, verb) = match action {
-                        FileAction::Open => ("Open a project", "Open"),
-                        FileAction::SaveAs => ("Save the project", "Save"),
-                    };
+                    let (title, verb) = action.words();
                     ui.heading(title);
-                    ui.label("No file dialog is available on this desktop. Type the full path of the project file:");
+                    ui.label("No file dialog is available on this desktop. Type the full path of the file:");
                     let resp = ui.add(
                         egui::TextEdit::singleline(&mut typed)
                             .desired_width(420.0)
                             .min_size(egui::vec2(420.0, 0.0)),
                     )
-                    .accessible_name("project file path");
+                    .accessible_name("file path");
                     let enter = resp.lost_focus() && ui.input(|i| i.key_pressed(Key::Enter));
                     ui.horizontal(|ui| {
                         if (ui.button(verb).clicked() || enter) && !typed.trim().is_empty() {
@@ -1283,6 +1636,92 @@ impl TwofoldApp {
                         }
                     });
                 }
+                Modal::ConfirmImport { file, plan } => {
+                    ui.heading("Import values?");
+                    ui.label(format!("From {file}:"));
+                    ui.label(plan.summary());
+                    egui::ScrollArea::vertical()
+                        .max_height(260.0)
+                        .id_salt("import_preview")
+                        .show(ui, |ui| {
+                            if !plan.changes.is_empty() {
+                                ui.label(RichText::new("What will change").strong());
+                            }
+                            for c in &plan.changes {
+                                let name = self
+                                    .project()
+                                    .responses
+                                    .get(c.response)
+                                    .map_or("?", |r| r.name.as_str());
+                                let old = if c.old.trim().is_empty() {
+                                    "empty".to_string()
+                                } else {
+                                    format!("“{}”", c.old)
+                                };
+                                let line = format!(
+                                    "Run {} {name}: {old} → “{}”",
+                                    c.run_order, c.new
+                                );
+                                match &c.not_a_number {
+                                    Some(reason) => {
+                                        ui.colored_label(
+                                            pal.warn,
+                                            format!("{line} (not a number: {reason})"),
+                                        );
+                                    }
+                                    None => {
+                                        ui.label(line);
+                                    }
+                                }
+                            }
+                            if !plan.problems.is_empty() {
+                                ui.label(RichText::new("Rows not imported").strong());
+                            }
+                            for p in &plan.problems {
+                                ui.colored_label(
+                                    pal.error,
+                                    format!(
+                                        "Line {} (run “{}”): {}",
+                                        p.line, p.run, p.reason
+                                    ),
+                                );
+                            }
+                        });
+                    ui.horizontal(|ui| {
+                        let n = plan.changes.len();
+                        if ui
+                            .add_enabled(n > 0, egui::Button::new(format!("Import {n} values")))
+                            .clicked()
+                        {
+                            let plan = plan.clone();
+                            then = Some(Box::new(move |app: &mut TwofoldApp| {
+                                let at = (app.clock)();
+                                if app.apply_group(plan.edits(Some(at))) {
+                                    app.notice = Some(format!(
+                                        "Imported {} values (Ctrl+Z takes the import back).",
+                                        plan.changes.len()
+                                    ));
+                                }
+                                app.refresh();
+                            }));
+                            close = true;
+                        }
+                        if ui.button("Cancel").clicked() {
+                            then = Some(Box::new(|app: &mut TwofoldApp| {
+                                app.notice = Some("Nothing was imported.".into());
+                            }));
+                            close = true;
+                        }
+                    });
+                }
+                Modal::PasteReport(text) => {
+                    ui.heading("Pasted, with cells to check");
+                    ui.label(text);
+                    ui.label("The cells are marked in the run sheet; Ctrl+Z takes the paste back.");
+                    if ui.button("OK").clicked() {
+                        close = true;
+                    }
+                }
                 Modal::Safety => {
                     ui.heading("Safety caution");
                     ui.label(SAFETY_NOTE);
@@ -1293,7 +1732,12 @@ impl TwofoldApp {
             }
         });
         // Questions need an answer; messages close by clicking beside them.
-        if response.should_close() && matches!(modal, Modal::Error(_) | Modal::Safety) {
+        if response.should_close()
+            && matches!(
+                modal,
+                Modal::Error(_) | Modal::Safety | Modal::PasteReport(_)
+            )
+        {
             close = true;
         }
         if close {

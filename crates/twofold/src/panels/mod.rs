@@ -93,6 +93,16 @@ pub enum Command {
     SelectResponse(usize),
     /// Go to another step.
     Goto(Step),
+    /// Paste clipboard text into a response column, one line per run, from `targets[0]` down
+    /// (positions in the project's runs, in the order the sheet shows them); one undo step.
+    Paste {
+        /// The response column.
+        response: usize,
+        /// Runs from the focused one down, as listed.
+        targets: Vec<usize>,
+        /// The clipboard text (tab-separated, one row a line).
+        text: String,
+    },
 }
 
 /// What a pane may read while drawing: the project and everything derived from it, computed once

@@ -120,6 +120,16 @@ impl Pane for RunSheetPane {
             ui.label("Settings");
             ui.selectable_value(&mut self.coded, false, "natural units");
             ui.selectable_value(&mut self.coded, true, "coded −1/+1");
+            ui.separator();
+            if ui
+                .button("Copy table")
+                .on_hover_text("The sheet as listed, tab-separated, to paste into a spreadsheet. To paste a column of values, click the first cell and press Ctrl+V.")
+                .clicked()
+            {
+                let rows = self.row_order(view);
+                ui.ctx()
+                    .copy_text(copy_table(project, &rows, self.coded));
+            }
         });
         let rows = self.row_order(view);
         // Many factors make the sheet wider than the window: scroll sideways, never squeeze.
@@ -127,6 +137,63 @@ impl Pane for RunSheetPane {
             .id_salt("run_sheet_sideways")
             .show(ui, |ui| grid(self, ui, view, &rows, out));
     }
+}
+
+/// The sheet as tab-separated text: a header row, then one row per run in `rows` order with
+/// the settings (natural or coded), the responses, the status and the note.
+pub fn copy_table(project: &Project, rows: &[usize], coded: bool) -> String {
+    let mut grid = Vec::with_capacity(rows.len() + 1);
+    let mut header = vec!["Run".to_string(), "Std".to_string()];
+    for (i, f) in project.factors.iter().enumerate() {
+        header.push(crate::interchange::csv::factor_header(
+            LETTERS.get(i).copied().unwrap_or('?'),
+            f,
+        ));
+    }
+    for r in &project.responses {
+        header.push(crate::interchange::csv::response_header(r));
+    }
+    header.push("Status".into());
+    header.push("Note".into());
+    grid.push(header);
+    for &i in rows {
+        let Some(run) = project.runs.get(i) else {
+            continue;
+        };
+        let mut row = vec![run.run_order.to_string(), run.std_order.to_string()];
+        for (k, f) in project.factors.iter().enumerate() {
+            let c = run.levels.get(k).copied().unwrap_or(0);
+            // Plain ASCII signs: spreadsheets read `−1` (the typographic minus) as text.
+            row.push(if coded {
+                match c {
+                    -1 => "-1".to_string(),
+                    1 => "1".to_string(),
+                    _ => "0".to_string(),
+                }
+            } else {
+                natural_setting(f, c)
+            });
+        }
+        for k in 0..project.responses.len() {
+            row.push(
+                run.values
+                    .get(k)
+                    .map(|c| c.text.clone())
+                    .unwrap_or_default(),
+            );
+        }
+        row.push(
+            match &run.status {
+                RunStatus::ToDo => "to do",
+                RunStatus::Done => "done",
+                RunStatus::Excluded { .. } => "excluded",
+            }
+            .to_string(),
+        );
+        row.push(run.note.clone());
+        grid.push(row);
+    }
+    crate::interchange::copy_grid(&grid)
 }
 
 fn responses_bar(ui: &mut Ui, project: &Project, out: &mut Vec<Command>) {
@@ -612,6 +679,36 @@ fn response_cell(
     } else {
         (false, false)
     };
+    // Several lines (or cells) pasted into a cell fill the column from this run down, as the
+    // sheet lists the runs; the window plans the paste and reports cells that are not numbers.
+    let pasted = if focused {
+        ui.input_mut(|i| {
+            let mut grid = None;
+            i.events.retain(|e| match e {
+                egui::Event::Paste(t) if t.contains(['\n', '\t']) => {
+                    grid = Some(t.clone());
+                    false
+                }
+                _ => true,
+            });
+            grid
+        })
+    } else {
+        None
+    };
+    let just_pasted = pasted.is_some();
+    if let Some(clip) = pasted {
+        out.push(Command::Paste {
+            response: r,
+            targets: rows.get(pos..).map(<[usize]>::to_vec).unwrap_or_default(),
+            text: clip,
+        });
+        // What was typed in the cell gives way to the pasted column; the cell lets go of the
+        // keyboard so that it does not store its old text over the pasted value.
+        pane.editing = None;
+        text = stored.clone();
+        ui.memory_mut(|m| m.surrender_focus(id));
+    }
     if tab || shift_tab {
         // We move across responses ourselves; egui's own Tab order would go to the status box.
         ui.memory_mut(|m| m.move_focus(egui::FocusDirection::None));
@@ -632,10 +729,10 @@ fn response_cell(
         ui.label(RichText::new("⚠").color(pal.error))
             .on_hover_text(format!("Not a number, left out of the analysis: {reason}"));
     }
-    if resp.has_focus() {
+    if resp.has_focus() && !just_pasted {
         pane.editing = Some((key, text.clone()));
     }
-    let leaving = resp.lost_focus() || tab || shift_tab;
+    let leaving = !just_pasted && (resp.lost_focus() || tab || shift_tab);
     if leaving {
         // Consumed: the field that takes the focus next must not see this Enter as well.
         let enter = ui.input_mut(|i| i.consume_key(Modifiers::NONE, Key::Enter));
