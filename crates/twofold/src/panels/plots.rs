@@ -539,8 +539,13 @@ pub struct ResidualPlot {
 }
 
 impl ResidualPlot {
-    /// Draws the plot in `size`.
+    /// Draws the plot in `size` with `egui_plot`, so the engineer can zoom into a cluster of
+    /// residuals and read each point's run number on hover (drag to pan, scroll or drag a box to
+    /// zoom, double-click to reset).
     pub fn show(&self, ui: &mut Ui, pal: &Palette, size: egui::Vec2) {
+        use egui_plot::{
+            HLine, HoverPosition, Line, LineStyle, MarkerShape, Plot, PlotPoints, Points,
+        };
         let (x_label, y_label, title) = match self.kind {
             ResidualKind::Normal => ("normal quantile", "residual", "Normal plot of residuals"),
             ResidualKind::VsFitted => ("fitted value", "residual", "Residuals against fitted"),
@@ -554,79 +559,116 @@ impl ResidualPlot {
                 return;
             }
             let (xlo, xhi) = min_max(self.points.iter().map(|p| p.0));
-            let (ylo, yhi) = min_max(
-                self.points
-                    .iter()
-                    .map(|p| p.1)
-                    .chain(self.limit.into_iter().flat_map(|l| [l, -l])),
-            );
-            let ymag = ylo.abs().max(yhi.abs());
-            let spec = AxesSpec {
-                x: padded(xlo, xhi, 0.06),
-                y: padded(-ymag, ymag, 0.08),
-                x_label,
-                y_label,
-                x_categories: None,
-                x_ticks: true,
+            let ymag = self
+                .points
+                .iter()
+                .map(|p| p.1.abs())
+                .chain(self.limit)
+                .fold(0.0_f64, f64::max);
+            let far = |y: f64| self.limit.is_some_and(|l| y.abs() > l);
+            // Point groups are named so hovering names the group; the run number comes from
+            // the index of the nearest point within its group.
+            let (usual, unusual): (Vec<usize>, Vec<usize>) =
+                (0..self.points.len()).partition(|&i| !far(self.points[i].1));
+            let runs_of = |idx: &[usize]| -> Vec<usize> {
+                idx.iter()
+                    .filter_map(|&i| self.runs.get(i).copied())
+                    .collect()
             };
-            let (frame, _) = chart::axes(ui, size, &spec, pal);
-            match self.kind {
-                ResidualKind::Normal => {
-                    // Reference line through the quartiles of the residuals (a common choice).
-                    if let Some((slope, icept)) = quartile_line(&self.points) {
-                        let a = frame.to_screen(spec.x.0, icept + slope * spec.x.0);
-                        let b = frame.to_screen(spec.x.1, icept + slope * spec.x.1);
-                        ui.painter()
-                            .with_clip_rect(frame.rect)
-                            .line_segment([a, b], Stroke::new(1.0, pal.muted));
-                    }
+            let usual_runs = runs_of(&usual);
+            let unusual_runs = runs_of(&unusual);
+            let pts = |idx: &[usize]| -> Vec<[f64; 2]> {
+                idx.iter()
+                    .map(|&i| [self.points[i].0, self.points[i].1])
+                    .collect()
+            };
+            let (usual_pts, unusual_pts) = (pts(&usual), pts(&unusual));
+            let line_pts: Vec<[f64; 2]> = match self.kind {
+                ResidualKind::Normal => quartile_line(&self.points)
+                    .map(|(slope, icept)| {
+                        vec![[xlo, icept + slope * xlo], [xhi, icept + slope * xhi]]
+                    })
+                    .unwrap_or_default(),
+                ResidualKind::VsOrder => {
+                    let mut v: Vec<[f64; 2]> = self.points.iter().map(|p| [p.0, p.1]).collect();
+                    v.sort_by(|a, b| a[0].partial_cmp(&b[0]).unwrap_or(std::cmp::Ordering::Equal));
+                    v
                 }
-                ResidualKind::VsFitted | ResidualKind::VsOrder => {
-                    let a = frame.to_screen(spec.x.0, 0.0);
-                    let b = frame.to_screen(spec.x.1, 0.0);
-                    ui.painter()
-                        .line_segment([a, b], Stroke::new(1.0, pal.muted));
-                    if let Some(l) = self.limit {
-                        for v in [l, -l] {
-                            chart::dashed(
-                                ui,
-                                frame.to_screen(spec.x.0, v),
-                                frame.to_screen(spec.x.1, v),
-                                Stroke::new(1.0, pal.warn),
-                            );
+                ResidualKind::VsFitted => Vec::new(),
+            };
+            let kind = self.kind;
+            let limit = self.limit;
+            let (accent, warn, muted, grid) = (pal.accent, pal.warn, pal.muted, pal.grid);
+            Plot::new(ui.scope_id().with(("residual-plot", title)))
+                .width(size.x)
+                .height(size.y)
+                .x_axis_label(x_label)
+                .y_axis_label(y_label)
+                .include_y(-ymag * 1.08)
+                .include_y(ymag * 1.08)
+                .show_background(false)
+                .label_formatter(move |hover: &HoverPosition<'_>| match hover {
+                    HoverPosition::NearDataPoint {
+                        plot_name,
+                        position,
+                        index,
+                    } => {
+                        let runs = if *plot_name == "beyond the limit" {
+                            &unusual_runs
+                        } else if *plot_name == "residuals" {
+                            &usual_runs
+                        } else {
+                            return None;
+                        };
+                        runs.get(*index)
+                            .map(|run| format!("run {run}: residual {}", fmt_num(position.y, 4)))
+                    }
+                    HoverPosition::Elsewhere { .. } => None,
+                })
+                .show(ui, |plot| {
+                    match kind {
+                        ResidualKind::Normal => {
+                            if !line_pts.is_empty() {
+                                plot.line(
+                                    Line::new("reference", PlotPoints::from(line_pts)).color(muted),
+                                );
+                            }
+                        }
+                        ResidualKind::VsFitted | ResidualKind::VsOrder => {
+                            plot.hline(HLine::new("zero", 0.0).color(muted));
+                            if let Some(l) = limit {
+                                for v in [l, -l] {
+                                    plot.hline(
+                                        HLine::new("limit", v)
+                                            .color(warn)
+                                            .style(LineStyle::dashed_loose()),
+                                    );
+                                }
+                            }
+                            if kind == ResidualKind::VsOrder && !line_pts.is_empty() {
+                                plot.line(
+                                    Line::new("sequence", PlotPoints::from(line_pts)).color(grid),
+                                );
+                            }
                         }
                     }
-                }
-            }
-            if self.kind == ResidualKind::VsOrder {
-                let mut pts: Vec<(f64, f64)> = self.points.clone();
-                pts.sort_by(|a, b| a.0.partial_cmp(&b.0).unwrap_or(std::cmp::Ordering::Equal));
-                let line: Vec<_> = pts.iter().map(|p| frame.to_screen(p.0, p.1)).collect();
-                ui.painter()
-                    .add(egui::Shape::line(line, Stroke::new(1.0, pal.grid)));
-            }
-            let id = ui.scope_id().with(("resid", title));
-            for (i, &(x, y)) in self.points.iter().enumerate() {
-                let c = frame.to_screen(x, y);
-                let far = self.limit.is_some_and(|l| y.abs() > l);
-                let color = if far { pal.warn } else { pal.accent };
-                paint_marker(
-                    ui,
-                    c,
-                    if far { Marker::Diamond } else { Marker::Circle },
-                    4.0,
-                    color,
-                    false,
-                );
-                let r = ui.interact(
-                    Rect::from_center_size(c, vec2(10.0, 10.0)),
-                    id.with(i),
-                    Sense::hover(),
-                );
-                if let Some(run) = self.runs.get(i) {
-                    r.on_hover_text(format!("run {run}: residual {}", fmt_num(y, 4)));
-                }
-            }
+                    plot.points(
+                        Points::new("residuals", PlotPoints::from(usual_pts))
+                            .shape(MarkerShape::Circle)
+                            .radius(4.0)
+                            .filled(true)
+                            .color(accent),
+                    );
+                    if !unusual_pts.is_empty() {
+                        plot.points(
+                            Points::new("beyond the limit", PlotPoints::from(unusual_pts))
+                                .shape(MarkerShape::Diamond)
+                                .radius(5.0)
+                                .filled(true)
+                                .color(warn),
+                        );
+                    }
+                });
         });
     }
 }
