@@ -1690,7 +1690,7 @@ impl TwofoldApp {
                     ui.horizontal(|ui| {
                         let n = plan.changes.len();
                         if ui
-                            .add_enabled(n > 0, egui::Button::new(format!("Import {n} values")))
+                            .add_enabled(n > 0, egui::Button::new(values_text("Import", n)))
                             .clicked()
                         {
                             let plan = plan.clone();
@@ -1698,8 +1698,8 @@ impl TwofoldApp {
                                 let at = (app.clock)();
                                 if app.apply_group(plan.edits(Some(at))) {
                                     app.notice = Some(format!(
-                                        "Imported {} values (Ctrl+Z takes the import back).",
-                                        plan.changes.len()
+                                        "{} (Ctrl+Z takes the import back).",
+                                        values_text("Imported", plan.changes.len())
                                     ));
                                 }
                                 app.refresh();
@@ -1768,6 +1768,15 @@ fn response_picker(ui: &mut Ui, view: &View<'_>, out: &mut Vec<Command>) {
         }
     });
     ui.separator();
+}
+
+/// `Import 1 value`, `Import 3 values`.
+fn values_text(verb: &str, n: usize) -> String {
+    if n == 1 {
+        format!("{verb} 1 value")
+    } else {
+        format!("{verb} {n} values")
+    }
 }
 
 /// A file name from a project name: letters and digits kept, every other run of characters

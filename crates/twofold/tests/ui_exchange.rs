@@ -147,7 +147,7 @@ fn import_preview_lists_unmatched_rows_and_changes_nothing_until_confirmed_then_
         &before,
         "nothing changes before the confirmation"
     );
-    h.get_by_label("Import 1 values").click();
+    h.get_by_label("Import 1 value").click();
     h.step();
     assert!(h.state().modal().is_none());
     assert_eq!(h.state().project().runs[run1].values[0].text, "12.25");
