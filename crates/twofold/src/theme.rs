@@ -15,12 +15,11 @@ use egui::{
     Color32, CornerRadius, FontData, FontDefinitions, FontFamily, FontId, Stroke, TextStyle,
 };
 
-/// DejaVu Sans Condensed, regular (licence in `assets/fonts/`): a regular weight reads better at
-/// arm's length than egui's light default, and it has the symbols we draw (warning sign, arrows,
-/// check marks), so nothing shows as an empty box.
-static FACE_REGULAR: &[u8] = include_bytes!("../../../assets/fonts/DejaVuSansCondensed.ttf");
-/// DejaVu Sans Condensed, bold.
-static FACE_BOLD: &[u8] = include_bytes!("../../../assets/fonts/DejaVuSansCondensed-Bold.ttf");
+// The window's faces are DejaVu Sans Condensed (licence in `assets/fonts/`): a regular weight
+// reads better at arm's length than egui's light default, and it has the symbols we draw (warning
+// sign, arrows, check marks), so nothing shows as an empty box. The bytes are those the exported
+// pages use (`export::fonts`), read where the fonts are installed rather than copied into
+// statics of their own, so the program carries one copy of each face.
 
 /// The family of bold text (headings, the next-run card, values at arm's length).
 pub fn bold_family() -> FontFamily {
@@ -37,11 +36,11 @@ pub fn install_fonts(ctx: &egui::Context) {
     let mut fonts = FontDefinitions::default();
     fonts.font_data.insert(
         "twofold-regular".into(),
-        Arc::new(FontData::from_static(FACE_REGULAR)),
+        Arc::new(FontData::from_static(crate::export::fonts::REGULAR)),
     );
     fonts.font_data.insert(
         "twofold-bold".into(),
-        Arc::new(FontData::from_static(FACE_BOLD)),
+        Arc::new(FontData::from_static(crate::export::fonts::BOLD)),
     );
     let fallbacks = fonts
         .families

@@ -12,10 +12,11 @@ use std::sync::{Arc, OnceLock};
 
 use usvg::fontdb;
 
-/// Regular weight, DejaVu Sans Condensed.
-static REGULAR: &[u8] = include_bytes!("../../../../assets/fonts/DejaVuSansCondensed.ttf");
-/// Bold weight, DejaVu Sans Condensed.
-static BOLD: &[u8] = include_bytes!("../../../../assets/fonts/DejaVuSansCondensed-Bold.ttf");
+/// Regular weight, DejaVu Sans Condensed: the one copy in the program, shared by the pages and
+/// the window.
+pub static REGULAR: &[u8] = include_bytes!("../../../../assets/fonts/DejaVuSansCondensed.ttf");
+/// Bold weight, DejaVu Sans Condensed (the one copy, as [`REGULAR`]).
+pub static BOLD: &[u8] = include_bytes!("../../../../assets/fonts/DejaVuSansCondensed-Bold.ttf");
 
 /// The family name written into every SVG `font-family` attribute. It is the name the font's
 /// own naming table gives, so the renderer's font lookup finds the bundled faces.
