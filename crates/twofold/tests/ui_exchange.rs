@@ -263,3 +263,63 @@ fn copy_table_puts_the_sheet_on_the_clipboard_as_tab_separated_text() {
     assert_eq!(grid[1][0], "1", "in run order");
     assert!(grid[0].iter().any(|c| c.starts_with("Gloss")));
 }
+
+#[test]
+fn typed_block_generators_split_the_run_sheet_into_blocks() {
+    let mut p = Project::new("Coating trial");
+    p.factors = vec![
+        Factor::numeric("Temperature", "°C", 160.0, 200.0),
+        Factor::numeric("Time", "min", 10.0, 20.0),
+        Factor::numeric("Pressure", "bar", 1.0, 2.0),
+    ];
+    p.responses = vec![ResponseDef::new("Gloss", "GU")];
+    let mut h = harness(TwofoldApp::new_for_test(p));
+    h.state_mut().set_step(Step::Design);
+    h.run();
+    h.get_by_label(&twofold_app::panels::design::pick_label(8))
+        .click();
+    h.run();
+    h.get_by_label("block generators").focus();
+    h.run();
+    h.get_by_label("block generators").type_text("AB");
+    h.run();
+    assert!(
+        h.query_by_label_contains("B would be confounded").is_none(),
+        "AB alone is allowed"
+    );
+    assert!(h.query_by_label_contains("2 blocks;").is_some());
+    h.get_by_label("Make the run sheet").click();
+    h.run();
+    let p = h.state().project();
+    assert_eq!(p.runs.len(), 8);
+    // AB is confounded with blocks: its sign decides the block of every run.
+    for r in &p.runs {
+        let ab = r.levels[0] * r.levels[1];
+        let same_sign = p
+            .runs
+            .iter()
+            .filter(|o| o.levels[0] * o.levels[1] == ab)
+            .all(|o| o.block == r.block);
+        assert!(same_sign, "runs with the same AB sign share a block");
+    }
+    let blocks: std::collections::BTreeSet<u32> = p.runs.iter().map(|r| r.block).collect();
+    assert_eq!(blocks.len(), 2);
+}
+
+#[test]
+fn a_block_generator_that_would_lose_a_main_effect_is_refused_in_words() {
+    let mut p = Project::new("Coating trial");
+    p.factors = vec![
+        Factor::numeric("Temperature", "°C", 160.0, 200.0),
+        Factor::numeric("Time", "min", 10.0, 20.0),
+        Factor::numeric("Pressure", "bar", 1.0, 2.0),
+    ];
+    let mut h = harness(TwofoldApp::new_for_test(p));
+    h.state_mut().set_step(Step::Design);
+    h.run();
+    h.get_by_label("block generators").focus();
+    h.run();
+    h.get_by_label("block generators").type_text("ABC, BC");
+    h.run();
+    assert!(h.query_by_label_contains("A would be confounded").is_some());
+}

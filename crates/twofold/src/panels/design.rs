@@ -42,6 +42,8 @@ pub struct DesignPane {
     seen: Option<DesignSettings>,
     /// Generator text being typed.
     generator_text: String,
+    /// Block generator text being typed.
+    block_text: String,
     /// Options for a factor count, or the search in progress.
     options: Option<(usize, OptionsResult)>,
     pending: Option<(usize, Receiver<OptionsResult>)>,
@@ -147,6 +149,7 @@ impl Pane for DesignPane {
             self.draft = Some(project.design.clone());
             self.seen = Some(project.design.clone());
             self.generator_text = project.design.generators.join(", ");
+            self.block_text = block_text_of(&project.design.blocks);
         }
         let mut draft = self.draft.clone().unwrap_or_else(|| project.design.clone());
         egui::ScrollArea::vertical()
@@ -157,7 +160,7 @@ impl Pane for DesignPane {
                 ui.add_space(6.0);
                 generators_row(self, ui, view, k, &mut draft);
                 ui.add_space(6.0);
-                extras(ui, project, &mut draft, &pal);
+                extras(ui, project, &mut draft, &pal, k, &mut self.block_text);
                 ui.add_space(8.0);
                 let total = summary(ui, &draft, k, project, &pal);
                 ui.add_space(4.0);
@@ -182,6 +185,7 @@ impl Pane for DesignPane {
                     if draft != project.design && ui.button("Discard draft").clicked() {
                         draft = project.design.clone();
                         self.generator_text = draft.generators.join(", ");
+                        self.block_text = block_text_of(&draft.blocks);
                     }
                     if unchanged {
                         ui.weak("The run sheet follows this design.");
@@ -325,7 +329,67 @@ fn generators_row(
     });
 }
 
-fn extras(ui: &mut Ui, project: &Project, draft: &mut DesignSettings, pal: &crate::theme::Palette) {
+/// The text of typed block generators (empty when the program chooses them).
+fn block_text_of(blocks: &BlockChoice) -> String {
+    match blocks {
+        BlockChoice::Generators(g) => g.join(", "),
+        BlockChoice::Count(_) => String::new(),
+    }
+}
+
+/// Reads typed block generators such as `ABC, ABD` for `k` factors: each is a product of factor
+/// letters; together they make 2^p blocks. Refused: a generator that is the identity, generators
+/// that are products of the others (they would not split the runs further), and any product
+/// that is a single factor (its main effect would be lost in the block differences). Returns the
+/// generators in their standard spelling.
+pub fn parse_block_generators(text: &str, k: usize) -> Result<Vec<String>, String> {
+    use twofold_core::term::Term;
+    let mut terms: Vec<Term> = Vec::new();
+    for part in text
+        .split([',', ';'])
+        .map(str::trim)
+        .filter(|t| !t.is_empty())
+    {
+        let t = Term::parse(part, k).map_err(|e| format!("“{part}”: {e}"))?;
+        if t.is_identity() {
+            return Err(format!("“{part}” is the identity, which splits nothing"));
+        }
+        terms.push(t);
+    }
+    if terms.len() > 4 {
+        return Err("at most 4 block generators (16 blocks)".into());
+    }
+    // Every product of a non-empty subset of the generators is confounded with blocks.
+    for subset in 1u32..(1u32 << terms.len()) {
+        let bits = terms
+            .iter()
+            .enumerate()
+            .filter(|(i, _)| subset & (1 << i) != 0)
+            .fold(0u32, |acc, (_, t)| acc ^ t.bits());
+        let product = Term::from_bits(bits);
+        if product.is_identity() {
+            return Err(
+                "one generator is a product of the others, so it adds no blocks".to_string(),
+            );
+        }
+        if product.order() == 1 {
+            return Err(format!(
+                "{} would be confounded with blocks: its main effect could not be told from the block differences",
+                product.label()
+            ));
+        }
+    }
+    Ok(terms.iter().map(|t| t.label()).collect())
+}
+
+fn extras(
+    ui: &mut Ui,
+    project: &Project,
+    draft: &mut DesignSettings,
+    pal: &crate::theme::Palette,
+    k: usize,
+    block_text: &mut String,
+) {
     let all_numeric = project.factors.iter().all(|f| f.is_numeric());
     Grid::new("design_extras")
         .num_columns(2)
@@ -370,11 +434,45 @@ fn extras(ui: &mut Ui, project: &Project, draft: &mut DesignSettings, pal: &crat
                         };
                         if ui.selectable_label(count == n, text).clicked() {
                             draft.blocks = BlockChoice::Count(n);
+                            block_text.clear();
                         }
                     }
                 })
                 .response
                 .accessible_name("blocks");
+            ui.end_row();
+            ui.label("Or block on");
+            ui.horizontal(|ui| {
+                let resp = ui
+                    .add(
+                        egui::TextEdit::singleline(block_text)
+                            .hint_text("e.g. ABC, ABD")
+                            .desired_width(160.0)
+                            .min_size(egui::vec2(160.0, 0.0)),
+                    )
+                    .accessible_name("block generators");
+                let parsed = parse_block_generators(block_text, k);
+                if resp.changed() {
+                    // Half-typed text keeps the last good choice; the error shows beside it.
+                    match &parsed {
+                        Ok(g) if g.is_empty() => draft.blocks = BlockChoice::Count(1),
+                        Ok(g) => draft.blocks = BlockChoice::Generators(g.clone()),
+                        Err(_) => {}
+                    }
+                }
+                match &parsed {
+                    Err(e) => {
+                        ui.colored_label(pal.error, e);
+                    }
+                    Ok(g) if !g.is_empty() => {
+                        ui.weak(format!(
+                            "{} blocks; these interactions are confounded with blocks",
+                            1usize << g.len()
+                        ));
+                    }
+                    Ok(_) => {}
+                }
+            });
             ui.end_row();
             ui.label("Run order");
             ui.horizontal(|ui| {
@@ -558,5 +656,33 @@ fn factor_name(project: &Project, term: twofold_core::term::Term) -> String {
     match project.factors.get(i) {
         Some(f) => format!("{} ({})", term.label(), f.name),
         None => term.label(),
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn typed_block_generators_are_read_or_refused_with_the_reason() {
+        assert_eq!(parse_block_generators("", 4).unwrap(), Vec::<String>::new());
+        assert_eq!(
+            parse_block_generators("cba, abd", 4).unwrap(),
+            ["ABC", "ABD"]
+        );
+        // ABC × ABD = CD: allowed (a two-factor interaction is given up).
+        assert!(parse_block_generators("ABC; ABD", 4).is_ok());
+        let dependent = parse_block_generators("AB, CD, ABCD", 4).unwrap_err();
+        assert!(dependent.contains("product of the others"), "{dependent}");
+        let main = parse_block_generators("ABC, BC", 4).unwrap_err();
+        assert!(main.contains("A would be confounded"), "{main}");
+        let single = parse_block_generators("D", 4).unwrap_err();
+        assert!(single.contains("D would be confounded"), "{single}");
+        assert!(
+            parse_block_generators("ABE", 4)
+                .unwrap_err()
+                .contains("ABE")
+        );
+        assert!(parse_block_generators("AB, AC, AD, BC, BD", 5).is_err());
     }
 }
