@@ -1242,13 +1242,14 @@ mod tests {
         let cases: &[(&[&str], &str)] = &[
             (&["--csv"], "option `--csv` needs a value"),
             (&["--csv", "a", "--bogus"], "unknown option `--bogus`"),
-            (&["--json"], "needs a coded table"),
+            (&["--json"], "needs a project file or a coded table"),
             (&["--csv", "a", "--csv", "b"], "given twice"),
             (&["--csv", "a", "--terms", "A,,B"], "empty term"),
             (&["--csv", "a", "--transform", "cube"], "use none, ln"),
             (&["--csv", "a", "--transform", "power:0"], "power of 0"),
             (&["--csv", "a", "--json=yes"], "takes no value"),
-            (&["project.ron"], "project files are not read"),
+            (&["a.ron", "b.ron"], "give one project file"),
+            (&["a.ron", "--csv", "b.csv"], "not both"),
         ];
         for (list, needle) in cases {
             let e = parse_args(&args(list)).unwrap_err();
