@@ -41,7 +41,7 @@ use crate::data::Observations;
 use crate::prec::RANK_REL;
 use crate::term::{SignedTerm, Term};
 use nalgebra::{DMatrix, DVector};
-use std::collections::{BTreeSet, HashMap};
+use std::collections::{BTreeSet, HashMap, HashSet};
 
 /// Default highest order of the chain members listed beside each effect.
 pub const DEFAULT_LABEL_ORDER: usize = 4;
@@ -258,7 +258,7 @@ pub fn estimate_effects_with(
                 Vec::new(),
             ))
         }
-        Some(c) => effects_by_completion(&table.aliasing, &c.means, &layout.candidates),
+        Some(c) => effects_by_completion(&table.aliasing, &c.means, &layout.candidates, used.len()),
         None => None,
     };
     let (effects, lost) = match by_cells {
@@ -280,8 +280,7 @@ struct LayoutClasses {
 /// Which chains the complete layout (every planned run, blocks included) can estimate.
 fn classify_layout(obs: &Observations, aliasing: &AliasStructure, rows: &[usize]) -> LayoutClasses {
     let chains = aliasing.chains();
-    let blocks: Vec<u32> = rows.iter().map(|&r| obs.blocks()[r]).collect();
-    let distinct_blocks: BTreeSet<u32> = blocks.iter().copied().collect();
+    let distinct_blocks: BTreeSet<u32> = rows.iter().map(|&r| obs.blocks()[r]).collect();
     if aliasing.is_regular() && distinct_blocks.len() <= 1 {
         // The 2^r characters of a regular layout are linearly independent: all estimable.
         return LayoutClasses {
@@ -290,6 +289,102 @@ fn classify_layout(obs: &Observations, aliasing: &AliasStructure, rows: &[usize]
             dependent: 0,
         };
     }
+    if let Some(found) = classify_by_block_contrasts(obs, aliasing, rows, &distinct_blocks) {
+        return found;
+    }
+    classify_by_columns(obs, aliasing, rows)
+}
+
+/// The greedy rank check of [`classify_layout`] for a blocked regular layout in which every cell
+/// lies in a single block, without columns over the runs.
+///
+/// Repeated rows do not change which columns depend on which, so the runs can be replaced by the
+/// `2^r` cells, where the intercept and the chains are the orthogonal characters `χ_κ` and the
+/// block indicators `b_j` are functions of the cell. A combination `Σ a_κ·χ_κ` of chains lies in
+/// the span `W` of the intercept and the blocks exactly when `a_κ = ⟨w, χ_κ⟩/2^r` for some `w` in
+/// `W`, so the relations among the chains modulo `W` are spanned by the vectors
+/// `d_κ = (⟨b_j, χ_κ⟩)_{j ≥ 2}`, i.e. the Walsh–Hadamard transforms of the block indicators. The
+/// chains that greedy selection in trade order cannot add are then the greedy choice in reverse
+/// order among the `d_κ` (matroid duality, as in `effects_by_completion`). Cost
+/// `O(B·2^r·r + 2^r·B²)` for `B` blocks instead of `O(n·2^{2r})`.
+///
+/// Returns `None` (the caller then checks the columns) when the layout is not regular, a cell
+/// appears in two blocks, or the rank found falls short of `B − 1`.
+fn classify_by_block_contrasts(
+    obs: &Observations,
+    aliasing: &AliasStructure,
+    rows: &[usize],
+    distinct_blocks: &BTreeSet<u32>,
+) -> Option<LayoutClasses> {
+    if !aliasing.is_regular() || !aliasing.is_complete() {
+        return None;
+    }
+    let cells = 1usize << aliasing.basis().len();
+    let mut block_of: Vec<Option<u32>> = vec![None; cells];
+    for &r in rows {
+        let c = aliasing.cell_of(&obs.levels()[r]) as usize;
+        let b = obs.blocks()[r];
+        let slot = block_of.get_mut(c)?;
+        match *slot {
+            Some(x) if x != b => return None,
+            _ => *slot = Some(b),
+        }
+    }
+    let transforms: Vec<Vec<f64>> = distinct_blocks
+        .iter()
+        .skip(1)
+        .map(|&b| {
+            let mut v: Vec<f64> = block_of
+                .iter()
+                .map(|x| if *x == Some(b) { 1.0 } else { 0.0 })
+                .collect();
+            fwht(&mut v);
+            v
+        })
+        .collect();
+    let chains = aliasing.chains();
+    let mut dual = Orthonormal::default();
+    let mut dropped = vec![false; chains.len()];
+    for i in (0..chains.len()).rev() {
+        if dual.rank() == transforms.len() {
+            break;
+        }
+        let kappa = aliasing.chain_key(i)? as usize;
+        let col: Vec<f64> = transforms
+            .iter()
+            .map(|t| t.get(kappa).copied())
+            .collect::<Option<_>>()?;
+        if dual.try_add(&col) {
+            dropped[i] = true;
+        }
+    }
+    if dual.rank() < transforms.len() {
+        return None;
+    }
+    let mut out = LayoutClasses {
+        candidates: Vec::new(),
+        confounded: Vec::new(),
+        dependent: 0,
+    };
+    for (i, chain) in chains.iter().enumerate() {
+        if dropped[i] {
+            out.confounded.push(chain.representative);
+        } else {
+            out.candidates.push(i);
+        }
+    }
+    Some(out)
+}
+
+/// [`classify_layout`] by Gram–Schmidt on the columns over every layout run.
+fn classify_by_columns(
+    obs: &Observations,
+    aliasing: &AliasStructure,
+    rows: &[usize],
+) -> LayoutClasses {
+    let chains = aliasing.chains();
+    let blocks: Vec<u32> = rows.iter().map(|&r| obs.blocks()[r]).collect();
+    let distinct_blocks: BTreeSet<u32> = blocks.iter().copied().collect();
     let levels = obs.levels();
     let mut base = Orthonormal::default();
     base.try_add(&vec![1.0; rows.len()]);
@@ -392,11 +487,17 @@ fn effects_by_completion(
     aliasing: &AliasStructure,
     means: &[Option<f64>],
     candidates: &[usize],
+    used_runs: usize,
 ) -> Option<(Vec<Effect>, Vec<Term>)> {
     if candidates.len() + 1 != means.len() {
         return None;
     }
     let missing: Vec<usize> = (0..means.len()).filter(|&c| means[c].is_none()).collect();
+    if missing.len() > used_runs {
+        // The completion costs about |M|³, the dense route on the used runs about n³: with
+        // most cells empty the dense route is the cheaper one.
+        return None;
+    }
     let mut z: Vec<f64> = means.iter().map(|m| m.unwrap_or(0.0)).collect();
     let mut dropped: Vec<usize> = Vec::new();
     if !missing.is_empty() {
@@ -510,12 +611,20 @@ fn effects_by_least_squares(
         basis.try_add(c);
     }
     let fixed = columns.len();
+    // Equal rows (same settings, same block) give equal rows of the model matrix, so its rank is
+    // at most the number of distinct ones: once reached, every later chain depends on the kept
+    // ones and needs no column.
+    let max_rank = distinct_rows(levels, &blocks, used);
     let mut kept = Vec::new();
     let mut lost = Vec::new();
     for &i in candidates {
         let rep = aliasing.chains()[i].representative;
+        if basis.rank() >= max_rank {
+            lost.push(rep);
+            continue;
+        }
         let col: Vec<f64> = used.iter().map(|&r| term_value(&levels[r], rep)).collect();
-        if basis.rank() < n && basis.try_add(&col) {
+        if basis.try_add(&col) {
             columns.push(col);
             kept.push(i);
         } else {
@@ -547,6 +656,22 @@ fn effects_by_least_squares(
         })
         .collect();
     Ok((effects, lost))
+}
+
+/// Number of distinct (settings, block) pairs among the rows `used` (`blocks` follows `used`).
+fn distinct_rows(levels: &[Vec<f64>], blocks: &[u32], used: &[usize]) -> usize {
+    used.iter()
+        .zip(blocks)
+        .map(|(&r, &b)| {
+            let signs = levels[r]
+                .iter()
+                .enumerate()
+                .filter(|(_, v)| **v < 0.0)
+                .fold(0u64, |acc, (f, _)| acc | 1 << f);
+            (signs, b)
+        })
+        .collect::<HashSet<(u64, u32)>>()
+        .len()
 }
 
 /// An orthonormal basis grown one column at a time (modified Gram–Schmidt, applied twice so the
@@ -819,6 +944,88 @@ mod tests {
             assert_eq!(a.term, b.term);
             assert!(close_rel(a.effect, b.effect, 1e-9), "{}", a.term);
         }
+    }
+
+    #[test]
+    fn nearly_empty_large_layout_keeps_only_what_its_runs_can_separate() {
+        // A 2^6 with values in runs 1, 2 and 3 only (standard order): (−,−,…), (+,−,…), (−,+,…).
+        // Three runs fit the mean and two chains, so 2 of the 63 chains are estimable. In trade
+        // order A is independent of the intercept, and B of both (A + B = (−2, 0, 0) is not
+        // constant), so A and B are kept. From m − a − b = y1, m + a − b = y2, m − a + b = y3:
+        // effect A = 2a = y2 − y1 and effect B = 2b = y3 − y1.
+        let mut y = vec![None; 64];
+        y[0] = Some(10.0);
+        y[1] = Some(13.5);
+        y[2] = Some(7.25);
+        let o = obs(full(6), y);
+        let table = estimate_effects(&o).unwrap();
+        assert_eq!(table.method, EffectMethod::LeastSquares);
+        assert_eq!(table.factorial_runs, 3);
+        let kept: Vec<Term> = table.effects.iter().map(|e| e.term).collect();
+        assert_eq!(kept, vec![t("A"), t("B")]);
+        assert_eq!(table.not_estimable.len(), 61);
+        assert!(!table.not_estimable.contains(&t("A")));
+        assert!(!table.not_estimable.contains(&t("B")));
+        assert!(close_rel(table.get(t("A")).unwrap().effect, 3.5, 1e-12));
+        assert!(close_rel(table.get(t("B")).unwrap().effect, -2.75, 1e-12));
+        // Second route: completing the 61 empty cells, which the default route now skips.
+        let used = o.used_runs();
+        let cells = cell_means(&o, &table.aliasing, &used).unwrap();
+        let all: Vec<usize> = (0..63).collect();
+        let (effects, lost) =
+            effects_by_completion(&table.aliasing, &cells.means, &all, usize::MAX).unwrap();
+        assert_eq!(lost, table.not_estimable);
+        assert_eq!(effects.len(), 2);
+        for (a, b) in effects.iter().zip(&table.effects) {
+            assert_eq!(a.term, b.term);
+            assert!(close_rel(a.effect, b.effect, 1e-9), "{}", a.term);
+        }
+    }
+
+    #[test]
+    fn block_contrasts_classify_like_the_columns() {
+        let layouts: Vec<(Vec<Vec<f64>>, Vec<u32>)> = {
+            // 2^5 in four blocks by ABC and CDE (confounds ABC, CDE and ABDE).
+            let l5 = full(5);
+            let b5 = l5
+                .iter()
+                .map(|r| {
+                    1 + u32::from(r[0] * r[1] * r[2] > 0.0)
+                        + 2 * u32::from(r[2] * r[3] * r[4] > 0.0)
+                })
+                .collect();
+            // 2^4 with an arbitrary partition into three blocks (not a regular blocking).
+            let l4 = full(4);
+            let b4 = (0..16u32).map(|i| 1 + (i * 7 + i / 5) % 3).collect();
+            // 2^3 replicated, each replicate of a cell in the same block as the cell.
+            let mut l3 = full(3);
+            l3.extend(full(3));
+            let b3 = (0..16u32).map(|i| 1 + u32::from((i % 8) > 4)).collect();
+            vec![(l5, b5), (l4, b4), (l3, b3)]
+        };
+        for (levels, blocks) in layouts {
+            let k = levels[0].len();
+            let n = levels.len();
+            let y = (0..n).map(|i| Some(i as f64)).collect();
+            let o = Observations::new(k, levels, blocks, y, vec![]).unwrap();
+            let aliasing = AliasStructure::from_levels(o.levels(), k, 4);
+            let rows: Vec<usize> = (0..n).collect();
+            let distinct: BTreeSet<u32> = o.blocks().iter().copied().collect();
+            let fast = classify_by_block_contrasts(&o, &aliasing, &rows, &distinct).unwrap();
+            let slow = classify_by_columns(&o, &aliasing, &rows);
+            assert_eq!(fast.candidates, slow.candidates, "k = {k}");
+            assert_eq!(fast.confounded, slow.confounded, "k = {k}");
+            assert_eq!(fast.dependent, slow.dependent, "k = {k}");
+            assert_eq!(fast.confounded.len(), distinct.len() - 1, "k = {k}");
+        }
+        // A cell in two blocks is left to the columns.
+        let mut levels = full(2);
+        levels.push(levels[0].clone());
+        let o =
+            Observations::new(2, levels, vec![1, 1, 2, 2, 2], vec![Some(1.0); 5], vec![]).unwrap();
+        let aliasing = AliasStructure::from_levels(o.levels(), 2, 4);
+        let distinct: BTreeSet<u32> = [1, 2].into_iter().collect();
+        assert!(classify_by_block_contrasts(&o, &aliasing, &[0, 1, 2, 3, 4], &distinct).is_none());
     }
 
     /// A regular fraction: base full factorial plus generated columns (nonzero base masks, signs).
