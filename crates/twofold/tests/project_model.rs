@@ -36,7 +36,7 @@ fn bench_loop_edit_save_reopen() {
     .unwrap();
     h.apply(Edit::ToggleTerm {
         response: 0,
-        term: "AB".into(),
+        term: "C".into(),
     })
     .unwrap();
     assert!(h.is_dirty());
@@ -46,14 +46,14 @@ fn bench_loop_edit_save_reopen() {
     let reopened = load_project(&path).unwrap();
     assert_eq!(&reopened, h.project());
 
-    // The analysis sees the new value, the exclusion and the hierarchical model AB + A + B.
+    // The analysis sees the new value, the exclusion and the demo's model A + B + AB with C added.
     let mut cache = AnalysisCache::new();
     let a = cache.get(h.project(), h.revision(), 0);
     let data = a.data.as_ref().unwrap();
     assert_eq!(data.excluded, vec![0]);
     assert!(data.missing.is_empty());
     let model = a.model.as_ref().unwrap();
-    assert_eq!(model.fit.terms.len(), 3);
+    assert_eq!(model.fit.terms.len(), 4);
     assert_eq!(model.fit.runs.len(), 17);
 }
 

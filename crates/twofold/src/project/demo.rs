@@ -52,6 +52,10 @@ mod tests {
         p.responses
             .push(ResponseDef::new("Solvent rubs", "double rubs"));
         p.responses.push(ResponseDef::new("Gloss 60°", "GU"));
+        // The models an engineer would pick from the half-normal plots: the cure's two large
+        // main effects and their interaction; the four main effects for gloss.
+        p.responses[0].model.terms = ["A", "B", "AB"].map(String::from).to_vec();
+        p.responses[1].model.terms = ["A", "B", "C", "D"].map(String::from).to_vec();
         p.design = DesignSettings {
             centre_points_per_block: 2,
             seed: 20_250_304,
