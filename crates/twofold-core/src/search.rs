@@ -54,7 +54,7 @@
 //! `proven_minimum_aberration: false`. The search is deterministic: the same inputs give the same
 //! generators whenever it finishes within its budget.
 
-use crate::design::{DesignError, FractionalDesign, Generator, smallest_runs};
+use crate::design::{DesignError, FractionalDesign, Generator, check_run_count, smallest_runs};
 use crate::ofat;
 use crate::term::{MAX_FACTORS, SignedTerm, Term};
 use serde::{Deserialize, Serialize};
@@ -89,34 +89,10 @@ impl Default for SearchBudget {
 #[derive(Debug, Clone, PartialEq, Eq, thiserror::Error)]
 #[non_exhaustive]
 pub enum SearchError {
-    /// Fewer than 2 or more than 25 factors.
-    #[error("{0} factors: the search handles 2 to 25 factors (A..Z without I)")]
-    FactorCount(usize),
-    /// The number of runs is not a power of two.
-    #[error("{0} runs is not a power of two (a two-level fraction has 4, 8, 16, 32, ... runs)")]
-    RunsNotPowerOfTwo(usize),
-    /// More runs than the full factorial.
-    #[error("{runs} runs is more than the full factorial of {factors} factors ({full} runs)")]
-    RunsAboveFull {
-        /// Runs asked for.
-        runs: usize,
-        /// Factor count.
-        factors: usize,
-        /// Runs of the full factorial.
-        full: u64,
-    },
-    /// Too few runs to give every main effect its own column.
-    #[error(
-        "{runs} runs is too few for {factors} factors: at least {needed} runs are needed to estimate every main effect"
-    )]
-    RunsTooFew {
-        /// Runs asked for.
-        runs: usize,
-        /// Factor count.
-        factors: usize,
-        /// Smallest power of two ≥ factors + 1.
-        needed: usize,
-    },
+    /// k or N is outside what a two-level fraction allows (the same checks and messages as
+    /// building a design: [`crate::design::check_run_count`]).
+    #[error(transparent)]
+    Size(DesignError),
     /// The design found could not be built (an internal inconsistency, reported rather than hidden).
     #[error("the design found could not be built: {0}")]
     Design(#[from] DesignError),
@@ -161,28 +137,9 @@ pub struct DesignOption {
 /// Checks k and N for a search: 2 ≤ k ≤ 25, N a power of two with k + 1 ≤ N ≤ 2^k.
 pub fn check_search_size(factor_count: usize, runs: usize) -> Result<(), SearchError> {
     if !(2..=MAX_FACTORS).contains(&factor_count) {
-        return Err(SearchError::FactorCount(factor_count));
+        return Err(SearchError::Size(DesignError::FactorCount(factor_count)));
     }
-    if !runs.is_power_of_two() {
-        return Err(SearchError::RunsNotPowerOfTwo(runs));
-    }
-    let full = 1u64 << factor_count;
-    if runs as u64 > full {
-        return Err(SearchError::RunsAboveFull {
-            runs,
-            factors: factor_count,
-            full,
-        });
-    }
-    let needed = smallest_runs(factor_count);
-    if runs < needed {
-        return Err(SearchError::RunsTooFew {
-            runs,
-            factors: factor_count,
-            needed,
-        });
-    }
-    Ok(())
+    check_run_count(factor_count, runs).map_err(SearchError::Size)
 }
 
 /// Finds a minimum-aberration 2^(k−p) design for `factor_count` factors in `runs` runs.
@@ -226,13 +183,13 @@ fn minimum_aberration_until(
 /// so quick searches leave more time to the hard ones.
 ///
 /// # Errors
-/// [`SearchError::FactorCount`] when k is outside 2..=25.
+/// [`SearchError::Size`] when k is outside 2..=25.
 pub fn design_options(
     factor_count: usize,
     budget: &SearchBudget,
 ) -> Result<Vec<DesignOption>, SearchError> {
     if !(2..=MAX_FACTORS).contains(&factor_count) {
-        return Err(SearchError::FactorCount(factor_count));
+        return Err(SearchError::Size(DesignError::FactorCount(factor_count)));
     }
     let start = Instant::now();
     let end = start.checked_add(budget.time);
@@ -1365,28 +1322,29 @@ mod tests {
 
     #[test]
     fn bad_sizes_are_rejected() {
+        let size = SearchError::Size;
         let cases: &[(usize, usize, SearchError)] = &[
-            (1, 2, SearchError::FactorCount(1)),
-            (26, 32, SearchError::FactorCount(26)),
-            (5, 12, SearchError::RunsNotPowerOfTwo(12)),
-            (5, 0, SearchError::RunsNotPowerOfTwo(0)),
+            (1, 2, size(DesignError::FactorCount(1))),
+            (26, 32, size(DesignError::FactorCount(26))),
+            (5, 12, size(DesignError::RunsNotPowerOfTwo(12))),
+            (5, 0, size(DesignError::RunsNotPowerOfTwo(0))),
             (
                 3,
                 16,
-                SearchError::RunsAboveFull {
+                size(DesignError::RunsAboveFull {
                     runs: 16,
                     factors: 3,
                     full: 8,
-                },
+                }),
             ),
             (
                 8,
                 8,
-                SearchError::RunsTooFew {
+                size(DesignError::RunsTooFew {
                     runs: 8,
                     factors: 8,
                     needed: 16,
-                },
+                }),
             ),
         ];
         for (k, runs, expected) in cases {
@@ -1394,17 +1352,17 @@ mod tests {
             assert_eq!(&err, expected, "k={k}, runs={runs}");
         }
         assert_eq!(
-            SearchError::RunsTooFew {
+            size(DesignError::RunsTooFew {
                 runs: 8,
                 factors: 8,
                 needed: 16
-            }
+            })
             .to_string(),
             "8 runs is too few for 8 factors: at least 16 runs are needed to estimate every main effect"
         );
         assert!(matches!(
             design_options(0, &budget(1)),
-            Err(SearchError::FactorCount(0))
+            Err(SearchError::Size(DesignError::FactorCount(0)))
         ));
     }
 
