@@ -26,7 +26,9 @@ fn t(label: &str) -> Term {
     Term::parse(label, 25).expect("valid term label")
 }
 
-/// Coded rows of a 2^k full factorial in standard (Yates) order, first factor fastest.
+/// Coded rows of a 2^k full factorial in standard (Yates) order, first factor fastest. Written out
+/// here rather than taken from the design engine so the published examples do not lean on the code
+/// they check.
 fn full(k: usize) -> Vec<Vec<f64>> {
     (0..1usize << k)
         .map(|i| {

@@ -666,13 +666,9 @@ mod tests {
 
     /// Rows of a 2^k full factorial in standard order (first factor fastest).
     fn full(k: usize) -> Vec<Vec<f64>> {
-        (0..1usize << k)
-            .map(|i| {
-                (0..k)
-                    .map(|f| if i >> f & 1 == 1 { 1.0 } else { -1.0 })
-                    .collect()
-            })
-            .collect()
+        crate::design::FractionalDesign::full(k)
+            .unwrap()
+            .coded_rows()
     }
 
     /// A fraction from base factorial columns and generator words (product of base factors,

@@ -446,6 +446,17 @@ impl FractionalDesign {
             .collect()
     }
 
+    /// All base runs in standard order as the analysis takes them: coded −1.0/+1.0 rows.
+    pub fn coded_rows(&self) -> Vec<Vec<f64>> {
+        (0..self.base_runs())
+            .map(|r| {
+                (0..self.factor_count)
+                    .map(|f| f64::from(self.level(r, f)))
+                    .collect()
+            })
+            .collect()
+    }
+
     /// Generators written as text, e.g. `["E=ABCD"]`.
     pub fn generator_labels(&self) -> Vec<String> {
         self.generators.iter().map(ToString::to_string).collect()

@@ -749,13 +749,9 @@ mod tests {
     use proptest::prelude::*;
 
     fn full(k: usize) -> Vec<Vec<f64>> {
-        (0..1usize << k)
-            .map(|i| {
-                (0..k)
-                    .map(|f| if i >> f & 1 == 1 { 1.0 } else { -1.0 })
-                    .collect()
-            })
-            .collect()
+        crate::design::FractionalDesign::full(k)
+            .unwrap()
+            .coded_rows()
     }
 
     fn t(s: &str) -> Term {

@@ -418,13 +418,9 @@ mod tests {
     use crate::term::Term;
 
     fn full(k: usize) -> Vec<Vec<f64>> {
-        (0..1usize << k)
-            .map(|r| {
-                (0..k)
-                    .map(|i| if r >> i & 1 == 1 { 1.0 } else { -1.0 })
-                    .collect()
-            })
-            .collect()
+        crate::design::FractionalDesign::full(k)
+            .unwrap()
+            .coded_rows()
     }
 
     fn fit_of(k: usize, y: &[f64], terms: &[&str]) -> ModelFit {
