@@ -55,6 +55,21 @@ pub fn card_field_name(response: &ResponseDef) -> String {
 }
 
 impl RunSheetPane {
+    /// The stored text of response `key.1` in `run`, and the text to show: the text being typed
+    /// when that cell is under edit, otherwise the stored text.
+    fn cell_texts(&self, run: &RunRecord, key: (usize, usize)) -> (String, String) {
+        let stored = run
+            .values
+            .get(key.1)
+            .map(|c| c.text.clone())
+            .unwrap_or_default();
+        let shown = match &self.editing {
+            Some((k, t)) if *k == key => t.clone(),
+            _ => stored.clone(),
+        };
+        (stored, shown)
+    }
+
     fn row_order(&mut self, view: &View<'_>) -> Rc<[usize]> {
         let fresh = match &self.rows {
             Some((rev, ord, _)) => *rev != view.revision || *ord != self.order,
@@ -450,16 +465,8 @@ fn next_run_card(
                 for (r, def) in project.responses.iter().enumerate() {
                     let id = Id::unique(("card_entry", r));
                     ui.label(RichText::new(format!("{} =", def.name)).size(20.0));
-                    let stored = run
-                        .values
-                        .get(r)
-                        .map(|c| c.text.clone())
-                        .unwrap_or_default();
                     let key = (run_idx, r);
-                    let mut text = match &pane.editing {
-                        Some((k, t)) if *k == key => t.clone(),
-                        _ => stored.clone(),
-                    };
+                    let (stored, mut text) = pane.cell_texts(run, key);
                     if pane.focus_card == Some(key) {
                         ui.memory_mut(|m| m.request_focus(id));
                         pane.focus_card = None;
@@ -654,16 +661,8 @@ fn response_cell(
         return;
     };
     let id = Id::unique(("cell", run_idx, r));
-    let stored = run
-        .values
-        .get(r)
-        .map(|c| c.text.clone())
-        .unwrap_or_default();
     let key = (run_idx, r);
-    let mut text = match &pane.editing {
-        Some((k, t)) if *k == key => t.clone(),
-        _ => stored.clone(),
-    };
+    let (stored, mut text) = pane.cell_texts(run, key);
     if pane.focus_next == Some(key) {
         ui.memory_mut(|m| m.request_focus(id));
         pane.focus_next = None;
