@@ -112,18 +112,10 @@ impl Pane for EffectsPane {
         let pal = view.pal;
         let Some(res) = view.results else {
             ui.heading("Effects");
-            not_available(
-                ui,
-                &pal,
-                "Not available yet: add a response on the run sheet.",
-            );
+            view.results_or_explain(ui);
             return;
         };
-        let name = view
-            .project
-            .responses
-            .get(res.response)
-            .map_or("", |r| r.name.as_str());
+        let name = view.response_name(res);
         ui.heading(format!("Effects on {name}"));
         ui.label(
             RichText::new(format!(

@@ -109,18 +109,10 @@ impl Pane for PlotsPane {
         let pal = view.pal;
         let Some(res) = view.results else {
             ui.heading("Factor plots");
-            not_available(
-                ui,
-                &pal,
-                "Not available yet: add a response on the run sheet.",
-            );
+            view.results_or_explain(ui);
             return;
         };
-        let name = view
-            .project
-            .responses
-            .get(res.response)
-            .map_or("", |r| r.name.as_str());
+        let name = view.response_name(res);
         ui.heading(format!("Factor plots for {name}"));
         if res.used_runs == 0 {
             not_available(ui, &pal, "Not available yet: no run has a value.");

@@ -127,6 +127,29 @@ pub struct View<'a> {
     pub now: &'a str,
 }
 
+impl<'a> View<'a> {
+    /// The analysis of the shown response, or, when there is none, a note in the pane saying what
+    /// to do first.
+    pub fn results_or_explain(&self, ui: &mut egui::Ui) -> Option<&'a results::ResponseResults> {
+        if self.results.is_none() {
+            widgets::not_available(
+                ui,
+                &self.pal,
+                "Not available yet: add a response on the run sheet.",
+            );
+        }
+        self.results
+    }
+
+    /// Name of the response an analysis is of ("" when it no longer exists).
+    pub fn response_name(&self, res: &results::ResponseResults) -> &'a str {
+        self.project
+            .responses
+            .get(res.response)
+            .map_or("", |r| r.name.as_str())
+    }
+}
+
 /// A pane of the window.
 pub trait Pane {
     /// Draws the pane and pushes what the engineer asked for onto `out`.

@@ -40,11 +40,7 @@ impl Pane for ModelPane {
         let pal = view.pal;
         let Some(res) = view.results else {
             ui.heading("Model");
-            not_available(
-                ui,
-                &pal,
-                "Not available yet: add a response on the run sheet.",
-            );
+            view.results_or_explain(ui);
             return;
         };
         let Some(def) = view.project.responses.get(res.response) else {

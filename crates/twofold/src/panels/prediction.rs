@@ -73,12 +73,7 @@ impl Pane for PredictionPane {
         let pal = view.pal;
         let project = view.project;
         ui.heading("Predict");
-        let Some(res) = view.results else {
-            not_available(
-                ui,
-                &pal,
-                "Not available yet: add a response on the run sheet.",
-            );
+        let Some(res) = view.results_or_explain(ui) else {
             return;
         };
         let fit = match &res.fit {

@@ -61,12 +61,7 @@ impl Pane for ResidualsPane {
         let Self { built } = self;
         let pal = view.pal;
         ui.heading("Residuals");
-        let Some(res) = view.results else {
-            not_available(
-                ui,
-                &pal,
-                "Not available yet: add a response on the run sheet.",
-            );
+        let Some(res) = view.results_or_explain(ui) else {
             return;
         };
         if let Err(why) = &res.fit {
