@@ -469,7 +469,7 @@ fn project_file_gives_the_same_numbers_as_the_window() {
     let (code, out, err) = analyze(&[path, "--json"]);
     assert_eq!(code, 0, "{err}");
     let j: Value = serde_json::from_str(&out).unwrap();
-    let project = twofold_app::project::load_project(std::path::Path::new(path)).unwrap();
+    let project = twofold_study::project::load_project(std::path::Path::new(path)).unwrap();
     let terms: Vec<String> = j["model"]["terms"]
         .as_array()
         .unwrap()
@@ -477,11 +477,11 @@ fn project_file_gives_the_same_numbers_as_the_window() {
         .map(|t| t.as_str().unwrap().to_string())
         .collect();
     assert!(!terms.is_empty());
-    let settings = twofold_app::project::ModelSettings {
+    let settings = twofold_study::project::ModelSettings {
         terms,
         ..Default::default()
     };
-    let mut cache = twofold_app::analysis::AnalysisCache::new();
+    let mut cache = twofold_study::analysis::AnalysisCache::new();
     let pane = cache.get_with(&project, 1, 0, &settings);
     let effects = &pane.effects.as_ref().unwrap().table.effects;
     let cli_effects = j["effects"].as_array().unwrap();

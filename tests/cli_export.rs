@@ -10,8 +10,8 @@
 use std::path::{Path, PathBuf};
 use std::process::Command;
 
-use twofold_app::interchange;
-use twofold_app::project::{Edit, Project, demo_project, save_project};
+use twofold_study::interchange;
+use twofold_study::project::{Edit, Project, demo_project, save_project};
 
 fn run(args: &[&str]) -> (i32, String, String) {
     let args: Vec<String> = args.iter().map(|s| s.to_string()).collect();
@@ -163,7 +163,7 @@ fn summary_pdf_is_vector_with_the_text_on_the_page() {
     let pages = raw.matches("/Type /Page").count() - raw.matches("/Type /Pages").count();
     assert_eq!(pages, 1, "one page");
     let text = pdftotext(&dir.path("s.pdf"));
-    let hash = twofold_app::export::build::project_hash(&p);
+    let hash = twofold_study::export::build::project_hash(&p);
     for needle in [
         "Powder-coating cure (demo)",
         "2025-03-04",

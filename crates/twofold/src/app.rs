@@ -13,9 +13,6 @@ use std::sync::{Arc, Mutex};
 
 use egui::{Key, KeyboardShortcut, Modifiers, RichText, Ui};
 
-use crate::analysis::AnalysisCache;
-use crate::export::{BuildOptions, ExportJob, Paper};
-use crate::interchange::ImportPlan;
 use crate::panels::design::{Compute, DesignPane};
 use crate::panels::effects::EffectsPane;
 use crate::panels::factors::FactorsPane;
@@ -23,14 +20,17 @@ use crate::panels::interactions::PlotsPane;
 use crate::panels::model::ModelPane;
 use crate::panels::prediction::PredictionPane;
 use crate::panels::residuals::ResidualsPane;
-use crate::panels::results::ResponseResults;
 use crate::panels::run_sheet::RunSheetPane;
 use crate::panels::{Command, Pane, Step, View};
-use crate::project::{
+use crate::theme::{self, Palette, ThemeChoice};
+use twofold_study::analysis::AnalysisCache;
+use twofold_study::export::{BuildOptions, ExportJob, Paper};
+use twofold_study::interchange::ImportPlan;
+use twofold_study::project::{
     DesignSettings, Edit, History, Problem, Project, RecentFiles, RecoveryDebouncer, RecoveryOffer,
     RecoveryStore, Severity,
 };
-use crate::theme::{self, Palette, ThemeChoice};
+use twofold_study::results::ResponseResults;
 
 /// Short caution about working with real processes, reachable from the Help menu and the status
 /// bar.
@@ -179,7 +179,7 @@ fn coalesce_key(edit: &Edit) -> Option<CoalesceKey> {
         Edit::SetNote { run, .. } => CoalesceKey::Note(*run),
         Edit::SetStatus {
             run,
-            status: crate::project::RunStatus::Excluded { .. },
+            status: twofold_study::project::RunStatus::Excluded { .. },
         } => CoalesceKey::Status(*run),
         _ => return None,
     })
@@ -628,7 +628,7 @@ impl TwofoldApp {
     /// Pastes clipboard `text` into response `response` from run `targets[0]` down, as one undo
     /// step. Text that is not a number is kept in its cell (marked) and listed in a message.
     fn paste(&mut self, response: usize, targets: &[usize], text: &str) {
-        let plan = crate::interchange::plan_paste(self.project(), response, targets, text);
+        let plan = twofold_study::interchange::plan_paste(self.project(), response, targets, text);
         if plan.cells.is_empty() {
             self.notice = Some("Nothing to paste: the clipboard held no values.".into());
             return;
@@ -1080,22 +1080,22 @@ impl TwofoldApp {
         let options = self.build_options();
         let paper = self.paper;
         let target = path.clone();
-        let work: crate::export::job::Work = Box::new(move |progress, cancelled| {
-            progress(crate::export::Stage::LayingOut);
+        let work: twofold_study::export::job::Work = Box::new(move |progress, cancelled| {
+            progress(twofold_study::export::Stage::LayingOut);
             let results =
                 std::panic::catch_unwind(|| cached_results(&cache, &project, revision, response))
                     .map_err(|_| {
-                    crate::export::ExportError::Render(
+                    twofold_study::export::ExportError::Render(
                         "the analysis stopped with an internal error (please report it)".into(),
                     )
                 })?;
-            let input = crate::export::summary_input(&project, &results, &options);
-            let page = crate::export::summary_svg(&input, paper);
-            crate::export::write_pages(
+            let input = twofold_study::export::summary_input(&project, &results, &options);
+            let page = twofold_study::export::summary_svg(&input, paper);
+            twofold_study::export::write_pages(
                 &[page],
                 paper,
                 &target,
-                &crate::export::summary_title(&input),
+                &twofold_study::export::summary_title(&input),
                 progress,
                 cancelled,
             )
@@ -1118,7 +1118,7 @@ impl TwofoldApp {
         }
         let now = (self.clock)();
         let date = now.get(..10).map(str::to_string);
-        let sheet = crate::export::run_sheet_input(self.project(), date);
+        let sheet = twofold_study::export::run_sheet_input(self.project(), date);
         let job = ExportJob::run_sheet(sheet, path.clone(), self.paper, self.repaint_hook());
         self.export = Some((format!("run sheet to {}", path.display()), job));
     }
@@ -1145,7 +1145,7 @@ impl TwofoldApp {
                     )
                 });
             }
-            Err(crate::export::ExportError::Cancelled) => {
+            Err(twofold_study::export::ExportError::Cancelled) => {
                 self.notice = Some("Export cancelled; no file was written.".into());
             }
             Err(e) => {
@@ -1161,7 +1161,7 @@ impl TwofoldApp {
             ));
             return;
         }
-        match crate::interchange::write_run_sheet_csv(self.project(), path) {
+        match twofold_study::interchange::write_run_sheet_csv(self.project(), path) {
             Ok(_) => {
                 self.notice = Some(format!(
                     "Exported {} runs to {}",
@@ -1190,7 +1190,7 @@ impl TwofoldApp {
                 return;
             }
         };
-        match crate::interchange::plan_import(self.project(), &text) {
+        match twofold_study::interchange::plan_import(self.project(), &text) {
             Ok(plan) => {
                 self.modal = Some(Modal::ConfirmImport {
                     file: path.display().to_string(),
@@ -1457,7 +1457,7 @@ impl TwofoldApp {
                             let done = p
                                 .runs
                                 .iter()
-                                .filter(|r| r.status == crate::project::RunStatus::Done)
+                                .filter(|r| r.status == twofold_study::project::RunStatus::Done)
                                 .count();
                             if p.runs.is_empty() {
                                 "no runs yet".to_string()
@@ -1799,11 +1799,11 @@ fn file_stem(name: &str) -> String {
 }
 
 fn save_project(project: &Project, path: &Path) -> Result<(), String> {
-    crate::project::save_project(path, project).map_err(|e| e.to_string())
+    twofold_study::project::save_project(path, project).map_err(|e| e.to_string())
 }
 
 fn load_project(path: &Path) -> Result<Project, String> {
-    crate::project::load_project(path).map_err(|e| e.to_string())
+    twofold_study::project::load_project(path).map_err(|e| e.to_string())
 }
 
 /// `2025-03-04T10:22:05Z` → `2025-03-04 10:22 UTC`; other text is shown as it is.
@@ -1880,7 +1880,7 @@ pub fn run_window(path: Option<PathBuf>) -> i32 {
             }
         },
         None => TwofoldApp::with(
-            History::new(crate::project::demo_project()),
+            History::new(twofold_study::project::demo_project()),
             None,
             FilePicker::Native,
         ),

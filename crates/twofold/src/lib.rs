@@ -1,18 +1,12 @@
 //! # twofold (application)
 //!
-//! The desktop tool and its headless subcommands. All file and window I/O lives here; the
-//! mathematics lives in `twofold_core`.
+//! The desktop window and the headless commands: two front ends over `twofold_study`, which owns
+//! the project, its analysis report, files and pages, over `twofold_core`, the mathematics.
 //!
-//! Layering: `project` is plain data plus the edits that change it (undoable, autosaved);
-//! `analysis` caches the core's results for the current data; `panels` draw the project and emit
-//! edits; `export` and `interchange` turn the project into pages and spreadsheets; `cli` runs the
-//! same computations without a window.
+//! `app` is the window's shell; `panels` draw the project and the report and emit commands;
+//! `cli` parses command lines and prints the same report.
 
-pub mod analysis;
 pub mod app;
 pub mod cli;
-pub mod export;
-pub mod interchange;
 pub mod panels;
-pub mod project;
 pub mod theme;

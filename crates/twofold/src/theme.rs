@@ -36,11 +36,11 @@ pub fn install_fonts(ctx: &egui::Context) {
     let mut fonts = FontDefinitions::default();
     fonts.font_data.insert(
         "twofold-regular".into(),
-        Arc::new(FontData::from_static(crate::export::fonts::REGULAR)),
+        Arc::new(FontData::from_static(twofold_study::export::fonts::REGULAR)),
     );
     fonts.font_data.insert(
         "twofold-bold".into(),
-        Arc::new(FontData::from_static(crate::export::fonts::BOLD)),
+        Arc::new(FontData::from_static(twofold_study::export::fonts::BOLD)),
     );
     let fallbacks = fonts
         .families

@@ -3,8 +3,8 @@
 
 use std::time::{Duration, Instant};
 
-use twofold_app::analysis::AnalysisCache;
-use twofold_app::project::{
+use twofold_study::analysis::AnalysisCache;
+use twofold_study::project::{
     Edit, History, RecoveryDebouncer, RecoveryStore, RunStatus, demo_project, load_project,
     save_project,
 };

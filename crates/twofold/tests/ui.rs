@@ -4,7 +4,7 @@ use egui_kittest::Harness;
 use egui_kittest::kittest::Queryable;
 use twofold_app::app::TwofoldApp;
 use twofold_app::panels::Step;
-use twofold_app::project::{Factor, Project, ResponseDef};
+use twofold_study::project::{Factor, Project, ResponseDef};
 
 fn harness(app: TwofoldApp) -> Harness<'static, TwofoldApp> {
     Harness::builder()
@@ -122,7 +122,7 @@ fn typing_values_in_the_next_run_card_fills_runs_in_run_order() {
     let by_order = |n: u32| p.runs.iter().find(|r| r.run_order == n).unwrap();
     assert_eq!(by_order(1).values[0].text, "71.5");
     assert_eq!(by_order(2).values[0].text, "64");
-    assert_eq!(by_order(1).status, twofold_app::project::RunStatus::Done);
+    assert_eq!(by_order(1).status, twofold_study::project::RunStatus::Done);
     assert_eq!(
         by_order(1).entered_at.as_deref(),
         Some("2025-01-01T09:00:00Z")
@@ -146,7 +146,7 @@ fn text_that_is_not_a_number_stays_in_the_cell_marked_with_the_reason() {
     assert_eq!(first.values[0].number(), None);
     assert_eq!(
         first.status,
-        twofold_app::project::RunStatus::ToDo,
+        twofold_study::project::RunStatus::ToDo,
         "a slip keeps the run open"
     );
     // The card stays on the run and says why the text was not read.
@@ -185,11 +185,11 @@ fn saving_with_ctrl_s_writes_a_file_that_reopens_to_the_same_project() {
 fn an_edit_leaves_a_recovery_copy_about_a_second_later() {
     use std::time::{Duration, Instant};
     let dir = tempfile::tempdir().unwrap();
-    let store = twofold_app::project::RecoveryStore::in_dir(dir.path());
+    let store = twofold_study::project::RecoveryStore::in_dir(dir.path());
     let mut app = TwofoldApp::new_for_test(three_factor_project());
     app.set_recovery_store(store.clone());
     app.apply(twofold_app::panels::Command::Edit(
-        twofold_app::project::Edit::SetName("Renamed".into()),
+        twofold_study::project::Edit::SetName("Renamed".into()),
     ));
     let t0 = Instant::now();
     app.autosave_tick(t0);
@@ -238,9 +238,9 @@ fn fill_runs(h: &mut Harness<'static, TwofoldApp>, skip: &[u32]) {
                 panic!("no run {order}");
             };
             h.state_mut().apply(twofold_app::panels::Command::Edit(
-                twofold_app::project::Edit::SetStatus {
+                twofold_study::project::Edit::SetStatus {
                     run: idx,
-                    status: twofold_app::project::RunStatus::Done,
+                    status: twofold_study::project::RunStatus::Done,
                 },
             ));
             h.run();
@@ -352,7 +352,7 @@ fn changing_the_design_after_values_were_typed_asks_first() {
 fn every_step_of_the_demo_project_draws_with_real_glyphs_and_named_widgets() {
     // The harness fails on a glyph the fonts cannot draw and on an unnamed widget.
     let mut h = harness(TwofoldApp::new_for_test(
-        twofold_app::project::demo_project(),
+        twofold_study::project::demo_project(),
     ));
     for step in Step::ALL {
         h.state_mut().set_step(step);
@@ -424,18 +424,18 @@ fn in_the_grid_tab_moves_across_responses_and_enter_to_the_next_unfinished_run()
     let run = |n: u32| p.runs.iter().find(|r| r.run_order == n).unwrap();
     assert_eq!(run(1).values[0].text, "80");
     assert_eq!(run(1).values[1].text, "2.5");
-    assert_eq!(run(1).status, twofold_app::project::RunStatus::Done);
+    assert_eq!(run(1).status, twofold_study::project::RunStatus::Done);
     assert_eq!(run(2).values[1].text, "3.1");
     assert_eq!(
         run(2).status,
-        twofold_app::project::RunStatus::ToDo,
+        twofold_study::project::RunStatus::ToDo,
         "Gloss still missing"
     );
 }
 
 #[test]
 fn the_analysis_runs_beside_the_window_and_appears_when_ready() {
-    let mut app = TwofoldApp::new_for_test(twofold_app::project::demo_project());
+    let mut app = TwofoldApp::new_for_test(twofold_study::project::demo_project());
     app.set_background_compute(true);
     let mut h = harness(app);
     h.state_mut().set_step(Step::Effects);

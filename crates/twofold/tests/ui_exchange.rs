@@ -5,7 +5,7 @@ use egui_kittest::Harness;
 use egui_kittest::kittest::Queryable;
 use twofold_app::app::{FilePicker, Modal, TwofoldApp};
 use twofold_app::panels::Step;
-use twofold_app::project::{Factor, Project, ResponseDef, demo_project};
+use twofold_study::project::{Factor, Project, ResponseDef, demo_project};
 
 fn harness(app: TwofoldApp) -> Harness<'static, TwofoldApp> {
     Harness::builder()
@@ -257,7 +257,7 @@ fn copy_table_puts_the_sheet_on_the_clipboard_as_tab_separated_text() {
         })
         .collect();
     assert_eq!(copied.len(), 1, "one copy");
-    let grid = twofold_app::interchange::parse_grid(&copied[0]);
+    let grid = twofold_study::interchange::parse_grid(&copied[0]);
     assert_eq!(grid.len(), 9, "a header and eight runs");
     assert_eq!(grid[0][0], "Run");
     assert_eq!(grid[1][0], "1", "in run order");

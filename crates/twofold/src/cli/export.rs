@@ -17,10 +17,10 @@ use twofold_core::predict::Goal;
 
 use super::args::{self, ArgError};
 use super::{EXIT_BAD_INPUT, EXIT_FAILURE};
-use crate::export::{self, BuildOptions, Format, Paper};
-use crate::interchange;
-use crate::panels::results::ResponseResults;
-use crate::project::{Project, load_project};
+use twofold_study::export::{self, BuildOptions, Format, Paper};
+use twofold_study::interchange;
+use twofold_study::project::{Project, load_project};
+use twofold_study::results::ResponseResults;
 
 /// Usage text printed by `--help`.
 pub const USAGE: &str = "\

@@ -334,7 +334,7 @@ fn write_csv(p: &Planned, out: &mut dyn Write) -> std::io::Result<()> {
     header.extend(
         p.names
             .iter()
-            .map(|n| crate::interchange::guard(n).into_owned()),
+            .map(|n| twofold_study::interchange::guard(n).into_owned()),
     );
     w.write_record(&header).map_err(std::io::Error::other)?;
     for r in &p.plan.runs {

@@ -11,10 +11,10 @@ use egui::{Grid, RichText, Ui};
 
 use super::widgets::{not_available, warning_box};
 use super::{Command, Pane, View};
-use crate::project::{BlockChoice, DesignSettings, Project};
 use twofold_core::alias::{AliasReport, alias_report, roman};
 use twofold_core::design::{FractionalDesign, Generator};
 use twofold_core::search::{DesignOption, SearchBudget, design_options};
+use twofold_study::project::{BlockChoice, DesignSettings, Project};
 
 /// Largest run size offered in the table: bigger sheets are not practical at a bench.
 pub const MAX_OFFERED_RUNS: usize = 4096;

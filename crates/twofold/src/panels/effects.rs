@@ -5,12 +5,12 @@
 use egui::{RichText, Ui};
 
 use super::plots::{EffectBar, EffectBars, HalfNormalPlot, HalfNormalPoint};
-use super::results::{ResponseResults, WarningKind};
 use super::widgets::{not_available, warning_box};
 use super::{Command, Pane, View};
-use crate::project::{Edit, Project};
 use twofold_core::lenth::Significance;
 use twofold_core::term::Term;
+use twofold_study::project::{Edit, Project};
+use twofold_study::results::{ResponseResults, WarningKind};
 
 /// View state of the effects pane: the plot data built once per data revision.
 #[derive(Debug, Default)]

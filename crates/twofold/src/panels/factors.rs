@@ -5,10 +5,10 @@ use egui::{Grid, RichText, Ui};
 
 use super::widgets::{number_field, plain_number, text_field, warning_box};
 use super::{Command, Pane, View};
-use crate::project::{
+use twofold_core::term::LETTERS;
+use twofold_study::project::{
     Edit, Factor, FactorField, FactorKind, Field, MAX_FACTORS, MIN_FACTORS, Severity,
 };
-use twofold_core::term::LETTERS;
 
 /// View state of the factors pane.
 #[derive(Debug, Default)]

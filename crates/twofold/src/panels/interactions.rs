@@ -7,8 +7,8 @@ use super::plots::{InteractionPlot, MainEffectPlot, shared_range};
 use super::run_sheet::natural_setting;
 use super::widgets::{not_available, tiles};
 use super::{Command, Pane, View};
-use crate::project::Project;
 use twofold_core::term::{LETTERS, Term};
+use twofold_study::project::Project;
 
 /// Which pairs get an interaction plot.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
@@ -47,7 +47,7 @@ fn level_labels(project: &Project, f: usize) -> [String; 2] {
     }
 }
 
-fn build(view: &View<'_>, res: &super::results::ResponseResults) -> Built {
+fn build(view: &View<'_>, res: &twofold_study::results::ResponseResults) -> Built {
     let p = view.project;
     let mains: Vec<MainEffectPlot> = res
         .main_means

@@ -14,12 +14,11 @@ pub mod model;
 pub mod plots;
 pub mod prediction;
 pub mod residuals;
-pub mod results;
 pub mod run_sheet;
 pub mod widgets;
 
-use crate::project::{DesignSettings, Edit, Problem, Project};
 use crate::theme::Palette;
+use twofold_study::project::{DesignSettings, Edit, Problem, Project};
 
 /// The steps of the bench loop, one pane each, in the order they are usually visited.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
@@ -118,7 +117,7 @@ pub struct View<'a> {
     pub response: Option<usize>,
     /// Analysis of that response (computed once per change, only while an analysis step shows);
     /// possibly of an earlier revision while the new one is computed.
-    pub results: Option<&'a results::ResponseResults>,
+    pub results: Option<&'a twofold_study::results::ResponseResults>,
     /// Whether `results` are of the current revision.
     pub results_current: bool,
     /// Colours of the current theme.
@@ -130,7 +129,10 @@ pub struct View<'a> {
 impl<'a> View<'a> {
     /// The analysis of the shown response, or, when there is none, a note in the pane saying what
     /// to do first.
-    pub fn results_or_explain(&self, ui: &mut egui::Ui) -> Option<&'a results::ResponseResults> {
+    pub fn results_or_explain(
+        &self,
+        ui: &mut egui::Ui,
+    ) -> Option<&'a twofold_study::results::ResponseResults> {
         if self.results.is_none() {
             widgets::not_available(
                 ui,
@@ -142,7 +144,7 @@ impl<'a> View<'a> {
     }
 
     /// Name of the response an analysis is of ("" when it no longer exists).
-    pub fn response_name(&self, res: &results::ResponseResults) -> &'a str {
+    pub fn response_name(&self, res: &twofold_study::results::ResponseResults) -> &'a str {
         self.project
             .responses
             .get(res.response)

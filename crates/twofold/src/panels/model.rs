@@ -4,11 +4,11 @@
 use egui::{Grid, RichText, Ui};
 
 use super::chart::fmt_num;
-use super::results::WarningKind;
 use super::widgets::{not_available, warning_box};
 use super::{Command, Pane, View};
-use crate::project::{Edit, ResponseTransform};
 use twofold_core::anova::Source;
+use twofold_study::project::{Edit, ResponseTransform};
+use twofold_study::results::WarningKind;
 
 /// View state of the model pane (none: everything shown is in the analysis cache).
 #[derive(Debug, Default)]

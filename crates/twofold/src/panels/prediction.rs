@@ -8,11 +8,11 @@ use super::chart::fmt_num;
 use super::run_sheet::natural_setting;
 use super::widgets::{not_available, number_field, warning_box};
 use super::{Command, Pane, View};
-use crate::project::{FactorKind, Project};
 use twofold_core::predict::{
     DEFAULT_CONFIDENCE, Goal, Optimum, Prediction, best_settings, predict,
 };
 use twofold_core::term::LETTERS;
+use twofold_study::project::{FactorKind, Project};
 
 /// What the best-settings search aims for.
 #[derive(Debug, Clone, Copy, PartialEq, Default)]
@@ -233,7 +233,7 @@ fn prediction_card(
     ui: &mut Ui,
     view: &View<'_>,
     p: &Prediction,
-    res: &super::results::ResponseResults,
+    res: &twofold_study::results::ResponseResults,
     name: &str,
     unit: &str,
 ) {

@@ -16,7 +16,7 @@ pub struct ResidualsPane {
 /// Studentised residuals beyond this many standard deviations are marked (common practice).
 const LIMIT_SD: f64 = 3.0;
 
-fn build(res: &super::results::ResponseResults) -> Option<[ResidualPlot; 3]> {
+fn build(res: &twofold_study::results::ResponseResults) -> Option<[ResidualPlot; 3]> {
     let d = res.diagnostics.as_ref()?;
     let fit = res.fit.as_ref().ok()?;
     let limit = fit.sigma.map(|s| LIMIT_SD * s);

@@ -11,11 +11,11 @@ use egui_extras::{Column, TableBuilder};
 
 use super::widgets::{plain_number, text_field, warning_box};
 use super::{Command, Pane, Step, View};
-use crate::project::{
-    CellValue, Edit, Factor, FactorKind, Project, ResponseDef, RunRecord, RunStatus,
-};
 use crate::theme::Palette;
 use twofold_core::term::LETTERS;
+use twofold_study::project::{
+    CellValue, Edit, Factor, FactorKind, Project, ResponseDef, RunRecord, RunStatus,
+};
 
 /// Which order the grid lists the runs in.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
@@ -160,13 +160,13 @@ pub fn copy_table(project: &Project, rows: &[usize], coded: bool) -> String {
     let mut grid = Vec::with_capacity(rows.len() + 1);
     let mut header = vec!["Run".to_string(), "Std".to_string()];
     for (i, f) in project.factors.iter().enumerate() {
-        header.push(crate::interchange::csv::factor_header(
+        header.push(twofold_study::interchange::csv::factor_header(
             LETTERS.get(i).copied().unwrap_or('?'),
             f,
         ));
     }
     for r in &project.responses {
-        header.push(crate::interchange::csv::response_header(r));
+        header.push(twofold_study::interchange::csv::response_header(r));
     }
     header.push("Status".into());
     header.push("Note".into());
@@ -208,7 +208,7 @@ pub fn copy_table(project: &Project, rows: &[usize], coded: bool) -> String {
         row.push(run.note.clone());
         grid.push(row);
     }
-    crate::interchange::copy_grid(&grid)
+    twofold_study::interchange::copy_grid(&grid)
 }
 
 fn responses_bar(ui: &mut Ui, project: &Project, out: &mut Vec<Command>) {
@@ -271,7 +271,7 @@ pub fn store_value(
     }
     // Only numbers complete a run: a slip keeps the run open, so the card stays on it and
     // shows why the text was not read.
-    let is_number = |t: &str| crate::project::Cell::new(t).number().is_some();
+    let is_number = |t: &str| twofold_study::project::Cell::new(t).number().is_some();
     let complete = record.values.iter().enumerate().all(|(i, c)| {
         if i == response {
             is_number(&text)
@@ -500,7 +500,7 @@ fn next_run_card(
                             )));
                         }
                         pane.editing = None;
-                        if enter && crate::project::Cell::new(&text).number().is_some() {
+                        if enter && twofold_study::project::Cell::new(&text).number().is_some() {
                             // Next empty response of this run, else the card moves on by itself
                             // and the first field of the next run takes the focus.
                             let next_r = (r + 1..project.responses.len())
@@ -515,7 +515,9 @@ fn next_run_card(
                             pane.focus_card = Some(target);
                         }
                     }
-                    if let CellValue::Bad { reason } = crate::project::Cell::new(&text).value() {
+                    if let CellValue::Bad { reason } =
+                        twofold_study::project::Cell::new(&text).value()
+                    {
                         ui.label(
                             RichText::new(format!("⚠ not a number: {reason}")).color(pal.error),
                         );
@@ -712,7 +714,7 @@ fn response_cell(
         // We move across responses ourselves; egui's own Tab order would go to the status box.
         ui.memory_mut(|m| m.move_focus(egui::FocusDirection::None));
     }
-    let bad = match crate::project::Cell::new(&text).value() {
+    let bad = match twofold_study::project::Cell::new(&text).value() {
         CellValue::Bad { reason } => Some(reason),
         _ => None,
     };

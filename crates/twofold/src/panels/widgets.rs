@@ -3,8 +3,8 @@
 
 use egui::{Color32, Id, RichText, TextEdit, Ui};
 
-use crate::project::{Cell, CellValue};
 use crate::theme::Palette;
+use twofold_study::project::{Cell, CellValue};
 
 /// A one-line text field over `current`; returns the new text when the engineer changed it.
 ///

@@ -348,8 +348,8 @@ impl ResponseResults {
                     WarningKind::Model,
                     format!(
                         "Curvature: the centre points differ from the corners' average by {} (p = {}). The response bends inside the box, so predictions between the corners are not reliable and the best setting may lie inside.",
-                        super::chart::fmt_num(-c.factorial_minus_centre, 3),
-                        super::chart::fmt_num(p, 2)
+                        crate::numbers::fmt_num(-c.factorial_minus_centre, 3),
+                        crate::numbers::fmt_num(p, 2)
                     ),
                 );
             }

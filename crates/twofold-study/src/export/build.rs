@@ -20,8 +20,8 @@ use super::input::{
     SummaryInput,
 };
 use super::{ExportError, ExportReport, Paper, format};
-use crate::panels::results::ResponseResults;
 use crate::project::{BlockChoice, Factor, FactorKind, Project, ResponseTransform, Severity};
+use crate::results::ResponseResults;
 
 /// Choices for a summary that are not stored in the project.
 #[derive(Debug, Clone, PartialEq)]

@@ -7,6 +7,7 @@
 //! after the engineer confirmed the preview.
 
 pub mod clipboard;
+pub mod coded;
 pub mod csv;
 pub mod guard;
 

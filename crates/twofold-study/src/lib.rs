@@ -1,0 +1,21 @@
+//! # twofold-study
+//!
+//! A two-level factorial study without a window: everything the desktop app and the headless
+//! commands share. The mathematics lives in `twofold_core`; this crate owns files, the project and
+//! its history, and the one analysis of a response that every front end renders. It cannot see
+//! egui, eframe, rfd or winit, so the compiler keeps the layering.
+//!
+//! - `project`: plain data plus the edits that change it (undoable), validation, persistence,
+//!   recovery and recent files.
+//! - `analysis`: the core's results for one response, cached per data revision; `results` is
+//!   their digest in words and counts.
+//! - `export`: the one-page summary and the printable run sheet (SVG, PNG, PDF).
+//! - `interchange`: CSV, clipboard text and the spreadsheet formula guard.
+//! - `numbers`: one rule for writing numbers and choosing axis ticks.
+
+pub mod analysis;
+pub mod export;
+pub mod interchange;
+pub mod numbers;
+pub mod project;
+pub mod results;
