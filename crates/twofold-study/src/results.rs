@@ -8,12 +8,13 @@
 //! available yet, because ..." instead of showing a number that is not there.
 
 use twofold_core::anova::{Equation, ModelFit};
+use twofold_core::boxcox::BoxCox;
 use twofold_core::data::Observations;
 use twofold_core::diagnostics::Diagnostics;
 use twofold_core::effects::EffectTable;
 use twofold_core::halfnormal::HalfNormalPoint;
 use twofold_core::lenth::Lenth;
-use twofold_core::means::MainEffectMeans;
+use twofold_core::means::{InteractionMeans, MainEffectMeans};
 use twofold_core::predict::CURVATURE_ALPHA;
 use twofold_core::term::Term;
 use twofold_core::transform::Transform;
@@ -110,6 +111,11 @@ pub struct ResponseResults {
     pub ranges: Vec<(f64, f64)>,
     /// Warnings in plain words.
     pub warnings: Vec<Warning>,
+    /// The Box–Cox profile of the measured response under the fitted model, or why there is none.
+    pub box_cox: Result<BoxCox, String>,
+    /// The fitted model's cells of every pair of factors (predicted means with 95 % intervals,
+    /// analysis scale), or why there are none.
+    pub model_cells: Result<Vec<InteractionMeans>, String>,
 }
 
 /// The core's transform for the project's choice (the analysis cache's mapping).
@@ -239,6 +245,8 @@ impl ResponseResults {
             equation_natural: Err(String::new()),
             ranges: natural_ranges(project),
             warnings: Vec::new(),
+            box_cox: Err(String::new()),
+            model_cells: Err(String::new()),
         };
         if data.used.is_empty() {
             let why = "no run has a value yet";
@@ -246,6 +254,8 @@ impl ResponseResults {
             out.lenth = Err(why.into());
             out.fit = Err(why.into());
             out.equation_natural = Err(why.into());
+            out.box_cox = Err(why.into());
+            out.model_cells = Err(why.into());
             return out;
         }
         match &analysis.effects {
@@ -265,15 +275,21 @@ impl ResponseResults {
                 out.diagnostics = Some(m.diagnostics.clone());
                 out.equation_coded = Some(m.equation_coded.clone());
                 out.equation_natural = m.equation_natural.clone().map_err(|e| text(&e));
+                out.box_cox = m.box_cox.clone().map_err(|e| text(&e));
+                out.model_cells = m.interactions.clone().map_err(|e| text(&e));
             }
             Err(AnalysisError::NoModel) => {
                 let why = "no terms chosen yet: click the largest effects in the effect bars or the half-normal plot";
                 out.fit = Err(why.into());
                 out.equation_natural = Err(why.into());
+                out.box_cox = Err(why.into());
+                out.model_cells = Err(why.into());
             }
             Err(e) => {
                 out.fit = Err(e.to_string());
                 out.equation_natural = Err(e.to_string());
+                out.box_cox = Err(e.to_string());
+                out.model_cells = Err(e.to_string());
             }
         }
         out.collect_warnings();
@@ -430,6 +446,8 @@ impl ResponseResults {
             equation_natural: Err(String::new()),
             ranges: Vec::new(),
             warnings: Vec::new(),
+            box_cox: Err(String::new()),
+            model_cells: Err(String::new()),
         };
         out.set_all_unavailable(why);
         out
@@ -441,6 +459,8 @@ impl ResponseResults {
         self.lenth = Err(why.into());
         self.fit = Err(why.into());
         self.equation_natural = Err(why.into());
+        self.box_cox = Err(why.into());
+        self.model_cells = Err(why.into());
     }
 
     /// Whether `term` is in the chosen model.

@@ -3,12 +3,15 @@
 
 use egui::{RichText, Ui, vec2};
 
+use super::model_cells;
 use super::plots::{InteractionPlot, MainEffectPlot, shared_range};
 use super::run_sheet::natural_setting;
 use super::widgets::{not_available, tiles};
 use super::{Command, Pane, View};
+use twofold_core::means::InteractionMeans;
 use twofold_core::term::{LETTERS, Term};
 use twofold_study::project::Project;
+use twofold_study::results::ResponseResults;
 
 /// Which pairs get an interaction plot.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
@@ -47,7 +50,14 @@ fn level_labels(project: &Project, f: usize) -> [String; 2] {
     }
 }
 
-fn build(view: &View<'_>, res: &twofold_study::results::ResponseResults) -> Built {
+/// The fitted model's cells of every pair, when a model is fitted: the one place this pane reads
+/// them from the analysis.
+fn model_cells_of(res: &ResponseResults) -> Option<&[InteractionMeans]> {
+    res.fit.as_ref().ok()?;
+    res.model_cells.as_deref().ok()
+}
+
+fn build(view: &View<'_>, res: &ResponseResults) -> Built {
     let p = view.project;
     let mains: Vec<MainEffectPlot> = res
         .main_means
@@ -68,6 +78,7 @@ fn build(view: &View<'_>, res: &twofold_study::results::ResponseResults) -> Buil
             }
         })
         .collect();
+    let cells = model_cells_of(res);
     let interactions: Vec<InteractionPlot> = res
         .pairs
         .iter()
@@ -82,6 +93,7 @@ fn build(view: &View<'_>, res: &twofold_study::results::ResponseResults) -> Buil
                 b_levels: level_labels(p, b),
                 means: pm.means,
                 in_model: res.fitted(term),
+                predicted: cells.and_then(|c| model_cells::corners_of(c, a, b)),
             }
         })
         .collect();
@@ -93,6 +105,12 @@ fn build(view: &View<'_>, res: &twofold_study::results::ResponseResults) -> Buil
                 interactions
                     .iter()
                     .flat_map(|i| i.means.iter().flatten().flatten().copied()),
+            )
+            .chain(
+                interactions
+                    .iter()
+                    .filter_map(|i| i.predicted.as_ref())
+                    .flat_map(model_cells::extent),
             ),
     );
     Built {
@@ -165,6 +183,9 @@ impl Pane for PlotsPane {
                     ui.weak("No interaction is in the model yet: showing every pair.");
                 }
                 ui.weak("Parallel lines: no interaction. Crossing or diverging lines: the effect of one factor depends on the other.");
+                if shown.iter().any(|i| i.predicted.is_some()) {
+                    ui.label(RichText::new(model_cells::LEGEND).size(13.0));
+                }
                 let isize = vec2(290.0, 190.0);
                 tiles(ui, shown.len(), isize.x, |ui, i| {
                     shown[i].show(ui, &pal, isize, built.y);

@@ -5,12 +5,14 @@
 //! so every change is undoable and autosaved. A pane owns only its own view state (text being
 //! typed, scroll targets, toggles).
 
+pub mod boxcox;
 pub mod chart;
 pub mod design;
 pub mod effects;
 pub mod factors;
 pub mod interactions;
 pub mod model;
+pub mod model_cells;
 pub mod plots;
 pub mod prediction;
 pub mod residuals;

@@ -417,6 +417,9 @@ pub struct InteractionPlot {
     pub means: [[Option<f64>; 2]; 2],
     /// Whether the interaction is in the model (highlighted frame and thicker lines).
     pub in_model: bool,
+    /// The fitted model's corners with 95 % intervals, drawn beside the observed means
+    /// ([`super::model_cells`]); `None` without a fitted model.
+    pub predicted: Option<super::model_cells::PredictedCorners>,
 }
 
 impl InteractionPlot {
@@ -486,6 +489,9 @@ impl InteractionPlot {
                         *color,
                     );
                 }
+            }
+            if let Some(corners) = &self.predicted {
+                super::model_cells::paint(ui, &frame, corners, [pal.low_line, pal.high_line]);
             }
             for (j, (color, _, sign, word)) in styles.iter().enumerate() {
                 ui.label(

@@ -1,11 +1,13 @@
 //! The residuals pane: normal plot of the residuals, residuals against fitted values and against
-//! run order.
+//! run order, and the Box–Cox profile of the response ([`super::boxcox`]).
 
 use egui::{Ui, vec2};
 
 use super::plots::{ResidualKind, ResidualPlot};
 use super::widgets::{not_available, tiles};
 use super::{Command, Pane, View};
+use twofold_core::boxcox::BoxCox;
+use twofold_study::results::ResponseResults;
 
 /// View state of the residuals pane: the three plots built once per data revision.
 #[derive(Debug, Default)]
@@ -16,7 +18,13 @@ pub struct ResidualsPane {
 /// Studentised residuals beyond this many standard deviations are marked (common practice).
 const LIMIT_SD: f64 = 3.0;
 
-fn build(res: &twofold_study::results::ResponseResults) -> Option<[ResidualPlot; 3]> {
+/// The Box–Cox profile of the shown results, or why there is none: the one place this pane reads
+/// it from the analysis.
+fn box_cox_of(res: &ResponseResults) -> Result<&BoxCox, &str> {
+    res.box_cox.as_ref().map_err(String::as_str)
+}
+
+fn build(res: &ResponseResults) -> Option<[ResidualPlot; 3]> {
     let d = res.diagnostics.as_ref()?;
     let fit = res.fit.as_ref().ok()?;
     let limit = fit.sigma.map(|s| LIMIT_SD * s);
@@ -57,7 +65,7 @@ fn build(res: &twofold_study::results::ResponseResults) -> Option<[ResidualPlot;
 }
 
 impl Pane for ResidualsPane {
-    fn ui(&mut self, ui: &mut Ui, view: &View<'_>, _out: &mut Vec<Command>) {
+    fn ui(&mut self, ui: &mut Ui, view: &View<'_>, out: &mut Vec<Command>) {
         let Self { built } = self;
         let pal = view.pal;
         ui.heading("Residuals");
@@ -92,6 +100,30 @@ impl Pane for ResidualsPane {
                 tiles(ui, plots.len(), w, |ui, i| {
                     plots[i].show(ui, &pal, vec2(w, 260.0));
                 });
+                ui.add_space(12.0);
+                ui.separator();
+                match box_cox_of(res) {
+                    Ok(bc) => {
+                        let current = view
+                            .project
+                            .responses
+                            .get(res.response)
+                            .map(|r| r.model.transform)
+                            .unwrap_or_default();
+                        super::boxcox::show(
+                            ui,
+                            &pal,
+                            bc,
+                            current,
+                            res.response,
+                            vec2(w, 260.0),
+                            out,
+                        );
+                    }
+                    Err(why) => {
+                        not_available(ui, &pal, &format!("Box–Cox profile not available: {why}."));
+                    }
+                }
             });
     }
 }
