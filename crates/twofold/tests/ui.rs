@@ -469,3 +469,108 @@ fn a_new_factor_takes_the_keyboard_so_typing_names_it_in_one_undo_step() {
     h.run();
     assert_eq!(h.state().project().factors[3].name, "Factor D");
 }
+
+#[test]
+fn the_residuals_step_of_the_demo_shows_the_box_cox_profile_and_its_verdict() {
+    let mut h = harness(TwofoldApp::new_for_test(
+        twofold_study::project::demo_project(),
+    ));
+    h.state_mut().set_step(Step::Residuals);
+    h.run();
+    assert!(
+        h.query_by_label_contains("Box–Cox: which power").is_some(),
+        "the section is drawn"
+    );
+    // The verdict names the interval and says what it means (Box & Cox 1964, section 3).
+    assert!(
+        h.query_by_label_contains("Best λ").is_some(),
+        "a verdict line"
+    );
+    assert!(
+        h.query_by_label_contains("needs no transform").is_some()
+            || h.query_by_label_contains("suits the data better").is_some()
+            || h.query_by_label_contains("every common power").is_some(),
+        "the verdict says what the interval means"
+    );
+}
+
+/// A 2^3 in two replicates whose response is exp(2.3 + 1.2A + 0.8B − 0.5C) times a small fixed
+/// disturbance: values from about 1 to 120, effects multiplicative, so the log is the transform
+/// that makes them additive (Box & Cox 1964, section 1). Model A + B + C.
+fn multiplicative_project() -> Project {
+    use twofold_study::project::{Cell, RunRecord, RunStatus};
+    let mut p = three_factor_project();
+    let dist = [
+        0.01, -0.02, 0.015, 0.0, -0.01, 0.02, -0.015, 0.005, -0.005, 0.01, 0.0, -0.02, 0.02, -0.01,
+        0.005, 0.01,
+    ];
+    for r in 0..16 {
+        let levels: Vec<i8> = (0..3)
+            .map(|f| if (r % 8) >> f & 1 == 1 { 1 } else { -1 })
+            .collect();
+        let x: Vec<f64> = levels.iter().map(|&l| f64::from(l)).collect();
+        let y = (2.3 + 1.2 * x[0] + 0.8 * x[1] - 0.5 * x[2] + dist[r]).exp();
+        p.runs.push(RunRecord {
+            std_order: r as u32 + 1,
+            run_order: r as u32 + 1,
+            block: 1,
+            centre: false,
+            replicate: r as u32 / 8 + 1,
+            levels,
+            values: vec![Cell::new(&format!("{y:.4}"))],
+            status: RunStatus::Done,
+            note: String::new(),
+            entered_at: None,
+        });
+    }
+    p.responses[0].model.terms = vec!["A".into(), "B".into(), "C".into()];
+    p
+}
+
+#[test]
+fn the_box_cox_button_applies_the_log_and_undo_takes_it_back() {
+    use twofold_study::project::ResponseTransform;
+    let mut h = harness(TwofoldApp::new_for_test(multiplicative_project()));
+    h.state_mut().set_step(Step::Residuals);
+    h.run();
+    let transform =
+        |h: &Harness<'static, TwofoldApp>| h.state().project().responses[0].model.transform;
+    assert_eq!(transform(&h), ResponseTransform::None);
+    assert!(
+        h.query_by_label_contains("leaves out 1, so the natural log")
+            .is_some(),
+        "the verdict points to the log"
+    );
+    h.get_by_label("Use the natural log").click();
+    h.run();
+    assert_eq!(transform(&h), ResponseTransform::Ln);
+    // Applied: the button gives way to a note, and the profile (on the measured values) stays.
+    assert!(h.query_by_label("Use the natural log").is_none());
+    assert!(
+        h.query_by_label_contains("In use now: natural log, as suggested")
+            .is_some()
+    );
+    h.state_mut().undo();
+    h.run();
+    assert_eq!(transform(&h), ResponseTransform::None);
+    assert!(h.query_by_label("Use the natural log").is_some());
+}
+
+#[test]
+fn the_interaction_plots_show_the_predicted_cells_legend_only_with_a_model() {
+    let legend = "Hollow ◇ on a bar";
+    let mut h = harness(TwofoldApp::new_for_test(
+        twofold_study::project::demo_project(),
+    ));
+    h.state_mut().set_step(Step::Plots);
+    h.run();
+    // The demo ships with the model A + B + AB.
+    assert!(h.query_by_label_contains(legend).is_some());
+    let mut p = twofold_study::project::demo_project();
+    p.responses[0].model.terms.clear();
+    let mut h = harness(TwofoldApp::new_for_test(p));
+    h.state_mut().set_step(Step::Plots);
+    h.run();
+    assert!(h.query_by_label_contains("Interactions").is_some());
+    assert!(h.query_by_label_contains(legend).is_none());
+}
