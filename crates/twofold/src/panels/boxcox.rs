@@ -123,43 +123,42 @@ pub fn show(
 ) {
     let v = verdict(bc);
     let now = lambda_of(current);
-    ui.label(RichText::new("Box–Cox: which power of the response fits the model best").strong());
-    ui.label(&v.text);
-    ui.horizontal_wrapped(|ui| match v.target {
-        Some(t) if t != now => {
-            if ui.button(apply_label(t)).clicked() {
-                out.push(Command::Edit(Edit::SetTransform {
-                    response,
-                    transform: transform_for(t),
-                }));
+    ui.vertical(|ui| {
+        ui.set_width(size.x);
+        ui.label("Box–Cox: which power of the response fits the model best");
+        ui.label(RichText::new(&v.text).strong());
+        ui.horizontal_wrapped(|ui| {
+            let in_use = format!("In use now: {} (λ = {}).", power_name(now), fmt_num(now, 2));
+            match v.target {
+                Some(t) if t != now => {
+                    if ui.button(apply_label(t)).clicked() {
+                        out.push(Command::Edit(Edit::SetTransform {
+                            response,
+                            transform: transform_for(t),
+                        }));
+                    }
+                    ui.weak(in_use);
+                }
+                Some(_) => {
+                    ui.weak(format!("In use now: {}, as suggested.", power_name(now)));
+                }
+                None => {
+                    ui.weak(in_use);
+                }
             }
-            ui.weak(format!(
-                "In use now: {} (λ = {}).",
-                power_name(now),
-                fmt_num(now, 2)
-            ));
-        }
-        Some(_) => {
-            ui.weak(format!("In use now: {}, as suggested.", power_name(now)));
-        }
-        None => {
-            ui.weak(format!(
-                "In use now: {} (λ = {}).",
-                power_name(now),
-                fmt_num(now, 2)
-            ));
-        }
+        });
+        profile_plot(ui, pal, bc, now, size);
+        ui.weak(KEY);
     });
-    profile_plot(ui, pal, bc, now, size);
-    ui.weak("The profile is computed on the values as measured, so it does not move when a transform is applied. The shaded band is the 95 % interval: powers whose log-likelihood lies above the dashed cut-off.");
 }
+
+/// The key under the profile: every mark told by its shape or line style, not by colour alone.
+const KEY: &str = "◆ best λ · dotted line: λ in use · shaded band: 95 % interval (log-likelihood above the dashed cut-off). Computed on the values as measured, so it stays put when a transform is applied.";
 
 /// The profile log-likelihood against λ, with the interval shaded, the cut-off dashed, the best λ
 /// and the λ in use marked (the two by different line styles and names, not by colour alone).
 fn profile_plot(ui: &mut Ui, pal: &Palette, bc: &BoxCox, now: f64, size: egui::Vec2) {
-    use egui_plot::{
-        Corner, HLine, Legend, Line, LineStyle, MarkerShape, Plot, PlotPoints, Points, Span, VLine,
-    };
+    use egui_plot::{HLine, Line, LineStyle, MarkerShape, Plot, PlotPoints, Points, Span, VLine};
     let (lo, hi) = twofold_core::boxcox::LAMBDA_RANGE;
     let band = (bc.lower.unwrap_or(lo), bc.upper.unwrap_or(hi));
     // The interesting part is near the top: the curve is drawn from a little below the cut-off
@@ -187,7 +186,6 @@ fn profile_plot(ui: &mut Ui, pal: &Palette, bc: &BoxCox, now: f64, size: egui::V
         .include_y(y_low)
         .include_y(y_high)
         .show_background(false)
-        .legend(Legend::default().position(Corner::LeftBottom))
         .label_formatter(|hover: &egui_plot::HoverPosition<'_>| match hover {
             egui_plot::HoverPosition::NearDataPoint { position, .. }
             | egui_plot::HoverPosition::Elsewhere { position } => Some(format!(
@@ -198,7 +196,8 @@ fn profile_plot(ui: &mut Ui, pal: &Palette, bc: &BoxCox, now: f64, size: egui::V
         })
         .show(ui, |plot| {
             plot.span(
-                Span::new("95 % interval for λ", band.0..=band.1)
+                Span::new("95 % interval", band.0..=band.1)
+                    .label_align(egui::Align2::LEFT_TOP)
                     .fill(accent.gamma_multiply(0.12))
                     .border_color(accent.gamma_multiply(0.5)),
             );

@@ -1,6 +1,7 @@
 //! The fitted model's cells in the interaction plots: at each corner of a pair of factors, the
 //! model's predicted mean (every other factor at its centre) with its 95 % confidence interval,
-//! drawn as a hollow diamond on an error bar beside the filled marker of the observed mean.
+//! drawn as a hollow diamond on an error bar just outside the filled marker of the observed mean
+//! (left of the low level, right of the high level), so the bars never sit on the lines.
 //!
 //! It reads the core's [`InteractionMeans`] directly; nothing here is computed but the layout.
 
@@ -26,9 +27,20 @@ pub type PredictedCorners = [[PredictedCorner; 2]; 2];
 /// The words that tell the two kinds of marker apart, shown once above the interaction plots.
 pub const LEGEND: &str = "Filled ● ■: observed mean.  Hollow ◇ on a bar: the model's predicted mean with its 95 % interval (other factors at their centre).";
 
-/// How far beside the observed marker the prediction is drawn, in coded units of the x axis
-/// (inwards, so the line labels on the right stay clear).
-const OFFSET: f64 = 0.17;
+/// How far outside the observed marker the prediction is drawn, in coded units of the x axis.
+const OFFSET: f64 = 0.24;
+/// The two lines' predictions sit this far either side of [`OFFSET`], so corners at nearly the
+/// same height keep their bars apart.
+const SPREAD: f64 = 0.06;
+/// How far right of the high level (coded +1) the predictions reach: the line labels go beyond.
+pub const RIGHT_REACH: f64 = OFFSET + SPREAD + 0.06;
+
+/// The x position (coded) of the prediction at level `i` of the first factor on the line of level
+/// `j` of the second.
+fn x_of(i: usize, j: usize) -> f64 {
+    let out = OFFSET + if j == 0 { -SPREAD } else { SPREAD };
+    if i == 0 { -1.0 - out } else { 1.0 + out }
+}
 
 /// The model's corners of the pair `(a, b)`, from the core's cells of every pair; `None` when the
 /// pair is not among them or its cells are not the four of a 2×2.
@@ -61,11 +73,8 @@ pub fn extent(corners: &PredictedCorners) -> impl Iterator<Item = f64> + '_ {
 pub fn paint(ui: &Ui, frame: &Frame, corners: &PredictedCorners, colors: [Color32; 2]) {
     let painter = ui.painter().with_clip_rect(frame.rect);
     for (j, row) in corners.iter().enumerate() {
-        // The two lines' predictions sit on either side of the inward offset, so two corners at
-        // nearly the same height keep their bars apart.
-        let shift = if j == 0 { -0.05 } else { 0.05 };
         for (i, c) in row.iter().enumerate() {
-            let x = if i == 0 { -1.0 + OFFSET } else { 1.0 - OFFSET } + shift;
+            let x = x_of(i, j);
             let color = colors[j];
             if let Some((lo, hi)) = c.interval {
                 let (top, bottom) = (frame.to_screen(x, hi), frame.to_screen(x, lo));

@@ -447,8 +447,13 @@ impl InteractionPlot {
                 (1.0, self.a_levels[1].clone()),
             ];
             let spec = AxesSpec {
-                // Room on the right for the line labels.
-                x: (-1.45, 1.8),
+                // Room on the right for the line labels (and on both sides for the model's
+                // predictions, drawn outside the observed means).
+                x: if self.predicted.is_some() {
+                    (-1.55, 2.0)
+                } else {
+                    (-1.45, 1.8)
+                },
                 y,
                 x_label: &self.a,
                 y_label: "",
@@ -481,8 +486,13 @@ impl InteractionPlot {
                     }
                 }
                 if let Some(m) = m1 {
+                    // Beyond the model's predictions when they are drawn right of the line end.
+                    let label_x = 1.0
+                        + self
+                            .predicted
+                            .map_or(0.0, |_| super::model_cells::RIGHT_REACH);
                     ui.painter().text(
-                        frame.to_screen(1.0, m) + vec2(8.0, 0.0),
+                        frame.to_screen(label_x, m) + vec2(8.0, 0.0),
                         Align2::LEFT_CENTER,
                         format!("{letter}{sign}"),
                         FontId::proportional(13.0),

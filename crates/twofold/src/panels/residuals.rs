@@ -97,33 +97,37 @@ impl Pane for ResidualsPane {
             .auto_shrink([false, false])
             .show(ui, |ui| {
                 let w = ((ui.available_width() - 40.0) / 2.0).clamp(300.0, 560.0);
-                tiles(ui, plots.len(), w, |ui, i| {
-                    plots[i].show(ui, &pal, vec2(w, 260.0));
-                });
-                ui.add_space(12.0);
-                ui.separator();
-                match box_cox_of(res) {
-                    Ok(bc) => {
-                        let current = view
-                            .project
-                            .responses
-                            .get(res.response)
-                            .map(|r| r.model.transform)
-                            .unwrap_or_default();
-                        super::boxcox::show(
+                // The Box–Cox profile takes the tile after the three residual plots.
+                let current = view
+                    .project
+                    .responses
+                    .get(res.response)
+                    .map(|r| r.model.transform)
+                    .unwrap_or_default();
+                tiles(ui, plots.len() + 1, w, |ui, i| match plots.get(i) {
+                    Some(p) => p.show(ui, &pal, vec2(w, 260.0)),
+                    None => match box_cox_of(res) {
+                        Ok(bc) => super::boxcox::show(
                             ui,
                             &pal,
                             bc,
                             current,
                             res.response,
-                            vec2(w, 260.0),
+                            vec2(w, 220.0),
                             out,
-                        );
-                    }
-                    Err(why) => {
-                        not_available(ui, &pal, &format!("Box–Cox profile not available: {why}."));
-                    }
-                }
+                        ),
+                        Err(why) => {
+                            ui.vertical(|ui| {
+                                ui.set_width(w);
+                                not_available(
+                                    ui,
+                                    &pal,
+                                    &format!("Box–Cox profile not available: {why}."),
+                                );
+                            });
+                        }
+                    },
+                });
             });
     }
 }
