@@ -161,17 +161,11 @@ fn profile_plot(ui: &mut Ui, pal: &Palette, bc: &BoxCox, now: f64, size: egui::V
     use egui_plot::{HLine, Line, LineStyle, MarkerShape, Plot, PlotPoints, Points, Span, VLine};
     let (lo, hi) = twofold_core::boxcox::LAMBDA_RANGE;
     let band = (bc.lower.unwrap_or(lo), bc.upper.unwrap_or(hi));
-    // The interesting part is near the top: the curve is drawn from a little below the cut-off
-    // up, so the interval can be read rather than squeezed against the maximum.
-    let span = (bc.max_log_likelihood - bc.cutoff).max(1e-9);
-    let y_low = bc.cutoff - 3.0 * span;
-    let y_high = bc.max_log_likelihood + 0.6 * span;
-    let profile: Vec<[f64; 2]> = bc
-        .profile
-        .iter()
-        .filter(|&&(_, ll)| ll >= y_low)
-        .map(|&(l, ll)| [l, ll])
-        .collect();
+    // The whole curve is drawn (a sharp peak is what strong evidence looks like), with room
+    // above the maximum for the band's name.
+    let profile: Vec<[f64; 2]> = bc.profile.iter().map(|&(l, ll)| [l, ll]).collect();
+    let lowest = profile.iter().map(|p| p[1]).fold(bc.cutoff, f64::min);
+    let y_high = bc.max_log_likelihood + 0.15 * (bc.max_log_likelihood - lowest).max(1.0);
     let (ink, accent, in_model, muted) = (pal.ink, pal.accent, pal.in_model, pal.muted);
     let best = [bc.lambda, bc.max_log_likelihood];
     let cutoff = bc.cutoff;
@@ -183,7 +177,7 @@ fn profile_plot(ui: &mut Ui, pal: &Palette, bc: &BoxCox, now: f64, size: egui::V
         .include_x(lo)
         .include_x(hi)
         .include_x(now)
-        .include_y(y_low)
+        .include_y(lowest)
         .include_y(y_high)
         .show_background(false)
         .label_formatter(|hover: &egui_plot::HoverPosition<'_>| match hover {
