@@ -562,6 +562,24 @@ mod tests {
     }
 
     #[test]
+    fn the_box_cox_profile_and_the_model_cells_are_carried_only_with_a_model() {
+        let p = crate::project::demo_project();
+        let model = p.responses[0].model.clone();
+        let a = Analysis::compute(&p, 3, 0, &model);
+        let r = ResponseResults::from_analysis(&p, &a);
+        let m = a.model.as_ref().unwrap();
+        assert_eq!(r.box_cox.as_ref().ok(), m.box_cox.as_ref().ok());
+        assert_eq!(r.model_cells.as_ref().ok(), m.interactions.as_ref().ok());
+        // Four factors: six pairs of four cells each.
+        assert_eq!(r.model_cells.as_ref().unwrap().len(), 6);
+        let mut q = p.clone();
+        q.responses[0].model.terms.clear();
+        let r = ResponseResults::compute(&q, 0);
+        assert!(r.box_cox.unwrap_err().contains("no terms chosen"));
+        assert!(r.model_cells.is_err());
+    }
+
+    #[test]
     fn without_values_every_step_says_why() {
         let r = ResponseResults::compute(&two_by_two(&["", "", "", ""]), 0);
         assert_eq!(r.effects.as_ref().unwrap_err(), "no run has a value yet");

@@ -504,12 +504,12 @@ fn multiplicative_project() -> Project {
         0.01, -0.02, 0.015, 0.0, -0.01, 0.02, -0.015, 0.005, -0.005, 0.01, 0.0, -0.02, 0.02, -0.01,
         0.005, 0.01,
     ];
-    for r in 0..16 {
+    for (r, d) in dist.iter().enumerate() {
         let levels: Vec<i8> = (0..3)
             .map(|f| if (r % 8) >> f & 1 == 1 { 1 } else { -1 })
             .collect();
         let x: Vec<f64> = levels.iter().map(|&l| f64::from(l)).collect();
-        let y = (2.3 + 1.2 * x[0] + 0.8 * x[1] - 0.5 * x[2] + dist[r]).exp();
+        let y = (2.3 + 1.2 * x[0] + 0.8 * x[1] - 0.5 * x[2] + d).exp();
         p.runs.push(RunRecord {
             std_order: r as u32 + 1,
             run_order: r as u32 + 1,
@@ -517,7 +517,7 @@ fn multiplicative_project() -> Project {
             centre: false,
             replicate: r as u32 / 8 + 1,
             levels,
-            values: vec![Cell::new(&format!("{y:.4}"))],
+            values: vec![Cell::new(format!("{y:.4}"))],
             status: RunStatus::Done,
             note: String::new(),
             entered_at: None,

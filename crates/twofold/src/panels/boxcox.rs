@@ -26,27 +26,33 @@ pub fn lambda_of(t: ResponseTransform) -> f64 {
     }
 }
 
+/// The common powers: λ, the name in words, the project transform that applies it.
+const COMMON: [(f64, &str, ResponseTransform); 5] = [
+    (1.0, "no transform", ResponseTransform::None),
+    (0.5, "square root", ResponseTransform::Sqrt),
+    (0.0, "natural log", ResponseTransform::Ln),
+    (
+        -0.5,
+        "inverse square root",
+        ResponseTransform::Power { lambda: -0.5 },
+    ),
+    (-1.0, "inverse (1 / y)", ResponseTransform::Reciprocal),
+];
+
 /// The project transform that applies the power `lambda` (the common powers by their own names).
 pub fn transform_for(lambda: f64) -> ResponseTransform {
-    match lambda {
-        l if l == 1.0 => ResponseTransform::None,
-        l if l == 0.5 => ResponseTransform::Sqrt,
-        l if l == 0.0 => ResponseTransform::Ln,
-        l if l == -1.0 => ResponseTransform::Reciprocal,
-        lambda => ResponseTransform::Power { lambda },
-    }
+    COMMON
+        .iter()
+        .find(|c| c.0 == lambda)
+        .map_or(ResponseTransform::Power { lambda }, |c| c.2)
 }
 
 /// The name of the power `lambda` in words, as the transform choice in the model pane reads.
 pub fn power_name(lambda: f64) -> String {
-    match lambda {
-        l if l == 1.0 => "no transform".into(),
-        l if l == 0.5 => "square root".into(),
-        l if l == 0.0 => "natural log".into(),
-        l if l == -0.5 => "inverse square root".into(),
-        l if l == -1.0 => "inverse (1 / y)".into(),
-        l => format!("power {}", fmt_num(l, 3)),
-    }
+    COMMON.iter().find(|c| c.0 == lambda).map_or_else(
+        || format!("power {}", fmt_num(lambda, 3)),
+        |c| c.1.to_string(),
+    )
 }
 
 /// What the profile says about the response, in one sentence, and the power it points to (when
