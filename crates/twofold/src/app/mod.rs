@@ -1,9 +1,10 @@
 //! The desktop window: a thin shell around the project history, the panes and the file dialogs.
 //!
-//! Each frame: finished background work is collected, then the shortcuts, menus, panes and the
-//! question shown are drawn from the state as it is and push [`AppAction`]s (the panes' changes to
-//! the project as [`Command`]s); after drawing, [`TwofoldApp::act`] applies them in one place, the
-//! project's changes through [`TwofoldApp::apply`] (undoable). Derived data (validation problems,
+//! Each frame: finished background work is collected, then the shortcuts, menus and panes are
+//! drawn from the state as it is and push [`AppAction`]s (the panes' changes to the project as
+//! [`Command`]s); after drawing, [`TwofoldApp::act`] applies them in one place, the project's
+//! changes through [`TwofoldApp::apply`] (undoable). The question shown, if any, is drawn last
+//! and its answer applied the same way. Derived data (validation problems,
 //! analysis) is recomputed only when the project's revision changes.
 //!
 //! The parts: this file is the shell (state, frame, apply); `menus` draws the bars and reads the
@@ -517,6 +518,11 @@ impl TwofoldApp {
             panes.get(*step).ui(ui, &view, &mut cmds);
         });
         actions.extend(cmds.into_iter().map(AppAction::Command));
+        for action in actions.drain(..) {
+            self.act(action);
+        }
+        // The question is drawn after the frame's actions, so one they raise shows at once; its
+        // answer is applied after it is drawn, like every other action.
         self.modals(&ctx, &pal, &mut actions);
         for action in actions {
             self.act(action);
