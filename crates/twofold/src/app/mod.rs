@@ -4,8 +4,8 @@
 //! drawn from the state as it is and push [`AppAction`]s (the panes' changes to the project as
 //! [`Command`]s); after drawing, [`TwofoldApp::act`] applies them in one place, the project's
 //! changes through [`TwofoldApp::apply`] (undoable). The question shown, if any, is drawn last
-//! and its answer applied the same way. Derived data (validation problems,
-//! analysis) is recomputed only when the project's revision changes.
+//! and its answer applied the same way. Derived data (validation problems, analysis) is
+//! recomputed only when the project's revision changes.
 //!
 //! The parts: this file is the shell (state, frame, apply); `menus` draws the bars and reads the
 //! shortcuts; `modals` the questions and their answers; `dialogs` the file dialogs and what their
@@ -602,10 +602,7 @@ impl eframe::App for TwofoldApp {
         if self.quit_confirmed {
             ctx.send_viewport_cmd(egui::ViewportCommand::Close);
         }
-        if self.pending_dialog.is_some() {
-            // Keep polling the dialog thread while it is open.
-            ctx.request_repaint_after(std::time::Duration::from_millis(100));
-        }
+        // An open file dialog needs no polling: its job wakes the window when it answers.
     }
 }
 
@@ -667,6 +664,40 @@ mod tests {
             "2024-02-29 12:34 UTC"
         );
         assert_eq!(readable_time("yesterday"), "yesterday");
+    }
+
+    #[test]
+    fn answers_apply_only_to_the_question_they_answer() {
+        // Common practice, no source: an answer meant for another question changes nothing.
+        let mut app = TwofoldApp::new_for_test(Project::new("Saved"));
+        let mut copy = Project::new("Recovered");
+        copy.description = "typed before the crash".into();
+        app.modal = Some(Modal::Restore(Box::new(RecoveryOffer {
+            path: PathBuf::from("copy.ron"),
+            project: copy.clone(),
+            written_at: "2025-01-01T08:59:00Z".into(),
+            modified: None,
+        })));
+        app.act(AppAction::Answer(ModalAnswer::DiscardChanges));
+        assert!(matches!(app.modal(), Some(Modal::Restore(_))));
+        assert_eq!(app.project().name, "Saved");
+        // Restoring takes the copy out of the closed question: one undoable step.
+        app.act(AppAction::Answer(ModalAnswer::RestoreCopy));
+        assert!(app.modal().is_none());
+        assert_eq!(app.project(), &copy);
+        app.undo();
+        assert_eq!(app.project().name, "Saved");
+    }
+
+    #[test]
+    fn menu_actions_change_nothing_until_applied() {
+        let mut app = TwofoldApp::new_for_test(Project::new("Paper"));
+        app.act(AppAction::SetPaper(Paper::Letter));
+        assert_eq!(app.paper, Paper::Letter);
+        app.act(AppAction::ShowSafety);
+        assert_eq!(app.modal(), Some(&Modal::Safety));
+        app.act(AppAction::Answer(ModalAnswer::Close));
+        assert!(app.modal().is_none());
     }
 
     #[test]
