@@ -108,8 +108,20 @@ impl ExportJob {
         paper: Paper,
         notify: impl Fn() + Send + 'static,
     ) -> ExportJob {
+        ExportJob::summary_of(move || input, path, paper, notify)
+    }
+
+    /// Starts exporting the summary page whose input `make_input` gathers on the job's thread
+    /// (the window computes the analysis there, so it never waits for it).
+    pub fn summary_of(
+        make_input: impl FnOnce() -> SummaryInput + Send + 'static,
+        path: PathBuf,
+        paper: Paper,
+        notify: impl Fn() + Send + 'static,
+    ) -> ExportJob {
         let work: Work = Box::new(move |progress, cancelled| {
             progress(Stage::LayingOut);
+            let input = make_input();
             let page = super::summary_svg(&input, paper);
             super::write_pages(
                 &[page],

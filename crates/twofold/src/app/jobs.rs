@@ -143,23 +143,12 @@ impl TwofoldApp {
         let cache = Arc::clone(&self.analysis.cache);
         let options = self.build_options();
         let paper = self.paper;
-        let target = path.clone();
-        let work: twofold_study::export::job::Work = Box::new(move |progress, cancelled| {
-            progress(twofold_study::export::Stage::LayingOut);
-            // A panic here is caught by the job and reported as the export's error in words.
+        // A panic in the analysis is caught by the job and reported as the export's error.
+        let input = move || {
             let results = cached_results(&cache, &project, revision, response);
-            let input = twofold_study::export::summary_input(&project, &results, &options);
-            let page = twofold_study::export::summary_svg(&input, paper);
-            twofold_study::export::write_pages(
-                &[page],
-                paper,
-                &target,
-                &twofold_study::export::summary_title(&input),
-                progress,
-                cancelled,
-            )
-        });
-        let job = ExportJob::spawn(work, self.repaint_hook());
+            twofold_study::export::summary_input(&project, &results, &options)
+        };
+        let job = ExportJob::summary_of(input, path.clone(), paper, self.repaint_hook());
         self.export = Some((format!("summary to {}", path.display()), job));
     }
 
