@@ -73,6 +73,7 @@ pub enum AfterUnsaved {
 
 /// What the engineer asked for in a frame, pushed while drawing and applied by
 /// [`TwofoldApp::act`] afterwards, in the order asked.
+#[must_use = "an action does nothing until the window applies it"]
 #[derive(Debug, Clone, PartialEq)]
 pub enum AppAction {
     /// A change from a pane, the step rail or the project name field.

@@ -13,6 +13,7 @@ use crate::theme::Palette;
 use twofold_study::project::Edit;
 
 /// The engineer's answer to the question or message shown.
+#[must_use = "an answer does nothing until the window applies it"]
 #[derive(Debug, Clone, PartialEq)]
 pub enum ModalAnswer {
     /// OK, Cancel, Close, or a click beside a message: the question closes, nothing else.
