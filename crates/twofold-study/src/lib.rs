@@ -11,11 +11,15 @@
 //!   their digest in words and counts.
 //! - `export`: the one-page summary and the printable run sheet (SVG, PNG, PDF).
 //! - `interchange`: CSV, clipboard text and the spreadsheet formula guard.
+//! - `files`: the one atomic file writer.
+//! - `jobs`: work on a background thread with progress, cancel and panics caught.
 //! - `numbers`: one rule for writing numbers and choosing axis ticks.
 
 pub mod analysis;
 pub mod export;
+pub mod files;
 pub mod interchange;
+pub mod jobs;
 pub mod numbers;
 pub mod project;
 pub mod results;

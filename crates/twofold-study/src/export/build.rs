@@ -19,7 +19,8 @@ use super::input::{
     HalfNormalPoint, InteractionPanel, LenthFacts, LevelValue, OfatFacts, ResponseFacts,
     SummaryInput,
 };
-use super::{ExportError, ExportReport, Paper, format};
+use super::{ExportError, ExportReport, Paper};
+use crate::numbers;
 use crate::project::{BlockChoice, Factor, FactorKind, Project, ResponseTransform, Severity};
 use crate::results::ResponseResults;
 
@@ -65,7 +66,7 @@ pub fn transform_name(t: ResponseTransform) -> String {
         ResponseTransform::Log10 => "log10".to_string(),
         ResponseTransform::Sqrt => "square root".to_string(),
         ResponseTransform::Reciprocal => "1 / y".to_string(),
-        ResponseTransform::Power { lambda } => format!("power {}", format::sig_trim(lambda, 4)),
+        ResponseTransform::Power { lambda } => format!("power {}", numbers::fmt_num(lambda, 4)),
     }
 }
 
@@ -250,15 +251,15 @@ pub fn summary_input(
                             warnings.push(format!(
                                 "{} at {} is outside its safe range {} to {}.",
                                 f.name,
-                                format::sig_trim(v, 5),
-                                format::sig_trim(lo, 5),
-                                format::sig_trim(hi, 5)
+                                numbers::fmt_num(v, 5),
+                                numbers::fmt_num(lo, 5),
+                                numbers::fmt_num(hi, 5)
                             ));
                         }
                         if f.unit.is_empty() {
-                            format::sig_trim(v, 5)
+                            numbers::fmt_num(v, 5)
                         } else {
-                            format!("{} {}", format::sig_trim(v, 5), f.unit)
+                            format!("{} {}", numbers::fmt_num(v, 5), f.unit)
                         }
                     }
                     (Some(c), FactorKind::Categorical { .. }) => setting_text(f, if *c < 0.0 { -1 } else { 1 }),
@@ -279,14 +280,14 @@ pub fn summary_input(
         let goal = match options.goal {
             Goal::Maximise => format!("maximise {name}"),
             Goal::Minimise => format!("minimise {name}"),
-            Goal::Target(t) => format!("{name} as close as possible to {}", format::sig_trim(t, 6)),
+            Goal::Target(t) => format!("{name} as close as possible to {}", numbers::fmt_num(t, 6)),
         };
         Some(BestSettings {
             goal,
             settings,
             predicted: o.value,
             interval: back.prediction_interval.map(|(a, b)| {
-                (a, b, format!("{} % prediction interval for one run", format::sig_trim(100.0 * o.prediction.confidence, 3)))
+                (a, b, format!("{} % prediction interval for one run", numbers::fmt_num(100.0 * o.prediction.confidence, 3)))
             }),
         })
     });

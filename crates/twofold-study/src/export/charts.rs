@@ -3,65 +3,11 @@
 //! Both draw only the numbers they are handed. Two series are told apart by marker shape and
 //! line style as well as colour, so a black-and-white copy still reads.
 
-use super::format;
 use super::input::{HalfNormalPoint, InteractionPanel, LenthFacts};
 use super::page::{Rect, sizes};
+pub use crate::numbers::Ticks;
+
 use super::svg::{ACCENT, ALERT, Anchor, INK, MUTED, QUIET, RULE, Svg, TextStyle};
-
-/// Evenly spaced "round" tick values covering `lo..=hi`.
-#[derive(Debug, Clone, PartialEq)]
-pub struct Ticks {
-    /// Axis start (a multiple of `step` at or below the data).
-    pub lo: f64,
-    /// Axis end (a multiple of `step` at or above the data).
-    pub hi: f64,
-    /// Distance between ticks: 1, 2 or 5 times a power of ten.
-    pub step: f64,
-    /// Decimals that print every tick exactly.
-    pub decimals: usize,
-}
-
-impl Ticks {
-    /// About `target` intervals over the data range `lo..=hi` (any order; a zero-width range is
-    /// widened so the axis still has a scale).
-    pub fn new(lo: f64, hi: f64, target: usize) -> Ticks {
-        let (mut lo, mut hi) = if lo <= hi { (lo, hi) } else { (hi, lo) };
-        if !lo.is_finite() || !hi.is_finite() {
-            lo = 0.0;
-            hi = 1.0;
-        }
-        if hi - lo < 1e-12 * lo.abs().max(hi.abs()).max(1e-300) || hi == lo {
-            let pad = if lo == 0.0 { 1.0 } else { 0.1 * lo.abs() };
-            lo -= pad;
-            hi += pad;
-        }
-        let raw = (hi - lo) / target.max(1) as f64;
-        let power = 10f64.powf(raw.log10().floor());
-        let step = [1.0, 2.0, 5.0, 10.0]
-            .iter()
-            .map(|m| m * power)
-            .find(|s| *s >= raw * (1.0 - 1e-9))
-            .unwrap_or(10.0 * power);
-        let decimals = (-step.log10().floor()).max(0.0) as usize;
-        Ticks {
-            lo: (lo / step + 1e-9).floor() * step,
-            hi: (hi / step - 1e-9).ceil() * step,
-            step,
-            decimals,
-        }
-    }
-
-    /// The tick values from `lo` to `hi`.
-    pub fn values(&self) -> Vec<f64> {
-        let n = ((self.hi - self.lo) / self.step).round().max(0.0) as usize;
-        (0..=n).map(|i| self.lo + i as f64 * self.step).collect()
-    }
-
-    /// A tick value as printed.
-    pub fn label(&self, v: f64) -> String {
-        format::fixed(v, self.decimals)
-    }
-}
 
 /// A linear map from data to page coordinates.
 #[derive(Debug, Clone, Copy)]
@@ -452,24 +398,6 @@ pub fn empty_box(svg: &mut Svg, area: Rect, note: &str) {
 #[cfg(test)]
 mod tests {
     use super::*;
-
-    #[test]
-    fn ticks_are_round_and_cover_the_data() {
-        let t = Ticks::new(0.0, 13.7, 5);
-        assert_eq!(t.step, 5.0);
-        assert_eq!(t.values(), vec![0.0, 5.0, 10.0, 15.0]);
-        let t = Ticks::new(41.3, 47.9, 4);
-        assert_eq!(t.step, 2.0);
-        assert!(t.lo <= 41.3 && t.hi >= 47.9);
-        assert_eq!(t.label(t.lo), "40");
-        let t = Ticks::new(0.012, 0.047, 4);
-        assert_eq!(t.step, 0.01);
-        assert_eq!(t.label(0.03), "0.03");
-        let flat = Ticks::new(5.0, 5.0, 4);
-        assert!(flat.lo < 5.0 && flat.hi > 5.0);
-        let zero = Ticks::new(0.0, 0.0, 4);
-        assert!(zero.hi > zero.lo);
-    }
 
     #[test]
     fn half_normal_labels_model_terms() {

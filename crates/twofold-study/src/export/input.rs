@@ -75,7 +75,7 @@ impl LevelValue {
     /// The level as printed (numbers in their shortest exact form).
     pub fn text(&self) -> String {
         match self {
-            LevelValue::Number(x) => super::format::level(*x),
+            LevelValue::Number(x) => crate::numbers::level(*x),
             LevelValue::Label(s) => s.clone(),
         }
     }

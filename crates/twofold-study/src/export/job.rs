@@ -6,10 +6,8 @@
 //! in the window while the export runs without affecting the file being written.
 
 use std::path::PathBuf;
-use std::sync::Arc;
-use std::sync::atomic::{AtomicBool, AtomicU8, Ordering};
-use std::sync::mpsc::{self, Receiver, TryRecvError};
-use std::thread::JoinHandle;
+
+use crate::jobs::{Control, Job, JobError};
 
 use super::{ExportError, ExportReport, Paper, SummaryInput};
 
@@ -78,62 +76,29 @@ impl Stage {
 pub type Work =
     Box<dyn FnOnce(&dyn Fn(Stage), &dyn Fn() -> bool) -> Result<ExportReport, ExportError> + Send>;
 
-/// An export running on its own thread.
+/// An export running on its own thread (a [`Job`] whose steps are [`Stage`]s).
 #[derive(Debug)]
 pub struct ExportJob {
-    stage: Arc<AtomicU8>,
-    cancel: Arc<AtomicBool>,
-    result: Receiver<Result<ExportReport, ExportError>>,
-    handle: Option<JoinHandle<()>>,
-    done: bool,
+    job: Job<Result<ExportReport, ExportError>>,
 }
 
 impl ExportJob {
     /// Starts `work` on a new thread. `notify` is called after every stage change (the window
     /// passes a closure that requests a repaint, so progress shows without polling in a loop).
+    /// A panic in the work becomes [`ExportError::Render`] with the reason in words.
     pub fn spawn(work: Work, notify: impl Fn() + Send + 'static) -> ExportJob {
-        let stage = Arc::new(AtomicU8::new(Stage::Queued.to_u8()));
-        let cancel = Arc::new(AtomicBool::new(false));
-        let (tx, rx) = mpsc::channel();
-        let thread_stage = Arc::clone(&stage);
-        let thread_cancel = Arc::clone(&cancel);
-        let handle = std::thread::Builder::new()
-            .name("export".to_string())
-            .spawn(move || {
-                let report = |s: Stage| {
-                    thread_stage.store(s.to_u8(), Ordering::Release);
-                    notify();
-                };
-                let cancelled = || thread_cancel.load(Ordering::Acquire);
+        let job = Job::start(
+            "export",
+            move |control: &Control| {
+                let report = |s: Stage| control.report(u32::from(s.to_u8()));
+                let cancelled = || control.cancelled();
                 let result = work(&report, &cancelled);
-                thread_stage.store(Stage::Finished.to_u8(), Ordering::Release);
-                // The window may have dropped the job; then nobody wants the result.
-                let _ = tx.send(result);
-                notify();
-            });
-        match handle {
-            Ok(h) => ExportJob {
-                stage,
-                cancel,
-                result: rx,
-                handle: Some(h),
-                done: false,
+                control.report(u32::from(Stage::Finished.to_u8()));
+                result
             },
-            Err(e) => {
-                // No thread could be started: report that as the job's result.
-                let (tx, rx) = mpsc::channel();
-                let _ = tx.send(Err(ExportError::Render(format!(
-                    "could not start the export thread: {e}"
-                ))));
-                ExportJob {
-                    stage,
-                    cancel,
-                    result: rx,
-                    handle: None,
-                    done: false,
-                }
-            }
-        }
+            notify,
+        );
+        ExportJob { job }
     }
 
     /// Starts exporting the summary page of `input` to `path`.
@@ -143,8 +108,20 @@ impl ExportJob {
         paper: Paper,
         notify: impl Fn() + Send + 'static,
     ) -> ExportJob {
+        ExportJob::summary_of(move || input, path, paper, notify)
+    }
+
+    /// Starts exporting the summary page whose input `make_input` gathers on the job's thread
+    /// (the window computes the analysis there, so it never waits for it).
+    pub fn summary_of(
+        make_input: impl FnOnce() -> SummaryInput + Send + 'static,
+        path: PathBuf,
+        paper: Paper,
+        notify: impl Fn() + Send + 'static,
+    ) -> ExportJob {
         let work: Work = Box::new(move |progress, cancelled| {
             progress(Stage::LayingOut);
+            let input = make_input();
             let page = super::summary_svg(&input, paper);
             super::write_pages(
                 &[page],
@@ -182,7 +159,7 @@ impl ExportJob {
 
     /// The current stage.
     pub fn stage(&self) -> Stage {
-        Stage::from_u8(self.stage.load(Ordering::Acquire))
+        Stage::from_u8(u8::try_from(self.job.step()).unwrap_or(u8::MAX))
     }
 
     /// Progress from 0 to 1 for a bar.
@@ -192,49 +169,33 @@ impl ExportJob {
 
     /// Asks the job to stop; it stops before writing if it has not started writing yet.
     pub fn cancel(&self) {
-        self.cancel.store(true, Ordering::Release);
+        self.job.cancel();
     }
 
     /// The result once the job has finished (returned once; later calls give `None`).
     pub fn poll(&mut self) -> Option<Result<ExportReport, ExportError>> {
-        if self.done {
-            return None;
-        }
-        match self.result.try_recv() {
-            Ok(r) => {
-                self.done = true;
-                if let Some(h) = self.handle.take() {
-                    let _ = h.join();
-                }
-                Some(r)
-            }
-            Err(TryRecvError::Empty) => None,
-            Err(TryRecvError::Disconnected) => {
-                self.done = true;
-                Some(Err(ExportError::Render(
-                    "the export thread stopped unexpectedly".to_string(),
-                )))
-            }
-        }
+        self.job.poll().map(flatten)
     }
 
     /// Waits for the result (for the command line and tests; the window uses [`ExportJob::poll`]).
-    pub fn wait(mut self) -> Result<ExportReport, ExportError> {
-        if let Some(h) = self.handle.take() {
-            let _ = h.join();
-        }
-        self.result.recv().unwrap_or_else(|_| {
-            Err(ExportError::Render(
-                "the export thread stopped unexpectedly".to_string(),
-            ))
-        })
+    pub fn wait(self) -> Result<ExportReport, ExportError> {
+        flatten(self.job.wait())
     }
+}
+
+/// A job failure (a panic, no thread) reported as an export error in words.
+fn flatten(
+    r: Result<Result<ExportReport, ExportError>, JobError>,
+) -> Result<ExportReport, ExportError> {
+    r.unwrap_or_else(|e| Err(ExportError::Render(e.to_string())))
 }
 
 #[cfg(test)]
 mod tests {
     use super::*;
-    use std::sync::atomic::AtomicUsize;
+    use std::sync::Arc;
+    use std::sync::atomic::{AtomicUsize, Ordering};
+    use std::sync::mpsc;
 
     #[test]
     fn job_reports_stages_and_delivers_once() {
@@ -283,5 +244,14 @@ mod tests {
         let err = job.wait().unwrap_err();
         assert!(matches!(err, ExportError::Cancelled));
         assert!(!path.exists());
+    }
+
+    #[test]
+    fn a_panic_in_an_export_is_an_error_in_words() {
+        let work: Work = Box::new(|_progress, _cancelled| panic!("no glyph for the unit"));
+        let err = ExportJob::spawn(work, || {}).wait().unwrap_err();
+        let text = err.to_string();
+        assert!(text.contains("internal error"), "{text}");
+        assert!(text.contains("no glyph for the unit"), "{text}");
     }
 }

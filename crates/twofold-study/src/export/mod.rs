@@ -2,7 +2,7 @@
 //!
 //! Every page is first laid out as SVG by our own writer ([`svg`], [`page`], [`charts`]); PNG
 //! (300 dpi) and PDF (vector, font embedded) are rendered from that SVG ([`render`]). The same
-//! input always gives byte-identical SVG: numbers go through [`format`], nothing reads the clock,
+//! input always gives byte-identical SVG: numbers go through [`crate::numbers`], nothing reads the clock,
 //! and the date printed is the one the caller passes in.
 //!
 //! The summary shows what the app shows: [`build`] fills a [`SummaryInput`] from the project and
@@ -14,7 +14,6 @@ use std::path::{Path, PathBuf};
 pub mod build;
 pub mod charts;
 pub mod fonts;
-pub mod format;
 pub mod input;
 pub mod job;
 pub mod page;
@@ -136,7 +135,10 @@ pub fn write_pages(
     let paths = page_paths(path, files.len());
     let mut bytes = 0;
     for (p, data) in paths.iter().zip(&files) {
-        render::write_atomic(p, data)?;
+        crate::files::write_atomic(p, data).map_err(|source| ExportError::Write {
+            path: p.display().to_string(),
+            source,
+        })?;
         bytes += data.len();
     }
     progress(Stage::Finished);

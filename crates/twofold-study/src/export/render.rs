@@ -5,9 +5,7 @@
 //! subset of the font embedded). Neither output depends on fonts installed on the machine.
 
 use std::collections::HashMap;
-use std::fs::{self, File, OpenOptions};
-use std::io::Write;
-use std::path::{Path, PathBuf};
+use std::path::Path;
 
 use pdf_writer::{Content, Finish, Name, Pdf, Rect, Ref, TextStr};
 
@@ -211,61 +209,6 @@ fn crc32(data: &[u8]) -> u32 {
     !crc
 }
 
-/// Writes `bytes` to `path` so that the file is either the old one or the complete new one, never
-/// a torn mixture: a temporary file in the same folder is written, flushed to disk and renamed
-/// over the target.
-pub fn write_atomic(path: &Path, bytes: &[u8]) -> Result<(), ExportError> {
-    let io_err = |source: std::io::Error| ExportError::Write {
-        path: path.display().to_string(),
-        source,
-    };
-    let dir = match path.parent() {
-        Some(d) if !d.as_os_str().is_empty() => d.to_path_buf(),
-        _ => PathBuf::from("."),
-    };
-    let name = path
-        .file_name()
-        .map(|n| n.to_string_lossy().into_owned())
-        .ok_or_else(|| ExportError::Write {
-            path: path.display().to_string(),
-            source: std::io::Error::new(std::io::ErrorKind::InvalidInput, "not a file name"),
-        })?;
-    let (tmp_path, mut file) = create_temp(&dir, &name).map_err(io_err)?;
-    let result = (|| {
-        file.write_all(bytes)?;
-        file.sync_all()?;
-        drop(file);
-        fs::rename(&tmp_path, path)?;
-        // Make the rename itself durable; not every platform can open a folder, which is fine.
-        if let Ok(d) = File::open(&dir) {
-            let _ = d.sync_all();
-        }
-        Ok(())
-    })();
-    if result.is_err() {
-        let _ = fs::remove_file(&tmp_path);
-    }
-    result.map_err(io_err)
-}
-
-fn create_temp(dir: &Path, name: &str) -> std::io::Result<(PathBuf, File)> {
-    let pid = std::process::id();
-    let mut last = None;
-    for n in 0..100u32 {
-        let candidate = dir.join(format!(".{name}.{pid}.{n}.tmp"));
-        match OpenOptions::new()
-            .write(true)
-            .create_new(true)
-            .open(&candidate)
-        {
-            Ok(f) => return Ok((candidate, f)),
-            Err(e) if e.kind() == std::io::ErrorKind::AlreadyExists => last = Some(e),
-            Err(e) => return Err(e),
-        }
-    }
-    Err(last.unwrap_or_else(|| std::io::Error::other("no free temporary file name")))
-}
-
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -331,27 +274,5 @@ mod tests {
         );
         assert!(Format::from_path(Path::new("x.jpeg")).is_err());
         assert!(Format::from_path(Path::new("noext")).is_err());
-    }
-
-    #[test]
-    fn atomic_write_replaces_and_leaves_no_temporary() {
-        let dir = tempfile::tempdir().unwrap();
-        let path = dir.path().join("out.svg");
-        write_atomic(&path, b"first").unwrap();
-        write_atomic(&path, b"second").unwrap();
-        assert_eq!(fs::read(&path).unwrap(), b"second");
-        let names: Vec<_> = fs::read_dir(dir.path())
-            .unwrap()
-            .map(|e| e.unwrap().file_name())
-            .collect();
-        assert_eq!(names.len(), 1, "{names:?}");
-    }
-
-    #[test]
-    fn atomic_write_into_a_missing_folder_fails_cleanly() {
-        let dir = tempfile::tempdir().unwrap();
-        let path = dir.path().join("missing").join("out.svg");
-        let err = write_atomic(&path, b"x").unwrap_err();
-        assert!(err.to_string().contains("out.svg"), "{err}");
     }
 }

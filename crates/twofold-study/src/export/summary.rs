@@ -7,10 +7,10 @@
 //! drawing them once into a scratch document, so the columns get exactly the room left over.
 
 use super::charts::{self, Ticks};
-use super::format;
 use super::input::{EffectRow, LenthFacts, SummaryInput};
 use super::page::{Align, Cell, Column, Flow, Paper, Rect, row_height, sizes};
 use super::svg::{ACCENT, ALERT, Anchor, INK, MUTED, QUIET, RULE, Svg, TextStyle};
+use crate::numbers;
 
 /// The cautions printed on every summary page.
 pub const CAUTIONS: [&str; 4] = [
@@ -350,11 +350,11 @@ fn effects(svg: &mut Svg, flow: &mut Flow, input: &SummaryInput) {
         Some(l) => {
             let text = format!(
                 "Lenth's method: PSE = {}, ME = {}, SME = {} (α = {}, t with {} df). Bars beyond the dashed ME line are likely active; beyond SME, active even allowing for testing many effects. Bold blue terms are in the chosen model.",
-                format::sig(l.pse, 4),
-                format::sig(l.me, 4),
-                format::sig(l.sme, 4),
-                format::level(l.alpha),
-                format::sig_trim(l.df, 3)
+                numbers::fmt_sig(l.pse, 4),
+                numbers::fmt_sig(l.me, 4),
+                numbers::fmt_sig(l.sme, 4),
+                numbers::level(l.alpha),
+                numbers::fmt_num(l.df, 3)
             );
             flow.paragraph(svg, &text, small, 3);
         }
@@ -409,7 +409,7 @@ fn effect_table(svg: &mut Svg, area: Rect, rows: &[EffectRow], lenth: Option<&Le
         .map(|r| r.effect.abs())
         .filter(|v| v.is_finite())
         .fold(0.0, f64::max);
-    let decimals = format::column_decimals(biggest, 4);
+    let decimals = numbers::column_decimals(biggest, 4);
     let scale = |v: f64| {
         if max > 0.0 {
             bar_x0 + (bar_x1 - bar_x0) * (v / max).clamp(0.0, 1.0)
@@ -433,7 +433,7 @@ fn effect_table(svg: &mut Svg, area: Rect, rows: &[EffectRow], lenth: Option<&Le
         svg.text(
             area.x + term_w + effect_w - pad,
             baseline(top),
-            &format::fixed(row.effect, decimals),
+            &numbers::fixed(row.effect, decimals),
             TextStyle::new(size).anchor(Anchor::End),
         );
         if row.effect.is_finite() {
@@ -511,10 +511,10 @@ fn anova(svg: &mut Svg, flow: &mut Flow, input: &SummaryInput) {
             let mut cells = vec![
                 Cell::plain(r.source.clone()),
                 Cell::plain(r.df.to_string()),
-                Cell::plain(format::sig(r.ss, 4)),
-                Cell::plain(opt(r.ms, |v| format::sig(v, 4))),
-                Cell::plain(opt(r.f, |v| format::sig(v, 3))),
-                Cell::plain(opt(r.p, format::p_value)),
+                Cell::plain(numbers::fmt_sig(r.ss, 4)),
+                Cell::plain(opt(r.ms, |v| numbers::fmt_sig(v, 4))),
+                Cell::plain(opt(r.f, |v| numbers::fmt_sig(v, 3))),
+                Cell::plain(opt(r.p, numbers::p_value)),
             ];
             if r.emphasis {
                 for c in &mut cells {
@@ -538,16 +538,16 @@ fn anova(svg: &mut Svg, flow: &mut Flow, input: &SummaryInput) {
     }
     let mut fit = Vec::new();
     if let Some(v) = table.r_squared {
-        fit.push(format!("R² = {}", format::percent(v)));
+        fit.push(format!("R² = {}", numbers::percent(v)));
     }
     if let Some(v) = table.adj_r_squared {
-        fit.push(format!("adjusted R² = {}", format::percent(v)));
+        fit.push(format!("adjusted R² = {}", numbers::percent(v)));
     }
     if let Some(v) = table.pred_r_squared {
-        fit.push(format!("predicted R² = {}", format::percent(v)));
+        fit.push(format!("predicted R² = {}", numbers::percent(v)));
     }
     if let Some(v) = table.std_dev {
-        fit.push(format!("s = {}", format::sig(v, 4)));
+        fit.push(format!("s = {}", numbers::fmt_sig(v, 4)));
     }
     if !fit.is_empty() {
         flow.paragraph(svg, &fit.join(",  "), TextStyle::new(sizes::BODY), 2);
@@ -680,13 +680,13 @@ fn tail(svg: &mut Svg, flow: &mut Flow, input: &SummaryInput) {
                     let widest = b.interval.as_ref().map_or(value.abs(), |(lo, hi, _)| {
                         value.abs().max(lo.abs()).max(hi.abs())
                     });
-                    let decimals = format::column_decimals(widest, 4);
-                    let mut text = format::fixed(value, decimals);
+                    let decimals = numbers::column_decimals(widest, 4);
+                    let mut text = numbers::fixed(value, decimals);
                     if let Some((lo, hi, what)) = &b.interval {
                         text.push_str(&format!(
                             "  ({what}: {} to {})",
-                            format::fixed(*lo, decimals),
-                            format::fixed(*hi, decimals)
+                            numbers::fixed(*lo, decimals),
+                            numbers::fixed(*hi, decimals)
                         ));
                     }
                     text

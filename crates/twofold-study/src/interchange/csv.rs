@@ -33,7 +33,7 @@ use std::collections::{BTreeMap, HashMap};
 use std::path::Path;
 
 use super::guard::{guard, unguard};
-use crate::export::format;
+use crate::numbers;
 use crate::project::{
     Cell, CellValue, Edit, Factor, FactorKind, Project, ResponseDef, RunRecord, RunStatus,
 };
@@ -123,9 +123,11 @@ enum Out {
 
 fn natural(f: &Factor, coded: i8) -> Out {
     match (&f.kind, coded) {
-        (FactorKind::Numeric { low, .. }, -1) => Out::Number(format::level(*low)),
-        (FactorKind::Numeric { high, .. }, 1) => Out::Number(format::level(*high)),
-        (FactorKind::Numeric { low, high }, _) => Out::Number(format::level(0.5 * (low + high))),
+        (FactorKind::Numeric { low, .. }, -1) => Out::Number(numbers::level_plain(*low)),
+        (FactorKind::Numeric { high, .. }, 1) => Out::Number(numbers::level_plain(*high)),
+        (FactorKind::Numeric { low, high }, _) => {
+            Out::Number(numbers::level_plain(0.5 * (low + high)))
+        }
         (FactorKind::Categorical { low_label, .. }, -1) => Out::Text(low_label.clone()),
         (FactorKind::Categorical { high_label, .. }, _) => Out::Text(high_label.clone()),
     }
@@ -217,7 +219,7 @@ pub fn run_sheet_csv(project: &Project) -> String {
 pub fn write_run_sheet_csv(project: &Project, path: &Path) -> Result<usize, CsvError> {
     let mut bytes = "\u{feff}".as_bytes().to_vec();
     bytes.extend_from_slice(run_sheet_csv(project).as_bytes());
-    crate::export::render::write_atomic(path, &bytes).map_err(|e| CsvError::Write {
+    crate::files::write_atomic(path, &bytes).map_err(|e| CsvError::Write {
         path: path.display().to_string(),
         message: e.to_string(),
     })?;

@@ -10,15 +10,15 @@
 //! renames it over the target and flushes the folder, so a crash or a full disk at any moment
 //! leaves either the old file or the new one, never a half-written mix.
 
-use std::fs::{self, File, OpenOptions};
-use std::io::{self, Write};
+use std::fs;
+use std::io;
 use std::path::{Path, PathBuf};
-use std::sync::atomic::{AtomicU64, Ordering};
 
 use serde::Deserialize;
 
 use super::migrate;
 use super::model::{FORMAT_VERSION, Project};
+pub use crate::files::write_atomic;
 
 /// Why a project file could not be read or written.
 #[derive(Debug, thiserror::Error)]
@@ -144,81 +144,6 @@ pub fn save_project(path: &Path, project: &Project) -> Result<(), FileError> {
     })
 }
 
-/// Points in an atomic write where a test can make it fail.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
-pub(crate) enum SaveStep {
-    /// The temporary file is written and flushed; the target is untouched.
-    BeforeRename,
-}
-
-/// Writes `bytes` to `path` so that `path` holds either its old content or the new, whole: a
-/// temporary file beside the target is written and flushed to the disk, renamed over the target,
-/// and the folder is flushed so the rename itself survives a power cut (on Unix; elsewhere the
-/// rename is the last step). On failure the temporary file is removed.
-pub fn write_atomic(path: &Path, bytes: &[u8]) -> io::Result<()> {
-    write_atomic_with(path, bytes, &mut |_| Ok(()))
-}
-
-static TEMP_COUNTER: AtomicU64 = AtomicU64::new(0);
-
-pub(crate) fn write_atomic_with(
-    path: &Path,
-    bytes: &[u8],
-    hook: &mut dyn FnMut(SaveStep) -> io::Result<()>,
-) -> io::Result<()> {
-    let dir = match path.parent() {
-        Some(d) if !d.as_os_str().is_empty() => d.to_path_buf(),
-        _ => PathBuf::from("."),
-    };
-    let name = path
-        .file_name()
-        .ok_or_else(|| io::Error::new(io::ErrorKind::InvalidInput, "the path names no file"))?;
-    // Same folder, so the rename never crosses file systems; pid and counter keep two writers
-    // (two windows, or a recovery copy beside its project) from sharing a temporary file.
-    let temp = dir.join(format!(
-        ".{}.{}-{}.tmp",
-        name.to_string_lossy(),
-        std::process::id(),
-        TEMP_COUNTER.fetch_add(1, Ordering::Relaxed)
-    ));
-    let result = (|| {
-        let mut file = OpenOptions::new()
-            .write(true)
-            .create_new(true)
-            .open(&temp)?;
-        file.write_all(bytes)?;
-        file.sync_all()?;
-        if let Ok(meta) = fs::metadata(path) {
-            // Keep the permissions the engineer gave the file (e.g. read-only for others).
-            let _ = fs::set_permissions(&temp, meta.permissions());
-        }
-        drop(file);
-        hook(SaveStep::BeforeRename)?;
-        fs::rename(&temp, path)?;
-        sync_dir(&dir);
-        Ok(())
-    })();
-    if result.is_err() {
-        // The temporary file holds nothing the target does not; removing it loses no data.
-        let _ = fs::remove_file(&temp);
-    }
-    result
-}
-
-#[cfg(unix)]
-fn sync_dir(dir: &Path) {
-    // Best effort: the data is already safe in the renamed file; this only makes the new name
-    // durable. Some file systems (network shares) refuse to sync a folder.
-    if let Ok(d) = File::open(dir) {
-        let _ = d.sync_all();
-    }
-}
-
-#[cfg(not(unix))]
-fn sync_dir(_dir: &Path) {
-    // Folders cannot be opened for syncing on Windows; the rename is durable there once done.
-}
-
 impl Project {
     /// Checks the invariants every other part relies on; the message names the first run or part
     /// that breaks them, in words for the engineer.
@@ -258,6 +183,7 @@ impl Project {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::files::{SaveStep, write_atomic_with};
     use crate::project::{Cell, Factor, ResponseDef, RunRecord, RunStatus};
 
     fn sample() -> Project {

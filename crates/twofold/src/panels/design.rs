@@ -5,8 +5,6 @@
 //! The options come from the core's minimum-aberration search, which may take a second or two for
 //! many factors, so in the window it runs on a worker thread and the table says "searching".
 
-use std::sync::mpsc::{Receiver, channel};
-
 use egui::{Grid, RichText, Ui};
 
 use super::widgets::{not_available, warning_box};
@@ -14,6 +12,7 @@ use super::{Command, Pane, View};
 use twofold_core::alias::{AliasReport, alias_report, roman};
 use twofold_core::design::{FractionalDesign, Generator};
 use twofold_core::search::{DesignOption, SearchBudget, design_options};
+use twofold_study::jobs::{Control, Job};
 use twofold_study::project::{BlockChoice, DesignSettings, Project};
 
 /// Largest run size offered in the table: bigger sheets are not practical at a bench.
@@ -46,7 +45,7 @@ pub struct DesignPane {
     block_text: String,
     /// Options for a factor count, or the search in progress.
     options: Option<(usize, OptionsResult)>,
-    pending: Option<(usize, Receiver<OptionsResult>)>,
+    pending: Option<(usize, Job<OptionsResult>)>,
     /// Alias report of the draft, cached for one (factor count, generators) key.
     preview: Option<(PreviewKey, Result<AliasReport, String>)>,
 }
@@ -60,22 +59,18 @@ pub fn pick_label(runs: usize) -> String {
 
 impl DesignPane {
     fn options_for(&mut self, ui: &Ui, k: usize) -> Option<&OptionsResult> {
-        if let Some((pk, rx)) = &self.pending {
+        if let Some((pk, job)) = &mut self.pending {
             if *pk == k {
-                match rx.try_recv() {
-                    Ok(result) => {
-                        self.options = Some((k, result));
+                match job.poll() {
+                    // A search that stopped with an internal error says so rather than search
+                    // again.
+                    Some(result) => {
+                        self.options = Some((k, result.unwrap_or_else(|e| Err(e.to_string()))));
                         self.pending = None;
                     }
-                    Err(std::sync::mpsc::TryRecvError::Empty) => {
+                    None => {
                         ui.ctx()
                             .request_repaint_after(std::time::Duration::from_millis(100));
-                    }
-                    Err(std::sync::mpsc::TryRecvError::Disconnected) => {
-                        // The worker died without an answer: say so rather than search again.
-                        self.options =
-                            Some((k, Err("the search stopped with an internal error".into())));
-                        self.pending = None;
                     }
                 }
             } else {
@@ -87,13 +82,13 @@ impl DesignPane {
             match self.compute {
                 Compute::Inline => self.options = Some((k, search(k))),
                 Compute::Background => {
-                    let (tx, rx) = channel();
                     let ctx = ui.ctx().clone();
-                    std::thread::spawn(move || {
-                        let _ = tx.send(search(k));
-                        ctx.request_repaint();
-                    });
-                    self.pending = Some((k, rx));
+                    let job = Job::start(
+                        "design search",
+                        move |_: &Control| search(k),
+                        move || ctx.request_repaint(),
+                    );
+                    self.pending = Some((k, job));
                 }
             }
         }
