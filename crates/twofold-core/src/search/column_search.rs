@@ -1,0 +1,607 @@
+//! The column-side engine: depth-first branch and bound over the interaction columns of the 2^q
+//! factorial, with incremental word counts and isomorphism pruning (see the parent module).
+
+use super::*;
+/// Adds `b` to `a` entry by entry.
+pub(super) fn add_into(a: &mut [u64], b: &[u32]) {
+    for (x, &y) in a.iter_mut().zip(b) {
+        *x += u64::from(y);
+    }
+}
+
+/// Lexicographic comparison of `base + extra` with `other`, without building the sum.
+pub(super) fn cmp_sum(base: &[u64], extra: &[u32], other: &[u64]) -> Ordering {
+    for ((&b, &e), &o) in base.iter().zip(extra).zip(other) {
+        match (b + u64::from(e)).cmp(&o) {
+            Ordering::Equal => {}
+            unequal => return unequal,
+        }
+    }
+    Ordering::Equal
+}
+
+/// Relabellings of the basic factors used by the isomorphism test, acting on column ranks.
+pub(super) enum Relabellings {
+    /// Every permutation but the identity, as a table `images[rank·count + π]` (all images of
+    /// one column side by side, which the test reads in one sweep).
+    Table { count: usize, images: Vec<u32> },
+    /// The transpositions of two basic factors, applied on the fly.
+    Swaps { pairs: Vec<(u32, u32)> },
+}
+
+/// All permutations of `0..n` in a fixed order (recursive swaps), the identity first.
+pub(super) fn permutations(n: usize) -> Vec<Vec<usize>> {
+    pub(super) fn rec(i: usize, cur: &mut Vec<usize>, out: &mut Vec<Vec<usize>>) {
+        if i == cur.len() {
+            out.push(cur.clone());
+            return;
+        }
+        for j in i..cur.len() {
+            cur.swap(i, j);
+            rec(i + 1, cur, out);
+            cur.swap(i, j);
+        }
+    }
+    let mut out = Vec::new();
+    let mut cur: Vec<usize> = (0..n).collect();
+    rec(0, &mut cur, &mut out);
+    out
+}
+
+/// Outcome of [`ColumnSearch::pair_bound`].
+pub(super) enum PairBound {
+    /// No completion can beat the incumbent.
+    Cut,
+    /// The candidates that may still take part in a better completion (in search order).
+    Keep(Vec<u32>),
+    /// No incumbent yet, or too many candidates to try.
+    Unknown,
+}
+
+/// Which relabellings of the basic factors the isomorphism test uses.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub(super) enum RelabellingSet {
+    /// All q! permutations (q ≤ 7), else the transpositions.
+    Default,
+    /// Only the transpositions of two basic factors.
+    #[cfg(test)]
+    Swaps,
+    /// None: no isomorphism pruning at all.
+    #[cfg(test)]
+    Nothing,
+}
+
+/// Depth-first branch and bound over the interaction columns of the 2^q factorial.
+pub(super) struct ColumnSearch {
+    q: usize,
+    k: usize,
+    p: usize,
+    /// Entries per column value in `counts`: word lengths 0..=k.
+    width: usize,
+    /// Candidate columns in search order (rank = q + index): most letters first, then by value.
+    columns: Vec<u32>,
+    /// Rank of every column value (basic factors 0..q).
+    rank_of: Vec<u32>,
+    relabellings: Relabellings,
+    /// `counts[x·width + j]` = number of j-subsets of the chosen columns (basic ones included)
+    /// whose product is x.
+    pub(super) counts: Vec<u32>,
+    /// Best design so far: its pattern and its generated columns.
+    best: Option<(Vec<u64>, Vec<u32>)>,
+    nodes: u64,
+    deadline: Option<Instant>,
+    timed_out: bool,
+}
+
+impl ColumnSearch {
+    pub(super) fn new(k: usize, q: usize, deadline: Option<Instant>) -> ColumnSearch {
+        ColumnSearch::with_relabellings(k, q, deadline, RelabellingSet::Default)
+    }
+
+    pub(super) fn with_relabellings(
+        k: usize,
+        q: usize,
+        deadline: Option<Instant>,
+        set: RelabellingSet,
+    ) -> ColumnSearch {
+        let size = 1usize << q;
+        let mut columns: Vec<u32> = (1..size as u32).filter(|m| m.count_ones() >= 2).collect();
+        columns.sort_by_key(|&m| (std::cmp::Reverse(m.count_ones()), m));
+        let mut rank_of = vec![0u32; size];
+        for i in 0..q {
+            rank_of[1 << i] = i as u32;
+        }
+        for (i, &c) in columns.iter().enumerate() {
+            rank_of[c as usize] = (q + i) as u32;
+        }
+        // The test only runs where three or more columns are still to come (see `dfs`), so
+        // with p ≤ 3 no table is needed.
+        let p = k - q;
+        let relabellings =
+            if q <= ALL_RELABELLINGS_MAX_BASIC && set == RelabellingSet::Default && p >= 4 {
+                let perms = permutations(q);
+                let ranks = q + columns.len();
+                let count = perms.len() - 1;
+                let mut images = vec![0u32; count * ranks];
+                let mut by_mask = vec![0u32; size];
+                // perms[0] is the identity: it never gives a smaller image.
+                for (pi, perm) in perms[1..].iter().enumerate() {
+                    for m in 1..size {
+                        let low = m.trailing_zeros() as usize;
+                        by_mask[m] = by_mask[m & (m - 1)] | 1 << perm[low];
+                    }
+                    for rank in 0..ranks {
+                        let mask = if rank < q {
+                            1usize << rank
+                        } else {
+                            columns[rank - q] as usize
+                        };
+                        images[rank * count + pi] = rank_of[by_mask[mask] as usize];
+                    }
+                }
+                Relabellings::Table { count, images }
+            } else {
+                let mut pairs = Vec::new();
+                let basic = if p >= 4 { q as u32 } else { 0 };
+                #[cfg(test)]
+                let basic = if set == RelabellingSet::Nothing {
+                    0
+                } else {
+                    basic
+                };
+                for i in 0..basic {
+                    for j in i + 1..basic {
+                        pairs.push((i, j));
+                    }
+                }
+                Relabellings::Swaps { pairs }
+            };
+        let width = k + 1;
+        let mut search = ColumnSearch {
+            q,
+            k,
+            p,
+            width,
+            columns,
+            rank_of,
+            relabellings,
+            counts: vec![0; size * width],
+            best: None,
+            nodes: 0,
+            deadline,
+            timed_out: false,
+        };
+        search.counts[0] = 1; // the empty set multiplies to I
+        for i in 0..q {
+            search.add(1 << i);
+        }
+        search
+    }
+
+    pub(super) fn relabelling_count(&self) -> usize {
+        match &self.relabellings {
+            Relabellings::Table { count, .. } => *count,
+            Relabellings::Swaps { pairs } => pairs.len(),
+        }
+    }
+
+    /// Rank of the image of the column of rank `rank` under relabelling `pi`.
+    pub(super) fn image(&self, pi: usize, rank: u32) -> u32 {
+        match &self.relabellings {
+            Relabellings::Table { count, images } => images[rank as usize * count + pi],
+            Relabellings::Swaps { pairs } => {
+                let (i, j) = pairs[pi];
+                let mask = self.columns[rank as usize - self.q];
+                let swapped = if (mask >> i ^ mask >> j) & 1 == 1 {
+                    mask ^ (1 << i | 1 << j)
+                } else {
+                    mask
+                };
+                self.rank_of[swapped as usize]
+            }
+        }
+    }
+
+    /// Adds column `z` to the subset counts: `n_j(x) += n_{j−1}(x·z)`, x and x·z in pairs so
+    /// the old values are read before they change.
+    pub(super) fn add(&mut self, z: u32) {
+        let w = self.width;
+        let z = z as usize;
+        for x in 0..self.counts.len() / w {
+            let y = x ^ z;
+            if y < x {
+                continue;
+            }
+            let (lo, hi) = self.counts.split_at_mut(y * w);
+            let rx = &mut lo[x * w..x * w + w];
+            let ry = &mut hi[..w];
+            for j in (1..w).rev() {
+                let a = rx[j] + ry[j - 1];
+                let b = ry[j] + rx[j - 1];
+                rx[j] = a;
+                ry[j] = b;
+            }
+        }
+    }
+
+    /// Undoes [`Self::add`]: `n_j(x) −= n_{j−1}(x·z)` in increasing j.
+    pub(super) fn remove(&mut self, z: u32) {
+        let w = self.width;
+        let z = z as usize;
+        for x in 0..self.counts.len() / w {
+            let y = x ^ z;
+            if y < x {
+                continue;
+            }
+            let (lo, hi) = self.counts.split_at_mut(y * w);
+            let rx = &mut lo[x * w..x * w + w];
+            let ry = &mut hi[..w];
+            for j in 1..w {
+                rx[j] -= ry[j - 1];
+                ry[j] -= rx[j - 1];
+            }
+        }
+    }
+
+    /// Current word-length pattern `(A3, ..., Ak)`.
+    pub(super) fn pattern(&self) -> Vec<u64> {
+        self.counts[3..self.width]
+            .iter()
+            .map(|&a| u64::from(a))
+            .collect()
+    }
+
+    /// Words of lengths 3..=k that adding the column of rank `rank` would create.
+    pub(super) fn additions(&self, rank: u32) -> &[u32] {
+        let x = self.columns[rank as usize - self.q] as usize;
+        &self.counts[x * self.width + 2..x * self.width + self.k]
+    }
+
+    pub(super) fn beats_best(&self, pattern: &[u64]) -> bool {
+        self.best
+            .as_ref()
+            .is_none_or(|(b, _)| pattern.cmp(b) == Ordering::Less)
+    }
+
+    /// Greedy designs: from each possible first column (one per number of letters, which is all
+    /// a first column can differ in up to relabelling; the six longest when there are many basic
+    /// factors), add the column that creates the lexicographically fewest words. The best of them
+    /// seeds the search.
+    pub(super) fn seed(&mut self) {
+        let lowest = if self.q <= 10 { 2 } else { self.q - 5 };
+        for letters in (lowest..=self.q).rev() {
+            let first = (1u32 << letters) - 1;
+            let mut chosen = vec![first];
+            self.add(first);
+            while chosen.len() < self.p {
+                let mut pick: Option<usize> = None;
+                for (i, &c) in self.columns.iter().enumerate() {
+                    if chosen.contains(&c) {
+                        continue;
+                    }
+                    let better = match pick {
+                        None => true,
+                        Some(j) => {
+                            self.additions((self.q + i) as u32)
+                                < self.additions((self.q + j) as u32)
+                        }
+                    };
+                    if better {
+                        pick = Some(i);
+                    }
+                }
+                let Some(i) = pick else { break };
+                let c = self.columns[i];
+                chosen.push(c);
+                self.add(c);
+            }
+            let pattern = self.pattern();
+            if chosen.len() == self.p && self.beats_best(&pattern) {
+                self.best = Some((pattern, chosen.clone()));
+            }
+            for &c in chosen.iter().rev() {
+                self.remove(c);
+            }
+        }
+    }
+
+    pub(super) fn run(mut self) -> RawOutcome {
+        self.seed();
+        let candidates: Vec<u32> = (0..self.columns.len())
+            .map(|i| (self.q + i) as u32)
+            .collect();
+        let taus = vec![u32::MAX; self.relabelling_count()];
+        let mut chosen = Vec::with_capacity(self.p);
+        self.dfs(&mut chosen, &candidates, &taus);
+        let (pattern, mut columns) = self.best.take().unwrap_or_default();
+        columns.sort_by_key(|&c| self.rank_of[c as usize]);
+        RawOutcome {
+            columns,
+            pattern,
+            proven: !self.timed_out,
+            nodes: self.nodes,
+        }
+    }
+
+    /// Full comparison of the image of `chosen` under `pi` with `chosen` (both as sorted rank
+    /// lists): `None` when the image is smaller, else the rank of `chosen` at the first
+    /// difference (`u32::MAX` when equal).
+    pub(super) fn compare_image(&self, pi: usize, chosen: &[u32]) -> Option<u32> {
+        let mut image: Vec<u32> = chosen.iter().map(|&r| self.image(pi, r)).collect();
+        image.sort_unstable();
+        for (&a, &b) in image.iter().zip(chosen) {
+            match a.cmp(&b) {
+                Ordering::Less => return None,
+                Ordering::Greater => return Some(b),
+                Ordering::Equal => {}
+            }
+        }
+        Some(u32::MAX)
+    }
+
+    /// Orderly test for `chosen` (sorted, its last entry just added) given the parent's state
+    /// `taus`: for each relabelling, the rank of the parent's set at the first place its image
+    /// differs (`u32::MAX` when the image is the set itself). The image of the new set is smaller
+    /// exactly when the new column's image falls below that threshold (or below the new column
+    /// itself when the parent was fixed); ties fall back to a full comparison. Writes the child's
+    /// state to `out` and returns whether the new set is the smallest of its images.
+    pub(super) fn is_smallest_image(
+        &self,
+        chosen: &[u32],
+        taus: &[u32],
+        out: &mut Vec<u32>,
+    ) -> bool {
+        /// Marks a relabelling whose image ties with the parent's threshold.
+        const TIE: u32 = u32::MAX - 1;
+        let Some(&c) = chosen.last() else { return true };
+        out.clear();
+        match &self.relabellings {
+            Relabellings::Table { count, images } => {
+                // The parent's threshold is below c whenever it is set, so min(τ, c) is the
+                // threshold in both cases.
+                let row = &images[c as usize * count..(c as usize + 1) * count];
+                let below = row
+                    .iter()
+                    .zip(taus)
+                    .fold(false, |acc, (&image, &tau)| acc | (image < tau.min(c)));
+                if below {
+                    return false;
+                }
+                out.resize(taus.len(), 0);
+                for ((o, &image), &tau) in out.iter_mut().zip(row).zip(taus) {
+                    let threshold = tau.min(c);
+                    *o = if image > threshold {
+                        threshold
+                    } else if tau == u32::MAX {
+                        u32::MAX
+                    } else {
+                        TIE
+                    };
+                }
+                if out.contains(&TIE) {
+                    for (pi, slot) in out.iter_mut().enumerate() {
+                        if *slot == TIE {
+                            match self.compare_image(pi, chosen) {
+                                None => return false,
+                                Some(t) => *slot = t,
+                            }
+                        }
+                    }
+                }
+            }
+            Relabellings::Swaps { .. } => {
+                for (pi, &tau) in taus.iter().enumerate() {
+                    let image = self.image(pi, c);
+                    let threshold = tau.min(c);
+                    match image.cmp(&threshold) {
+                        Ordering::Less => return false,
+                        Ordering::Greater => out.push(threshold),
+                        Ordering::Equal if tau == u32::MAX => out.push(u32::MAX),
+                        Ordering::Equal => match self.compare_image(pi, chosen) {
+                            None => return false,
+                            Some(t) => out.push(t),
+                        },
+                    }
+                }
+            }
+        }
+        true
+    }
+
+    pub(super) fn out_of_time(&mut self) -> bool {
+        if !self.timed_out
+            && self.nodes % 256 == 1
+            && self.deadline.is_some_and(|d| Instant::now() >= d)
+        {
+            self.timed_out = true;
+        }
+        self.timed_out
+    }
+
+    /// Two columns to go: tries every pair exactly instead of branching. After adding c, the
+    /// words that y adds are `n_j(y) + n_{j−1}(y·c)`, so each pair costs a few reads, with an
+    /// early exit once the sum is decided against the incumbent.
+    pub(super) fn best_pair(&mut self, chosen: &[u32], pattern: &[u64], next: &[u32]) {
+        let w = self.width;
+        let len = pattern.len();
+        let mut base = vec![0u64; len];
+        for (i, &c) in next.iter().enumerate() {
+            // Many basic factors give long candidate lists: watch the clock here too.
+            if i % 64 == 63 && self.deadline.is_some_and(|d| Instant::now() >= d) {
+                self.timed_out = true;
+                return;
+            }
+            base.copy_from_slice(pattern);
+            add_into(&mut base, self.additions(c));
+            let xc = self.columns[c as usize - self.q] as usize;
+            for &y in &next[i + 1..] {
+                let xy = self.columns[y as usize - self.q] as usize;
+                let ry = &self.counts[xy * w..xy * w + w];
+                let rs = &self.counts[(xy ^ xc) * w..(xy ^ xc) * w + w];
+                let total = |t: usize| base[t] + u64::from(ry[t + 2]) + u64::from(rs[t + 1]);
+                let better = match &self.best {
+                    None => true,
+                    Some((best, _)) => {
+                        (0..len).map(|t| total(t).cmp(&best[t])).find(|o| o.is_ne())
+                            == Some(Ordering::Less)
+                    }
+                };
+                if better {
+                    let sum: Vec<u64> = (0..len).map(total).collect();
+                    let mut columns: Vec<u32> = chosen
+                        .iter()
+                        .map(|&r| self.columns[r as usize - self.q])
+                        .collect();
+                    columns.push(xc as u32);
+                    columns.push(xy as u32);
+                    self.best = Some((sum, columns));
+                }
+            }
+        }
+    }
+
+    /// A sharper bound on the first word length at which the incumbent has words (length
+    /// d + 3, no shorter words allowed): besides each column's own additions, every pair of new
+    /// columns y, y' adds `n_{d+1}(y·y')` words of that length. Each column is charged its own
+    /// additions plus half the sum of its r − 1 cheapest pairings (pairs that would create a
+    /// shorter word cannot occur in a better design and are left out), and the r smallest charges
+    /// bound the completion. Columns whose charge alone pushes the bound past the incumbent are
+    /// dropped. Charges are kept doubled to stay in integers.
+    pub(super) fn pair_bound(&self, pattern: &[u64], next: &[u32], r: usize) -> PairBound {
+        let Some((best, _)) = &self.best else {
+            return PairBound::Unknown;
+        };
+        if next.len() > PAIR_BOUND_MAX_CANDIDATES {
+            return PairBound::Unknown;
+        }
+        let Some(d) = best.iter().position(|&a| a > 0) else {
+            return PairBound::Unknown;
+        };
+        if pattern[..d].iter().any(|&a| a > 0) {
+            return PairBound::Cut;
+        }
+        let w = self.width;
+        let masks: Vec<usize> = next
+            .iter()
+            .map(|&c| self.columns[c as usize - self.q] as usize)
+            .collect();
+        // (charge, candidate); a candidate with too few allowed partners has no charge.
+        let mut charges: Vec<(u64, u32)> = Vec::with_capacity(masks.len());
+        let mut pairings: Vec<u64> = Vec::with_capacity(masks.len());
+        for (i, &y) in masks.iter().enumerate() {
+            pairings.clear();
+            for (j, &z) in masks.iter().enumerate() {
+                let row = &self.counts[(y ^ z) * w..(y ^ z) * w + w];
+                if i != j && row[1..=d].iter().all(|&n| n == 0) {
+                    pairings.push(u64::from(row[d + 1]));
+                }
+            }
+            if pairings.len() < r - 1 {
+                continue;
+            }
+            if pairings.len() > r - 1 {
+                pairings.select_nth_unstable(r - 2);
+            }
+            let own = u64::from(self.counts[y * w + d + 2]);
+            charges.push((2 * own + pairings[..r - 1].iter().sum::<u64>(), next[i]));
+        }
+        if charges.len() < r {
+            return PairBound::Cut;
+        }
+        charges.sort_unstable();
+        let limit = 2 * best[d];
+        let base = 2 * pattern[d];
+        let smallest: u64 = charges[..r - 1].iter().map(|c| c.0).sum();
+        if base + smallest + charges[r - 1].0 > limit {
+            return PairBound::Cut;
+        }
+        let mut kept: Vec<u32> = charges
+            .iter()
+            .enumerate()
+            .filter(|(i, c)| *i < r || base + smallest + c.0 <= limit)
+            .map(|(_, c)| c.1)
+            .collect();
+        kept.sort_unstable();
+        PairBound::Keep(kept)
+    }
+
+    pub(super) fn dfs(&mut self, chosen: &mut Vec<u32>, candidates: &[u32], taus: &[u32]) {
+        self.nodes += 1;
+        if self.out_of_time() {
+            return;
+        }
+        let r = self.p - chosen.len();
+        if r == 0 || candidates.len() < r {
+            return;
+        }
+        let pattern = self.pattern();
+        // Candidates sorted by the words they would add, lexicographically (stable: ties keep
+        // the search order, which keeps the result deterministic).
+        let mut order: Vec<u32> = candidates.to_vec();
+        order.sort_by(|&a, &b| self.additions(a).cmp(self.additions(b)));
+        let mut bound = pattern.clone();
+        for &c in &order[..r - 1] {
+            add_into(&mut bound, self.additions(c));
+        }
+        let last = self.additions(order[r - 1]);
+        if let Some((best, _)) = &self.best
+            && cmp_sum(&bound, last, best) != Ordering::Less
+        {
+            return;
+        }
+        if r == 1 {
+            // One column to go: the bound is exact, and the best column is the first in order.
+            add_into(&mut bound, last);
+            let mut columns: Vec<u32> = chosen
+                .iter()
+                .map(|&c| self.columns[c as usize - self.q])
+                .collect();
+            columns.push(self.columns[order[0] as usize - self.q]);
+            self.best = Some((bound, columns));
+            return;
+        }
+        // A candidate outside the r smallest can at best complete the design together with the
+        // r − 1 smallest; drop those for which even that reaches the incumbent. (For the r
+        // smallest the same test never drops: their sum is the bound, already below.)
+        let next: Vec<u32> = match &self.best {
+            Some((best, _)) => candidates
+                .iter()
+                .copied()
+                .filter(|&c| cmp_sum(&bound, self.additions(c), best) == Ordering::Less)
+                .collect(),
+            None => candidates.to_vec(),
+        };
+        if r == 2 {
+            self.best_pair(chosen, &pattern, &next);
+            return;
+        }
+        // The pair bound costs the square of the candidate count: skip it for long lists.
+        let next = match self.pair_bound(&pattern, &next, r) {
+            PairBound::Cut => return,
+            PairBound::Keep(kept) => kept,
+            PairBound::Unknown => next,
+        };
+        if next.len() < r {
+            return;
+        }
+        let mut child_taus = Vec::with_capacity(taus.len());
+        for (i, &c) in next.iter().enumerate() {
+            if next.len() - i < r {
+                break;
+            }
+            chosen.push(c);
+            // A child with two columns to go is settled by `best_pair` at about the cost of the
+            // isomorphism test, so the test is skipped there (skipping it is always safe).
+            if r == 3 || self.is_smallest_image(chosen, taus, &mut child_taus) {
+                let column = self.columns[c as usize - self.q];
+                self.add(column);
+                self.dfs(chosen, &next[i + 1..], &child_taus);
+                self.remove(column);
+            }
+            chosen.pop();
+            if self.timed_out {
+                return;
+            }
+        }
+    }
+}
