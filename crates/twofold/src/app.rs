@@ -23,14 +23,14 @@ use crate::panels::residuals::ResidualsPane;
 use crate::panels::run_sheet::RunSheetPane;
 use crate::panels::{Command, Pane, Step, View};
 use crate::theme::{self, Palette, ThemeChoice};
-use twofold_study::analysis::AnalysisCache;
+use twofold_study::report::ReportCache;
 use twofold_study::export::{BuildOptions, ExportJob, Paper};
 use twofold_study::interchange::ImportPlan;
 use twofold_study::project::{
     DesignSettings, Edit, History, Problem, Project, RecentFiles, RecoveryDebouncer, RecoveryOffer,
     RecoveryStore, Severity,
 };
-use twofold_study::results::ResponseResults;
+use twofold_study::report::Report;
 
 /// Short caution about working with real processes, reachable from the Help menu and the status
 /// bar.
@@ -206,26 +206,25 @@ impl Derived {
 /// result stays on screen, marked as updating, until the new one arrives.
 #[derive(Default)]
 struct AnalysisSlot {
-    results: Option<Arc<ResponseResults>>,
-    pending: Option<((u64, usize), Receiver<ResponseResults>)>,
+    results: Option<Arc<Report>>,
+    pending: Option<((u64, usize), Receiver<Arc<Report>>)>,
     /// The shared analysis cache: going back with undo finds the earlier analysis there. Only the
     /// one worker (or, in tests, the frame) locks it, never the drawing.
-    cache: Arc<Mutex<AnalysisCache>>,
+    cache: Arc<Mutex<ReportCache>>,
 }
 
-/// The digest of `response` at `revision`, from the analysis cache.
+/// The report of `response` at `revision`, from the report cache.
 fn cached_results(
-    cache: &Mutex<AnalysisCache>,
+    cache: &Mutex<ReportCache>,
     project: &Project,
     revision: u64,
     response: usize,
-) -> ResponseResults {
+) -> Arc<Report> {
     // A poisoned lock only means an earlier computation panicked; the entries are still sound.
     let mut cache = cache
         .lock()
         .unwrap_or_else(std::sync::PoisonError::into_inner);
-    let analysis = cache.get(project, revision, response);
-    ResponseResults::from_analysis(project, &analysis)
+    cache.get(project, revision, response)
 }
 
 impl AnalysisSlot {
@@ -240,25 +239,20 @@ impl AnalysisSlot {
         ctx: &egui::Context,
     ) -> bool {
         let want = (revision, response);
-        let have = |r: &Option<Arc<ResponseResults>>| {
+        let have = |r: &Option<Arc<Report>>| {
             r.as_ref().map(|x| (x.revision, x.response)) == Some(want)
         };
         if have(&self.results) {
             return true;
         }
         if inline {
-            self.results = Some(Arc::new(cached_results(
-                &self.cache,
-                project,
-                revision,
-                response,
-            )));
+            self.results = Some(cached_results(&self.cache, project, revision, response));
             return true;
         }
         if let Some((_, rx)) = &self.pending {
             match rx.try_recv() {
                 Ok(r) => {
-                    self.results = Some(Arc::new(r));
+                    self.results = Some(r);
                     self.pending = None;
                 }
                 Err(std::sync::mpsc::TryRecvError::Empty) => {}
@@ -282,11 +276,12 @@ impl AnalysisSlot {
                     cached_results(&cache, &project, revision, response)
                 })
                 .unwrap_or_else(|_| {
-                    ResponseResults::unavailable(
+                    Arc::new(Report::unavailable(
+                        &project,
                         revision,
                         response,
                         "the analysis stopped with an internal error (please report it)",
-                    )
+                    ))
                 });
                 let _ = tx.send(result);
                 repaint.request_repaint();

@@ -1,7 +1,9 @@
 //! From the project and the window's analysis results to a [`SummaryInput`].
 //!
-//! The numbers come from [`ResponseResults`], the same value the analysis panes draw, so the
-//! page and the window cannot disagree: this module only selects, orders and labels. The best
+//! The numbers come from the response's [`Report`], the same value the analysis panes draw and
+//! `twofold analyze` writes, so the page and the window cannot disagree: this module only
+//! selects, orders and labels. With no terms chosen the page shows the report's default model
+//! choice and says how it was made and which error the tests use. The best
 //! settings are computed by the core's `best_settings` exactly as the prediction pane does.
 
 use std::path::Path;
@@ -21,7 +23,7 @@ use super::input::{
 };
 use super::{ExportError, ExportReport, Paper, format};
 use crate::project::{BlockChoice, Factor, FactorKind, Project, ResponseTransform, Severity};
-use crate::results::ResponseResults;
+use crate::report::Report;
 
 /// Choices for a summary that are not stored in the project.
 #[derive(Debug, Clone, PartialEq)]
@@ -112,7 +114,7 @@ fn latest_entry_date(project: &Project) -> Option<String> {
 /// Fills the summary of response `results.response` of `project` from the window's results.
 pub fn summary_input(
     project: &Project,
-    results: &ResponseResults,
+    results: &Report,
     options: &BuildOptions,
 ) -> SummaryInput {
     let response = project.responses.get(results.response);
@@ -145,7 +147,9 @@ pub fn summary_input(
     let mut effects = Vec::new();
     let mut half = Vec::new();
     if let Ok(table) = &results.effects {
-        let in_model = |term: Term| results.in_model(term) || results.fitted(term);
+        let in_model = |term: Term| {
+            results.in_model(term) || results.fit.as_ref().is_ok_and(|f| f.terms.contains(&term))
+        };
         for e in &table.effects {
             let chain_in_model = std::iter::once(e.term)
                 .chain(e.aliases.iter().map(|a| a.term))
@@ -206,6 +210,7 @@ pub fn summary_input(
         adj_r_squared: fit.adj_r2,
         pred_r_squared: fit.pred_r2,
         std_dev: fit.sigma,
+        tests_note: tests_note(results),
     });
     if let Some(fit) = fit
         && !fit.added_for_hierarchy.is_empty()
@@ -359,7 +364,7 @@ fn capitalised(s: &str) -> String {
 
 fn design_facts(
     project: &Project,
-    results: &ResponseResults,
+    results: &Report,
     warnings: &mut Vec<String>,
 ) -> DesignFacts {
     let d = &project.design;
@@ -448,10 +453,30 @@ fn design_facts(
     facts
 }
 
+/// One sentence under the ANOVA: how the terms were chosen and which error the tests use.
+fn tests_note(results: &Report) -> String {
+    let how = match &results.choice {
+        Ok(c) if !results.terms_given() => {
+            let list: Vec<String> = c.terms.iter().map(|t| t.label()).collect();
+            format!(
+                "No terms chosen in the project: the model shown is {} ({}). ",
+                if list.is_empty() {
+                    "the mean only".to_string()
+                } else {
+                    list.join(" + ")
+                },
+                c.selection.words()
+            )
+        }
+        _ => String::new(),
+    };
+    format!("{how}{}", results.error_basis.sentence())
+}
+
 /// The interactions to plot: those in the fitted model, else every pair; strongest first.
 fn interaction_panels(
     project: &Project,
-    results: &ResponseResults,
+    results: &Report,
 ) -> (Vec<InteractionPanel>, String) {
     let strength = |t: Term| {
         results
@@ -556,7 +581,7 @@ pub fn run_sheet_input(project: &Project, date: Option<String>) -> super::run_sh
 /// dialog; for a worker thread use [`super::ExportJob::summary`] with [`summary_input`]).
 pub fn export_summary(
     project: &Project,
-    results: &ResponseResults,
+    results: &Report,
     path: &Path,
     paper: Paper,
     options: &BuildOptions,
@@ -583,7 +608,7 @@ mod tests {
     #[test]
     fn numbers_are_the_windows_numbers() {
         let p = demo_with_model();
-        let r = ResponseResults::compute(&p, 0);
+        let r = Report::for_response(&p, 0, 0);
         let input = summary_input(&p, &r, &BuildOptions::default());
         let table = r.effects.as_ref().unwrap();
         // Every effect of the window's table appears once, largest first.
@@ -636,7 +661,7 @@ mod tests {
     fn without_a_model_the_strongest_interactions_are_plotted() {
         let mut p = demo_project();
         p.responses[0].model.terms.clear();
-        let r = ResponseResults::compute(&p, 0);
+        let r = Report::for_response(&p, 0, 0);
         let input = summary_input(&p, &r, &BuildOptions::default());
         assert!(input.anova.is_none());
         assert_eq!(input.interactions.len(), 6);
@@ -663,7 +688,7 @@ mod tests {
     #[test]
     fn the_date_never_comes_from_the_clock() {
         let p = demo_project();
-        let r = ResponseResults::compute(&p, 0);
+        let r = Report::for_response(&p, 0, 0);
         let given = summary_input(
             &p,
             &r,
@@ -681,7 +706,7 @@ mod tests {
         q.runs[5].entered_at = Some("2025-03-09T08:00:00".into());
         let derived = summary_input(
             &q,
-            &ResponseResults::compute(&q, 0),
+            &Report::for_response(&q, 0, 0),
             &BuildOptions::default(),
         );
         assert_eq!(derived.date, "values entered up to 2025-03-09");
@@ -702,7 +727,7 @@ mod tests {
     fn same_project_same_svg_bytes() {
         let p = demo_with_model();
         let make = || {
-            let r = ResponseResults::compute(&p, 0);
+            let r = Report::for_response(&p, 0, 0);
             super::super::summary_svg(&summary_input(&p, &r, &BuildOptions::default()), Paper::A4)
         };
         assert_eq!(make(), make());

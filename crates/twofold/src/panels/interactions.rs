@@ -47,7 +47,7 @@ fn level_labels(project: &Project, f: usize) -> [String; 2] {
     }
 }
 
-fn build(view: &View<'_>, res: &twofold_study::results::ResponseResults) -> Built {
+fn build(view: &View<'_>, res: &twofold_study::report::Report) -> Built {
     let p = view.project;
     let mains: Vec<MainEffectPlot> = res
         .main_means

@@ -76,7 +76,7 @@ impl Pane for PredictionPane {
         let Some(res) = view.results_or_explain(ui) else {
             return;
         };
-        let fit = match &res.fit {
+        let fit = match res.chosen_fit() {
             Ok(f) => f,
             Err(why) => {
                 not_available(ui, &pal, &format!("Not available yet: {why}."));
@@ -233,7 +233,7 @@ fn prediction_card(
     ui: &mut Ui,
     view: &View<'_>,
     p: &Prediction,
-    res: &twofold_study::results::ResponseResults,
+    res: &twofold_study::report::Report,
     name: &str,
     unit: &str,
 ) {

@@ -16,9 +16,9 @@ pub struct ResidualsPane {
 /// Studentised residuals beyond this many standard deviations are marked (common practice).
 const LIMIT_SD: f64 = 3.0;
 
-fn build(res: &twofold_study::results::ResponseResults) -> Option<[ResidualPlot; 3]> {
+fn build(res: &twofold_study::report::Report) -> Option<[ResidualPlot; 3]> {
     let d = res.diagnostics.as_ref()?;
-    let fit = res.fit.as_ref().ok()?;
+    let fit = res.chosen_fit().ok()?;
     let limit = fit.sigma.map(|s| LIMIT_SD * s);
     let run_no = |table_run: usize| {
         res.run_order
@@ -64,7 +64,7 @@ impl Pane for ResidualsPane {
         let Some(res) = view.results_or_explain(ui) else {
             return;
         };
-        if let Err(why) = &res.fit {
+        if let Err(why) = res.chosen_fit() {
             not_available(ui, &pal, &format!("Not available yet: {why}."));
             return;
         }
@@ -76,7 +76,7 @@ impl Pane for ResidualsPane {
             not_available(ui, &pal, "Not available yet: the fit has no residuals.");
             return;
         };
-        if res.fit.as_ref().is_ok_and(|f| f.df_residual == 0) {
+        if res.chosen_fit().is_ok_and(|f| f.df_residual == 0) {
             not_available(
                 ui,
                 &pal,
