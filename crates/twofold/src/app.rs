@@ -23,7 +23,6 @@ use crate::panels::residuals::ResidualsPane;
 use crate::panels::run_sheet::RunSheetPane;
 use crate::panels::{Command, Pane, Step, View};
 use crate::theme::{self, Palette, ThemeChoice};
-use twofold_study::report::ReportCache;
 use twofold_study::export::{BuildOptions, ExportJob, Paper};
 use twofold_study::interchange::ImportPlan;
 use twofold_study::project::{
@@ -31,6 +30,7 @@ use twofold_study::project::{
     RecoveryStore, Severity,
 };
 use twofold_study::report::Report;
+use twofold_study::report::ReportCache;
 
 /// Short caution about working with real processes, reachable from the Help menu and the status
 /// bar.
@@ -239,9 +239,8 @@ impl AnalysisSlot {
         ctx: &egui::Context,
     ) -> bool {
         let want = (revision, response);
-        let have = |r: &Option<Arc<Report>>| {
-            r.as_ref().map(|x| (x.revision, x.response)) == Some(want)
-        };
+        let have =
+            |r: &Option<Arc<Report>>| r.as_ref().map(|x| (x.revision, x.response)) == Some(want);
         if have(&self.results) {
             return true;
         }

@@ -3,11 +3,11 @@
 
 use std::time::{Duration, Instant};
 
-use twofold_study::report::ReportCache;
 use twofold_study::project::{
     Edit, History, RecoveryDebouncer, RecoveryStore, RunStatus, demo_project, load_project,
     save_project,
 };
+use twofold_study::report::ReportCache;
 
 #[test]
 fn bench_loop_edit_save_reopen() {

@@ -112,11 +112,7 @@ fn latest_entry_date(project: &Project) -> Option<String> {
 }
 
 /// Fills the summary of response `results.response` of `project` from the window's results.
-pub fn summary_input(
-    project: &Project,
-    results: &Report,
-    options: &BuildOptions,
-) -> SummaryInput {
+pub fn summary_input(project: &Project, results: &Report, options: &BuildOptions) -> SummaryInput {
     let response = project.responses.get(results.response);
     let transform = response.map_or(ResponseTransform::None, |r| r.model.transform);
     let mut warnings = Vec::new();
@@ -362,11 +358,7 @@ fn capitalised(s: &str) -> String {
     }
 }
 
-fn design_facts(
-    project: &Project,
-    results: &Report,
-    warnings: &mut Vec<String>,
-) -> DesignFacts {
+fn design_facts(project: &Project, results: &Report, warnings: &mut Vec<String>) -> DesignFacts {
     let d = &project.design;
     let k = project.factors.len();
     let generators: Vec<String> = d
@@ -474,10 +466,7 @@ fn tests_note(results: &Report) -> String {
 }
 
 /// The interactions to plot: those in the fitted model, else every pair; strongest first.
-fn interaction_panels(
-    project: &Project,
-    results: &Report,
-) -> (Vec<InteractionPanel>, String) {
+fn interaction_panels(project: &Project, results: &Report) -> (Vec<InteractionPanel>, String) {
     let strength = |t: Term| {
         results
             .effects
@@ -663,15 +652,40 @@ mod tests {
         p.responses[0].model.terms.clear();
         let r = Report::for_response(&p, 0, 0);
         let input = summary_input(&p, &r, &BuildOptions::default());
-        assert!(input.anova.is_none());
-        assert_eq!(input.interactions.len(), 6);
+        // With no terms chosen the page shows the default choice (tested against the demo's
+        // pure error from its two centre points: A, B and AB) and says so.
+        let anova = input.anova.as_ref().unwrap();
+        assert!(
+            anova.tests_note.starts_with("No terms chosen"),
+            "{}",
+            anova.tests_note
+        );
+        assert!(
+            anova.tests_note.contains("A + B + AB"),
+            "{}",
+            anova.tests_note
+        );
+        assert!(
+            anova.tests_note.contains("pure error"),
+            "{}",
+            anova.tests_note
+        );
         assert_eq!(
             input.interactions[0].term, "AB",
             "the demo's one real interaction"
         );
+        // Without any interaction in the data's default model, every pair is offered.
+        let mut q = p.clone();
+        for run in &mut q.runs {
+            let y = f64::from(run.levels[0]);
+            run.values[0].text = format!("{}", 50.0 + 10.0 * y);
+        }
+        q.runs[16].values[0].text = "50.5".into();
+        let rq = Report::for_response(&q, 0, 0);
+        let iq = summary_input(&q, &rq, &BuildOptions::default());
+        assert_eq!(iq.interactions.len(), 6);
         assert!(
-            input
-                .interaction_note
+            iq.interaction_note
                 .contains("No interaction is in the model")
         );
     }

@@ -407,7 +407,6 @@ impl Report {
         }
         self.warnings = warnings;
     }
-
 }
 
 fn push_warning(list: &mut Vec<Warning>, kind: WarningKind, text: String) {
@@ -502,5 +501,124 @@ mod tests {
         let r = Report::for_response(&two_by_two(&["", "", "", ""]), 0, 0);
         assert_eq!(r.effects.as_ref().unwrap_err(), "no run has a value yet");
         assert!(r.fit.is_err());
+    }
+}
+
+#[cfg(test)]
+mod default_choice_tests {
+    use super::*;
+    use crate::project::demo_project;
+    use crate::report::{ErrorBasis, Selection};
+
+    #[test]
+    fn demo_without_terms_is_judged_against_its_centre_points() {
+        let mut p = demo_project();
+        p.responses[0].model.terms.clear();
+        let r = Report::for_response(&p, 0, 0);
+        // The demo's two centre points give pure error on 1 df.
+        let pe = r.pure_error.unwrap();
+        assert_eq!(pe.df, 1);
+        assert_eq!(r.error_basis, ErrorBasis::PureError);
+        let c = r.choice.as_ref().unwrap();
+        assert_eq!(c.selection, Selection::PureErrorTests);
+        let labels: Vec<String> = c.terms.iter().map(|t| t.label()).collect();
+        // The demo's formula has A, B and AB large and C small (−3 against 14, 10, 6).
+        assert_eq!(labels, ["A", "B", "AB"]);
+        assert_eq!(r.suggested_terms(), c.terms);
+        // F on (1, 1) df is the square of Student's t on 1 df (a Cauchy variable), so
+        // P(F > f) = (2/π)·atan(1/√f) (from memory); every test against pure error must agree.
+        for t in &c.tests {
+            let f = t.f.unwrap();
+            assert!((f - t.ss / pe.ms).abs() <= 1e-12 * f);
+            let closed = 2.0 / std::f64::consts::PI * (1.0 / f.sqrt()).atan();
+            assert!((t.p.unwrap() - closed).abs() < 1e-12, "{t:?}");
+        }
+        // The window fits nothing without the engineer, but names the same terms.
+        let why = r.chosen_fit().unwrap_err();
+        assert!(why.contains("suggested: A, B, AB"), "{why}");
+        assert!(!r.fitted(Term::main(0)));
+        assert!(r.fit.is_ok());
+    }
+
+    #[test]
+    fn demo_effects_show_the_invented_interaction() {
+        // The demo's formula: rubs = 60 + 14A + 10B - 3C + 6AB + noise, so the effects are about
+        // twice the coefficients: A ≈ 28, B ≈ 20, C ≈ -6, AB ≈ 12 (noise within ±2 per run).
+        let p = demo_project();
+        let r = Report::build(&p, 1, 0, &ModelSettings::default());
+        let e = r.effects.as_ref().unwrap();
+        let eff = |l: &str| e.effect_of(Term::parse(l, 4).unwrap()).unwrap();
+        assert!((eff("A") - 28.0).abs() < 3.0, "{}", eff("A"));
+        assert!((eff("B") - 20.0).abs() < 3.0, "{}", eff("B"));
+        assert!((eff("AB") - 12.0).abs() < 3.0, "{}", eff("AB"));
+        assert!(eff("D").abs() < 3.0);
+        assert_eq!(r.half_normal.len(), e.effects.len());
+        assert_eq!(r.normal.len(), e.effects.len());
+        assert_eq!(r.lenth_flags.len(), e.effects.len());
+    }
+
+    #[test]
+    fn chosen_model_is_fitted_with_everything_drawn_from_it() {
+        use crate::project::{Edit, History};
+        use twofold_core::predict::Goal;
+        let mut h = History::new(demo_project());
+        h.apply(Edit::SetTerms {
+            response: 0,
+            terms: vec!["A".into(), "B".into(), "C".into(), "AB".into()],
+        })
+        .unwrap();
+        let project = h.project();
+        let r = Report::build(project, h.revision(), 0, &project.responses[0].model);
+        assert!(r.terms_given());
+        let fit = r.chosen_fit().unwrap();
+        assert_eq!(fit.runs.len(), 17, "the missing run is left out");
+        let b = fit
+            .coefficient(Term::parse("AB", 4).unwrap())
+            .unwrap()
+            .estimate;
+        assert!((b - 6.0).abs() < 1.5, "{b}");
+        assert!(r.equation_natural.is_ok());
+        assert_eq!(r.diagnostics.as_ref().unwrap().runs.len(), 17);
+        assert_eq!(r.in_run_order.as_ref().unwrap().len(), 17);
+        assert_eq!(r.interactions.as_ref().unwrap().len(), 6);
+        assert!(r.box_cox.is_ok());
+        // The terms were given, but the data still carry pure error: the curvature test uses it.
+        assert_eq!(r.error_basis, ErrorBasis::PureError);
+        let c = r.curvature.unwrap();
+        assert_eq!((c.basis, c.df_error), (ErrorBasis::PureError, 1));
+        let centre = r.predict(&[0.0; 4], 0.95).unwrap();
+        assert!((centre.value - 60.0).abs() < 2.0, "{}", centre.value);
+        let best = r.best_settings(Goal::Maximise).unwrap();
+        assert_eq!(best.settings[0], Some(1.0));
+        assert_eq!(best.settings[1], Some(1.0));
+    }
+
+    #[test]
+    fn bad_model_term_is_reported() {
+        let p = demo_project();
+        let model = ModelSettings {
+            terms: vec!["AZ".into()],
+            ..ModelSettings::default()
+        };
+        let r = Report::build(&p, 1, 0, &model);
+        assert!(
+            matches!(r.stopped, Some(ReportError::Term(_))),
+            "{:?}",
+            r.stopped
+        );
+        assert!(r.fit.is_err());
+        assert!(r.chosen_fit().unwrap_err().contains("model term"));
+    }
+
+    #[test]
+    fn empty_sheet_says_what_to_do() {
+        let mut p = demo_project();
+        p.runs.clear();
+        let r = Report::build(&p, 1, 0, &ModelSettings::default());
+        assert_eq!(r.stopped, Some(ReportError::NoRuns));
+        assert_eq!(
+            r.effects.as_ref().unwrap_err(),
+            "there are no runs yet: choose a design first"
+        );
     }
 }

@@ -24,7 +24,9 @@
 
 use std::collections::BTreeSet;
 
-use twofold_core::anova::{ModelFit, ModelSpec, Source, f_upper_p, fit_model, hierarchical_closure};
+use twofold_core::anova::{
+    ModelFit, ModelSpec, Source, f_upper_p, fit_model, hierarchical_closure,
+};
 use twofold_core::data::Observations;
 use twofold_core::effects::EffectTable;
 use twofold_core::lenth::{Lenth, Significance};

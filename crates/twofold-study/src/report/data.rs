@@ -279,7 +279,8 @@ mod tests {
             let d = response_data(&p, index, ResponseTransform::None).unwrap();
             assert_eq!(d.raw.levels(), from_table.levels());
             assert_eq!(d.raw.blocks(), from_table.blocks());
-            let bits = |v: &[Option<f64>]| v.iter().map(|x| x.map(f64::to_bits)).collect::<Vec<_>>();
+            let bits =
+                |v: &[Option<f64>]| v.iter().map(|x| x.map(f64::to_bits)).collect::<Vec<_>>();
             assert_eq!(bits(d.raw.response()), bits(from_table.response()));
         }
     }

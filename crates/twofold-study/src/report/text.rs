@@ -156,11 +156,7 @@ pub fn report_text(r: &Report) -> Result<String, String> {
     } else {
         labels(&m.terms).join(" + ")
     };
-    let _ = writeln!(
-        s,
-        "\nModel: {model_terms} ({})",
-        choice.selection.words()
-    );
+    let _ = writeln!(s, "\nModel: {model_terms} ({})", choice.selection.words());
     for note in &choice.notes {
         let _ = writeln!(s, "  note: {note}");
     }

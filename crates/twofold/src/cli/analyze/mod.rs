@@ -22,8 +22,8 @@ mod args;
 
 use std::io::Write;
 
-use twofold_core::effects::EffectsError;
 use twofold_core::anova::FitError;
+use twofold_core::effects::EffectsError;
 use twofold_core::term::Term;
 use twofold_core::transform::TransformError;
 use twofold_study::project::{ModelSettings, Project};
@@ -185,7 +185,9 @@ fn report_csv(path: &std::path::Path, a: &AnalyzeArgs) -> Result<Report, String>
         .file_stem()
         .map_or_else(String::new, |s| s.to_string_lossy().into_owned());
     let project = twofold_study::report::project_from_coded(&table, &name);
-    build(&project, index, &model, |e| report_message(e, &table, &response))
+    build(&project, index, &model, |e| {
+        report_message(e, &table, &response)
+    })
 }
 
 /// Reads a project file and builds the report of one response the way the window does: the
