@@ -200,6 +200,9 @@ impl Derived {
     }
 }
 
+/// Where a worker thread hands over a finished report.
+type ReportReceiver = Receiver<Arc<Report>>;
+
 /// The analysis of one response, computed once per (revision, response) when an analysis step
 /// needs it. In the window it runs on a worker thread, because a large sheet with few values can
 /// take long, and the sheet must stay responsive while the engineer types; the last finished
@@ -207,7 +210,7 @@ impl Derived {
 #[derive(Default)]
 struct AnalysisSlot {
     results: Option<Arc<Report>>,
-    pending: Option<((u64, usize), Receiver<Arc<Report>>)>,
+    pending: Option<((u64, usize), ReportReceiver)>,
     /// The shared analysis cache: going back with undo finds the earlier analysis there. Only the
     /// one worker (or, in tests, the frame) locks it, never the drawing.
     cache: Arc<Mutex<ReportCache>>,

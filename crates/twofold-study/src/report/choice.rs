@@ -138,7 +138,7 @@ impl PureError {
     /// F and its upper-tail p of a one-degree-of-freedom sum of squares against this error;
     /// `None`s when the pure error is zero.
     pub fn test(&self, ss: f64) -> (Option<f64>, Option<f64>) {
-        if !(self.ms > 0.0) {
+        if self.ms.is_nan() || self.ms <= 0.0 {
             return (None, None);
         }
         let f = ss / self.ms;
