@@ -13,7 +13,7 @@ use twofold_core::alias::alias_report;
 use twofold_core::anova::Source;
 use twofold_core::design::FractionalDesign;
 use twofold_core::ofat;
-use twofold_core::predict::{DEFAULT_CONFIDENCE, Goal, best_settings};
+use twofold_core::predict::Goal;
 use twofold_core::term::{LETTERS, Term};
 
 use super::input::{
@@ -233,8 +233,8 @@ pub fn summary_input(project: &Project, results: &Report, options: &BuildOptions
         }
     });
 
-    let best = fit.and_then(|fit| {
-        let o = best_settings(fit, options.goal, &results.transform, DEFAULT_CONFIDENCE).ok()?;
+    let best = fit.and_then(|_| {
+        let o = results.best_settings(options.goal).ok()?;
         let settings = o
             .settings
             .iter()
