@@ -19,5 +19,7 @@ mod design_tables;
 mod effects_examples;
 /// Published minimum-aberration word-length patterns reproduced by the search.
 mod min_aberration;
+/// One report behind the window, the summary page and `analyze`; the default model choice.
+mod one_report;
 /// Coefficients, sums of squares, PRESS, leverage and Cook's distance against statsmodels fixtures.
 mod statsmodels_fixtures;

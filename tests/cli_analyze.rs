@@ -481,19 +481,19 @@ fn project_file_gives_the_same_numbers_as_the_window() {
         terms,
         ..Default::default()
     };
-    let mut cache = twofold_study::analysis::AnalysisCache::new();
+    let mut cache = twofold_study::report::ReportCache::new();
     let pane = cache.get_with(&project, 1, 0, &settings);
-    let effects = &pane.effects.as_ref().unwrap().table.effects;
+    let effects = &pane.effects.as_ref().unwrap().effects;
     let cli_effects = j["effects"].as_array().unwrap();
     assert_eq!(cli_effects.len(), effects.len());
     for (c, e) in cli_effects.iter().zip(effects) {
         assert_eq!(c["term"], e.term.label());
         same(c["effect"].as_f64().unwrap(), e.effect);
     }
-    let (lenth, _) = pane.effects.as_ref().unwrap().lenth.as_ref().unwrap();
+    let lenth = pane.lenth.as_ref().unwrap();
     same(j["lenth"]["pse"].as_f64().unwrap(), lenth.pse);
     same(j["lenth"]["me"].as_f64().unwrap(), lenth.me);
-    let model = &pane.model.as_ref().unwrap().fit;
+    let model = pane.fit.as_ref().unwrap();
     let coefs: Vec<f64> = model.coefficients.iter().map(|c| c.estimate).collect();
     let cli_coefs: Vec<f64> = j["model"]["coefficients"]
         .as_array()

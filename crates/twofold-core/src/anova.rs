@@ -515,7 +515,10 @@ pub(crate) fn t_two_sided_p(t: f64, df: usize) -> Option<f64> {
 
 /// Upper-tail p-value of F with (`d1`, `d2`) degrees of freedom:
 /// `P(F > f) = I_{d2/(d2 + d1 f)}(d2/2, d1/2)` (Abramowitz & Stegun 1964, 26.6.2; from memory).
-pub(crate) fn f_upper_p(f: f64, d1: usize, d2: usize) -> Option<f64> {
+/// `None` for zero degrees of freedom or an F that is not a finite non-negative number. Public so
+/// that a test against another error mean square (e.g. pure error, Montgomery's Example 6-6)
+/// uses the same distribution as the ANOVA table.
+pub fn f_upper_p(f: f64, d1: usize, d2: usize) -> Option<f64> {
     if d1 == 0 || d2 == 0 || !f.is_finite() || f < 0.0 {
         return None;
     }

@@ -7,19 +7,18 @@
 //!
 //! - `project`: plain data plus the edits that change it (undoable), validation, persistence,
 //!   recovery and recent files.
-//! - `analysis`: the core's results for one response, cached per data revision; `results` is
-//!   their digest in words and counts.
+//! - `report`: the one analysis report of a response (built by `Report::build`, cached per data
+//!   revision), rendered by the window, the summary page and `twofold analyze` (text and JSON).
 //! - `export`: the one-page summary and the printable run sheet (SVG, PNG, PDF).
 //! - `interchange`: CSV, clipboard text and the spreadsheet formula guard.
 //! - `files`: the one atomic file writer.
 //! - `jobs`: work on a background thread with progress, cancel and panics caught.
 //! - `numbers`: one rule for writing numbers and choosing axis ticks.
 
-pub mod analysis;
 pub mod export;
 pub mod files;
 pub mod interchange;
 pub mod jobs;
 pub mod numbers;
 pub mod project;
-pub mod results;
+pub mod report;

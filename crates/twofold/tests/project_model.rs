@@ -3,11 +3,11 @@
 
 use std::time::{Duration, Instant};
 
-use twofold_study::analysis::AnalysisCache;
 use twofold_study::project::{
     Edit, History, RecoveryDebouncer, RecoveryStore, RunStatus, demo_project, load_project,
     save_project,
 };
+use twofold_study::report::ReportCache;
 
 #[test]
 fn bench_loop_edit_save_reopen() {
@@ -47,14 +47,14 @@ fn bench_loop_edit_save_reopen() {
     assert_eq!(&reopened, h.project());
 
     // The analysis sees the new value, the exclusion and the demo's model A + B + AB with C added.
-    let mut cache = AnalysisCache::new();
+    let mut cache = ReportCache::new();
     let a = cache.get(h.project(), h.revision(), 0);
     let data = a.data.as_ref().unwrap();
     assert_eq!(data.excluded, vec![0]);
     assert!(data.missing.is_empty());
-    let model = a.model.as_ref().unwrap();
-    assert_eq!(model.fit.terms.len(), 4);
-    assert_eq!(model.fit.runs.len(), 17);
+    let fit = a.fit.as_ref().unwrap();
+    assert_eq!(fit.terms.len(), 4);
+    assert_eq!(fit.runs.len(), 17);
 }
 
 #[test]

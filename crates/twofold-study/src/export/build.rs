@@ -1,7 +1,9 @@
 //! From the project and the window's analysis results to a [`SummaryInput`].
 //!
-//! The numbers come from [`ResponseResults`], the same value the analysis panes draw, so the
-//! page and the window cannot disagree: this module only selects, orders and labels. The best
+//! The numbers come from the response's [`Report`], the same value the analysis panes draw and
+//! `twofold analyze` writes, so the page and the window cannot disagree: this module only
+//! selects, orders and labels. With no terms chosen the page shows the report's default model
+//! choice and says how it was made and which error the tests use. The best
 //! settings are computed by the core's `best_settings` exactly as the prediction pane does.
 
 use std::path::Path;
@@ -11,7 +13,7 @@ use twofold_core::alias::alias_report;
 use twofold_core::anova::Source;
 use twofold_core::design::FractionalDesign;
 use twofold_core::ofat;
-use twofold_core::predict::{DEFAULT_CONFIDENCE, Goal, best_settings};
+use twofold_core::predict::Goal;
 use twofold_core::term::{LETTERS, Term};
 
 use super::input::{
@@ -22,7 +24,7 @@ use super::input::{
 use super::{ExportError, ExportReport, Paper};
 use crate::numbers;
 use crate::project::{BlockChoice, Factor, FactorKind, Project, ResponseTransform, Severity};
-use crate::results::ResponseResults;
+use crate::report::Report;
 
 /// Choices for a summary that are not stored in the project.
 #[derive(Debug, Clone, PartialEq)]
@@ -111,11 +113,7 @@ fn latest_entry_date(project: &Project) -> Option<String> {
 }
 
 /// Fills the summary of response `results.response` of `project` from the window's results.
-pub fn summary_input(
-    project: &Project,
-    results: &ResponseResults,
-    options: &BuildOptions,
-) -> SummaryInput {
+pub fn summary_input(project: &Project, results: &Report, options: &BuildOptions) -> SummaryInput {
     let response = project.responses.get(results.response);
     let transform = response.map_or(ResponseTransform::None, |r| r.model.transform);
     let mut warnings = Vec::new();
@@ -146,7 +144,9 @@ pub fn summary_input(
     let mut effects = Vec::new();
     let mut half = Vec::new();
     if let Ok(table) = &results.effects {
-        let in_model = |term: Term| results.in_model(term) || results.fitted(term);
+        let in_model = |term: Term| {
+            results.in_model(term) || results.fit.as_ref().is_ok_and(|f| f.terms.contains(&term))
+        };
         for e in &table.effects {
             let chain_in_model = std::iter::once(e.term)
                 .chain(e.aliases.iter().map(|a| a.term))
@@ -207,6 +207,7 @@ pub fn summary_input(
         adj_r_squared: fit.adj_r2,
         pred_r_squared: fit.pred_r2,
         std_dev: fit.sigma,
+        tests_note: tests_note(results),
     });
     if let Some(fit) = fit
         && !fit.added_for_hierarchy.is_empty()
@@ -233,8 +234,8 @@ pub fn summary_input(
         }
     });
 
-    let best = fit.and_then(|fit| {
-        let o = best_settings(fit, options.goal, &results.transform, DEFAULT_CONFIDENCE).ok()?;
+    let best = fit.and_then(|_| {
+        let o = results.best_settings(options.goal).ok()?;
         let settings = o
             .settings
             .iter()
@@ -358,11 +359,7 @@ fn capitalised(s: &str) -> String {
     }
 }
 
-fn design_facts(
-    project: &Project,
-    results: &ResponseResults,
-    warnings: &mut Vec<String>,
-) -> DesignFacts {
+fn design_facts(project: &Project, results: &Report, warnings: &mut Vec<String>) -> DesignFacts {
     let d = &project.design;
     let k = project.factors.len();
     let generators: Vec<String> = d
@@ -449,11 +446,28 @@ fn design_facts(
     facts
 }
 
+/// One sentence under the ANOVA: how the terms were chosen and which error the tests use.
+fn tests_note(results: &Report) -> String {
+    let how = match &results.choice {
+        Ok(c) if !results.terms_given() => {
+            let list: Vec<String> = c.terms.iter().map(|t| t.label()).collect();
+            format!(
+                "No terms chosen in the project: the model shown is {} ({}). ",
+                if list.is_empty() {
+                    "the mean only".to_string()
+                } else {
+                    list.join(" + ")
+                },
+                c.selection.words()
+            )
+        }
+        _ => String::new(),
+    };
+    format!("{how}{}", results.error_basis.sentence())
+}
+
 /// The interactions to plot: those in the fitted model, else every pair; strongest first.
-fn interaction_panels(
-    project: &Project,
-    results: &ResponseResults,
-) -> (Vec<InteractionPanel>, String) {
+fn interaction_panels(project: &Project, results: &Report) -> (Vec<InteractionPanel>, String) {
     let strength = |t: Term| {
         results
             .effects
@@ -557,7 +571,7 @@ pub fn run_sheet_input(project: &Project, date: Option<String>) -> super::run_sh
 /// dialog; for a worker thread use [`super::ExportJob::summary`] with [`summary_input`]).
 pub fn export_summary(
     project: &Project,
-    results: &ResponseResults,
+    results: &Report,
     path: &Path,
     paper: Paper,
     options: &BuildOptions,
@@ -584,7 +598,7 @@ mod tests {
     #[test]
     fn numbers_are_the_windows_numbers() {
         let p = demo_with_model();
-        let r = ResponseResults::compute(&p, 0);
+        let r = Report::for_response(&p, 0, 0);
         let input = summary_input(&p, &r, &BuildOptions::default());
         let table = r.effects.as_ref().unwrap();
         // Every effect of the window's table appears once, largest first.
@@ -637,17 +651,42 @@ mod tests {
     fn without_a_model_the_strongest_interactions_are_plotted() {
         let mut p = demo_project();
         p.responses[0].model.terms.clear();
-        let r = ResponseResults::compute(&p, 0);
+        let r = Report::for_response(&p, 0, 0);
         let input = summary_input(&p, &r, &BuildOptions::default());
-        assert!(input.anova.is_none());
-        assert_eq!(input.interactions.len(), 6);
+        // With no terms chosen the page shows the default choice (tested against the demo's
+        // pure error from its two centre points: A, B and AB) and says so.
+        let anova = input.anova.as_ref().unwrap();
+        assert!(
+            anova.tests_note.starts_with("No terms chosen"),
+            "{}",
+            anova.tests_note
+        );
+        assert!(
+            anova.tests_note.contains("A + B + AB"),
+            "{}",
+            anova.tests_note
+        );
+        assert!(
+            anova.tests_note.contains("pure error"),
+            "{}",
+            anova.tests_note
+        );
         assert_eq!(
             input.interactions[0].term, "AB",
             "the demo's one real interaction"
         );
+        // Without any interaction in the data's default model, every pair is offered.
+        let mut q = p.clone();
+        for run in &mut q.runs {
+            let y = f64::from(run.levels[0]);
+            run.values[0].text = format!("{}", 50.0 + 10.0 * y);
+        }
+        q.runs[16].values[0].text = "50.5".into();
+        let rq = Report::for_response(&q, 0, 0);
+        let iq = summary_input(&q, &rq, &BuildOptions::default());
+        assert_eq!(iq.interactions.len(), 6);
         assert!(
-            input
-                .interaction_note
+            iq.interaction_note
                 .contains("No interaction is in the model")
         );
     }
@@ -664,7 +703,7 @@ mod tests {
     #[test]
     fn the_date_never_comes_from_the_clock() {
         let p = demo_project();
-        let r = ResponseResults::compute(&p, 0);
+        let r = Report::for_response(&p, 0, 0);
         let given = summary_input(
             &p,
             &r,
@@ -682,7 +721,7 @@ mod tests {
         q.runs[5].entered_at = Some("2025-03-09T08:00:00".into());
         let derived = summary_input(
             &q,
-            &ResponseResults::compute(&q, 0),
+            &Report::for_response(&q, 0, 0),
             &BuildOptions::default(),
         );
         assert_eq!(derived.date, "values entered up to 2025-03-09");
@@ -703,7 +742,7 @@ mod tests {
     fn same_project_same_svg_bytes() {
         let p = demo_with_model();
         let make = || {
-            let r = ResponseResults::compute(&p, 0);
+            let r = Report::for_response(&p, 0, 0);
             super::super::summary_svg(&summary_input(&p, &r, &BuildOptions::default()), Paper::A4)
         };
         assert_eq!(make(), make());

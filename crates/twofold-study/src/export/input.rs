@@ -214,6 +214,9 @@ pub struct AnovaTable {
     pub pred_r_squared: Option<f64>,
     /// Residual standard deviation.
     pub std_dev: Option<f64>,
+    /// How the terms were chosen and which error the tests use, in one sentence.
+    #[serde(default)]
+    pub tests_note: String,
 }
 
 /// The fitted equation in natural units.

@@ -552,6 +552,14 @@ fn anova(svg: &mut Svg, flow: &mut Flow, input: &SummaryInput) {
     if !fit.is_empty() {
         flow.paragraph(svg, &fit.join(",  "), TextStyle::new(sizes::BODY), 2);
     }
+    if !table.tests_note.is_empty() {
+        flow.paragraph(
+            svg,
+            &table.tests_note,
+            TextStyle::new(sizes::SMALL).fill(MUTED),
+            3,
+        );
+    }
 }
 
 fn right_column(svg: &mut Svg, input: &SummaryInput, flow: Flow) {
@@ -846,7 +854,7 @@ mod tests {
             half_normal: (0..31).map(|i| HalfNormalPoint { term: format!("T{i}"), abs_effect: 40.0 / (i as f64 + 1.0), quantile: 2.5 - i as f64 * 0.08, in_model: i < 6 }).collect(),
             interactions: (0..6).map(|i| InteractionPanel { term: format!("A{i}"), x_factor: long.into(), x_levels: ["low setting with words".into(), "high".into()], trace_factor: long.into(), trace_levels: ["a".into(), "b".into()], means: [[Some(1.0 + i as f64), Some(3.0)], [None, Some(-2.0)]] }).collect(),
             interaction_note: String::new(),
-            anova: Some(AnovaTable { rows: (0..40).map(|i| AnovaRow { source: format!("Source {i}"), df: 1, ss: 12345.678, ms: Some(0.00012), f: Some(1e9), p: Some(0.5), emphasis: i == 0 }).collect(), r_squared: Some(0.9), adj_r_squared: Some(0.8), pred_r_squared: None, std_dev: Some(2.0) }),
+            anova: Some(AnovaTable { rows: (0..40).map(|i| AnovaRow { source: format!("Source {i}"), df: 1, ss: 12345.678, ms: Some(0.00012), f: Some(1e9), p: Some(0.5), emphasis: i == 0 }).collect(), r_squared: Some(0.9), adj_r_squared: Some(0.8), pred_r_squared: None, std_dev: Some(2.0), tests_note: String::new() }),
             equation: Some(Equation { text: format!("y = {}", "+ 1.234567*Concentration of the secondary accelerator ".repeat(30)), note: "note".into() }),
             best: Some(BestSettings { goal: "maximise Peel strength".into(), settings: (0..13).map(|i| (format!("{long} {i}"), "supplier with a long name".into())).collect(), predicted: Some(12.5), interval: Some((10.0, 15.0, "95 % prediction interval".into())) }),
             ofat: Some(OfatFacts { ofat_runs: 224, design_runs: 32, explanation: "x ".repeat(200) }),

@@ -4,11 +4,10 @@
 use std::path::PathBuf;
 use std::sync::{Arc, Mutex};
 
-use twofold_study::analysis::AnalysisCache;
 use twofold_study::export::{BuildOptions, ExportJob};
 use twofold_study::jobs::{Control, Job};
 use twofold_study::project::Project;
-use twofold_study::results::ResponseResults;
+use twofold_study::report::{Report, ReportCache};
 
 use super::{Modal, TwofoldApp};
 
@@ -18,26 +17,25 @@ use super::{Modal, TwofoldApp};
 /// result stays on screen, marked as updating, until the new one arrives.
 #[derive(Default)]
 pub(super) struct AnalysisSlot {
-    pub(super) results: Option<Arc<ResponseResults>>,
-    pending: Option<((u64, usize), Job<ResponseResults>)>,
+    pub(super) results: Option<Arc<Report>>,
+    pending: Option<((u64, usize), Job<Arc<Report>>)>,
     /// The shared analysis cache: going back with undo finds the earlier analysis there. Only the
     /// one worker (or, in tests, the frame) locks it, never the drawing.
-    pub(super) cache: Arc<Mutex<AnalysisCache>>,
+    pub(super) cache: Arc<Mutex<ReportCache>>,
 }
 
-/// The digest of `response` at `revision`, from the analysis cache.
+/// The report of `response` at `revision`, from the report cache.
 fn cached_results(
-    cache: &Mutex<AnalysisCache>,
+    cache: &Mutex<ReportCache>,
     project: &Project,
     revision: u64,
     response: usize,
-) -> ResponseResults {
+) -> Arc<Report> {
     // A poisoned lock only means an earlier computation panicked; the entries are still sound.
     let mut cache = cache
         .lock()
         .unwrap_or_else(std::sync::PoisonError::into_inner);
-    let analysis = cache.get(project, revision, response);
-    ResponseResults::from_analysis(project, &analysis)
+    cache.get(project, revision, response)
 }
 
 impl AnalysisSlot {
@@ -52,19 +50,13 @@ impl AnalysisSlot {
         ctx: &egui::Context,
     ) -> bool {
         let want = (revision, response);
-        let have = |r: &Option<Arc<ResponseResults>>| {
-            r.as_ref().map(|x| (x.revision, x.response)) == Some(want)
-        };
+        let have =
+            |r: &Option<Arc<Report>>| r.as_ref().map(|x| (x.revision, x.response)) == Some(want);
         if have(&self.results) {
             return true;
         }
         if inline {
-            self.results = Some(Arc::new(cached_results(
-                &self.cache,
-                project,
-                revision,
-                response,
-            )));
+            self.results = Some(cached_results(&self.cache, project, revision, response));
             return true;
         }
         if let Some(((revision, response), job)) = &mut self.pending
@@ -73,9 +65,14 @@ impl AnalysisSlot {
             // A fault in the mathematics must not leave the pane waiting for ever (or restart
             // the same computation again and again): it becomes the shown reason.
             let results = result.unwrap_or_else(|e| {
-                ResponseResults::unavailable(*revision, *response, &e.to_string())
+                Arc::new(Report::unavailable(
+                    project,
+                    *revision,
+                    *response,
+                    &e.to_string(),
+                ))
             });
-            self.results = Some(Arc::new(results));
+            self.results = Some(results);
             self.pending = None;
         }
         if have(&self.results) {

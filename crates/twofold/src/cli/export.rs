@@ -20,7 +20,7 @@ use super::{EXIT_BAD_INPUT, EXIT_FAILURE};
 use twofold_study::export::{self, BuildOptions, Format, Paper};
 use twofold_study::interchange;
 use twofold_study::project::{Project, load_project};
-use twofold_study::results::ResponseResults;
+use twofold_study::report::Report;
 
 /// Usage text printed by `--help`.
 pub const USAGE: &str = "\
@@ -299,7 +299,7 @@ fn execute(request: &Request, project: &Project) -> Result<Vec<String>, (i32, St
         Kind::Summary => {
             let response = response_index(project, request.response.as_deref()).map_err(bad)?;
             check_targets(std::slice::from_ref(&request.out), request.overwrite)?;
-            let results = ResponseResults::compute(project, response);
+            let results = Report::for_response(project, 0, response);
             let options = BuildOptions {
                 date: request.date.clone(),
                 goal: request.goal,

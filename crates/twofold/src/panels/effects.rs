@@ -10,7 +10,7 @@ use super::{Command, Pane, View};
 use twofold_core::lenth::Significance;
 use twofold_core::term::Term;
 use twofold_study::project::{Edit, Project};
-use twofold_study::results::{ResponseResults, WarningKind};
+use twofold_study::report::{Report, WarningKind};
 
 /// View state of the effects pane: the plot data built once per data revision.
 #[derive(Debug, Default)]
@@ -43,7 +43,7 @@ pub fn term_names(project: &Project, term: Term) -> String {
     names.join(" × ")
 }
 
-fn build(view: &View<'_>, res: &ResponseResults) -> Option<Built> {
+fn build(view: &View<'_>, res: &Report) -> Option<Built> {
     let table = res.effects.as_ref().ok()?;
     let mut order: Vec<usize> = (0..table.effects.len()).collect();
     order.sort_by(|&a, &b| {

@@ -11,7 +11,7 @@ use super::{Command, Pane, View};
 use twofold_core::means::InteractionMeans;
 use twofold_core::term::{LETTERS, Term};
 use twofold_study::project::Project;
-use twofold_study::results::ResponseResults;
+use twofold_study::report::Report;
 
 /// Which pairs get an interaction plot.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
@@ -50,14 +50,14 @@ fn level_labels(project: &Project, f: usize) -> [String; 2] {
     }
 }
 
-/// The fitted model's cells of every pair, when a model is fitted: the one place this pane reads
-/// them from the analysis.
-fn model_cells_of(res: &ResponseResults) -> Option<&[InteractionMeans]> {
-    res.fit.as_ref().ok()?;
-    res.model_cells.as_deref().ok()
+/// The chosen model's cells of every pair, when a model is chosen and fitted: the one place this
+/// pane reads them from the report.
+fn model_cells_of(res: &Report) -> Option<&[InteractionMeans]> {
+    res.chosen_fit().ok()?;
+    res.interactions.as_deref().ok()
 }
 
-fn build(view: &View<'_>, res: &ResponseResults) -> Built {
+fn build(view: &View<'_>, res: &Report) -> Built {
     let p = view.project;
     let mains: Vec<MainEffectPlot> = res
         .main_means

@@ -119,7 +119,7 @@ pub struct View<'a> {
     pub response: Option<usize>,
     /// Analysis of that response (computed once per change, only while an analysis step shows);
     /// possibly of an earlier revision while the new one is computed.
-    pub results: Option<&'a twofold_study::results::ResponseResults>,
+    pub results: Option<&'a twofold_study::report::Report>,
     /// Whether `results` are of the current revision.
     pub results_current: bool,
     /// Colours of the current theme.
@@ -134,7 +134,7 @@ impl<'a> View<'a> {
     pub fn results_or_explain(
         &self,
         ui: &mut egui::Ui,
-    ) -> Option<&'a twofold_study::results::ResponseResults> {
+    ) -> Option<&'a twofold_study::report::Report> {
         if self.results.is_none() {
             widgets::not_available(
                 ui,
@@ -146,7 +146,7 @@ impl<'a> View<'a> {
     }
 
     /// Name of the response an analysis is of ("" when it no longer exists).
-    pub fn response_name(&self, res: &twofold_study::results::ResponseResults) -> &'a str {
+    pub fn response_name(&self, res: &twofold_study::report::Report) -> &'a str {
         self.project
             .responses
             .get(res.response)

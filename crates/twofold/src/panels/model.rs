@@ -8,7 +8,7 @@ use super::widgets::{not_available, warning_box};
 use super::{Command, Pane, View};
 use twofold_core::anova::Source;
 use twofold_study::project::{Edit, ResponseTransform};
-use twofold_study::results::WarningKind;
+use twofold_study::report::WarningKind;
 
 /// View state of the model pane (none: everything shown is in the analysis cache).
 #[derive(Debug, Default)]
@@ -92,7 +92,7 @@ impl Pane for ModelPane {
                 terms.join(", ")
             }
         ));
-        let fit = match &res.fit {
+        let fit = match res.chosen_fit() {
             Ok(f) => f,
             Err(why) => {
                 not_available(ui, &pal, &format!("No model yet: {why}."));
@@ -104,6 +104,19 @@ impl Pane for ModelPane {
             ui.weak(format!(
                 "Added to keep the model hierarchical: {}.",
                 added.join(", ")
+            ));
+        }
+        ui.weak(res.error_basis.sentence());
+        if let Some(c) = &res.curvature {
+            ui.weak(format!(
+                "Curvature test against {} ({} df): F {}, p {}.",
+                match c.basis {
+                    twofold_study::report::ErrorBasis::PureError => "pure error",
+                    _ => "the residual",
+                },
+                c.df_error,
+                opt(c.f, 4),
+                opt(c.p, 3)
             ));
         }
         for w in res.warnings_of(&[WarningKind::Data, WarningKind::Model]) {

@@ -8,9 +8,7 @@ use super::chart::fmt_num;
 use super::run_sheet::natural_setting;
 use super::widgets::{not_available, number_field, warning_box};
 use super::{Command, Pane, View};
-use twofold_core::predict::{
-    DEFAULT_CONFIDENCE, Goal, Optimum, Prediction, best_settings, predict,
-};
+use twofold_core::predict::{DEFAULT_CONFIDENCE, Goal, Optimum, Prediction};
 use twofold_core::term::LETTERS;
 use twofold_study::project::{FactorKind, Project};
 
@@ -76,7 +74,7 @@ impl Pane for PredictionPane {
         let Some(res) = view.results_or_explain(ui) else {
             return;
         };
-        let fit = match &res.fit {
+        let fit = match res.chosen_fit() {
             Ok(f) => f,
             Err(why) => {
                 not_available(ui, &pal, &format!("Not available yet: {why}."));
@@ -155,7 +153,7 @@ impl Pane for PredictionPane {
         let stale = !matches!(&self.prediction,
             Some((rev, r, point, _)) if *rev == res.revision && *r == res.response && *point == self.coded);
         if stale {
-            let p = predict(fit, &self.coded, DEFAULT_CONFIDENCE).map_err(|e| e.to_string());
+            let p = res.predict(&self.coded, DEFAULT_CONFIDENCE);
             self.prediction = Some((res.revision, res.response, self.coded.clone(), p));
         }
         ui.add_space(8.0);
@@ -198,8 +196,7 @@ impl Pane for PredictionPane {
                 .clicked()
                 && let Some(goal) = goal
             {
-                let r = best_settings(fit, goal, &res.transform, DEFAULT_CONFIDENCE)
-                    .map_err(|e| e.to_string());
+                let r = res.best_settings(goal);
                 self.optimum = Some((res.revision, res.response, r));
             }
         });
@@ -233,7 +230,7 @@ fn prediction_card(
     ui: &mut Ui,
     view: &View<'_>,
     p: &Prediction,
-    res: &twofold_study::results::ResponseResults,
+    res: &twofold_study::report::Report,
     name: &str,
     unit: &str,
 ) {

@@ -7,7 +7,7 @@ use super::plots::{ResidualKind, ResidualPlot};
 use super::widgets::{not_available, tiles};
 use super::{Command, Pane, View};
 use twofold_core::boxcox::BoxCox;
-use twofold_study::results::ResponseResults;
+use twofold_study::report::Report;
 
 /// View state of the residuals pane: the three plots built once per data revision.
 #[derive(Debug, Default)]
@@ -18,15 +18,16 @@ pub struct ResidualsPane {
 /// Studentised residuals beyond this many standard deviations are marked (common practice).
 const LIMIT_SD: f64 = 3.0;
 
-/// The Box–Cox profile of the shown results, or why there is none: the one place this pane reads
-/// it from the analysis.
-fn box_cox_of(res: &ResponseResults) -> Result<&BoxCox, &str> {
-    res.box_cox.as_ref().map_err(String::as_str)
+/// The Box–Cox profile of the chosen model, or why there is none: the one place this pane reads
+/// it from the report.
+fn box_cox_of(res: &Report) -> Result<&BoxCox, String> {
+    res.chosen_fit()?;
+    res.box_cox.as_ref().map_err(Clone::clone)
 }
 
-fn build(res: &ResponseResults) -> Option<[ResidualPlot; 3]> {
+fn build(res: &Report) -> Option<[ResidualPlot; 3]> {
     let d = res.diagnostics.as_ref()?;
-    let fit = res.fit.as_ref().ok()?;
+    let fit = res.chosen_fit().ok()?;
     let limit = fit.sigma.map(|s| LIMIT_SD * s);
     let run_no = |table_run: usize| {
         res.run_order
@@ -72,7 +73,7 @@ impl Pane for ResidualsPane {
         let Some(res) = view.results_or_explain(ui) else {
             return;
         };
-        if let Err(why) = &res.fit {
+        if let Err(why) = res.chosen_fit() {
             not_available(ui, &pal, &format!("Not available yet: {why}."));
             return;
         }
@@ -84,7 +85,7 @@ impl Pane for ResidualsPane {
             not_available(ui, &pal, "Not available yet: the fit has no residuals.");
             return;
         };
-        if res.fit.as_ref().is_ok_and(|f| f.df_residual == 0) {
+        if res.chosen_fit().is_ok_and(|f| f.df_residual == 0) {
             not_available(
                 ui,
                 &pal,

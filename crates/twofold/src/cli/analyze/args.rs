@@ -18,7 +18,9 @@ options:
   --csv FILE          the coded table to analyse
   --response NAME     the response column (default: the first one)
   --terms LIST        model terms, comma-separated, e.g. A,C,D,AC,AD
-                      (default: the effects beyond Lenth's margin of error, kept hierarchical)
+                      (default: with replicated runs or centre points, the terms significant
+                      against pure error at 5 %; otherwise the effects beyond Lenth's margin
+                      of error; kept hierarchical)
   --transform T       none, ln, log10, sqrt, inverse or power:L (e.g. power:0.5)
   --json              print the results as one JSON object
   -h, --help          print this help
@@ -31,7 +33,7 @@ pub struct AnalyzeArgs {
     pub input: Input,
     /// The response column; `None` = the first.
     pub response: Option<String>,
-    /// Model terms as typed; `None` = chosen by Lenth's method.
+    /// Model terms as typed; `None` = the report's default choice.
     pub terms: Option<Vec<String>>,
     /// Transform of the response; `None` = none for a table, the project's choice for a project.
     pub transform: Option<Transform>,

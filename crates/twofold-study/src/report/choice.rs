@@ -1,0 +1,348 @@
+//! Which terms the model holds, and which error the tests use.
+//!
+//! # Terms the engineer chose
+//! Each label is parsed; a term aliased with the mean cannot be fitted and is refused; a term
+//! that is an alias of another chain's representative is fitted as that representative (with a
+//! note). With the model set hierarchical the fit adds the missing parents.
+//!
+//! # The default choice (no terms chosen)
+//! One rule for the window's suggestion, the summary page and `twofold analyze`:
+//!
+//! - **The data carry pure error** (runs with identical settings in the same block: replicated
+//!   factorial runs, or two or more centre points): every estimable effect is fitted together with
+//!   the curvature column, and each term's adjusted sum of squares is tested against the pure-error
+//!   mean square, `F = SS_term / MS_PE` on (1, df_PE) degrees of freedom; the terms with
+//!   `p < 0.05` are chosen and closed under hierarchy. This is the analysis of Montgomery,
+//!   *Design and Analysis of Experiments*, Example 6-6 (8th ed.; a 2^2 with five centre points),
+//!   where effects and curvature are judged against the error the centre points estimate.
+//! - **No pure error** (an unreplicated design): the effects beyond Lenth's margin of error,
+//!   closed under hierarchy (Lenth 1989, Technometrics 31, 469–473); when Lenth's method is
+//!   undefined (fewer than three effects), the main effects.
+//!
+//! The curvature test of the report uses the pure-error mean square whenever the data carry pure
+//! error, the residual otherwise ([`CurvatureTest`]).
+
+use std::collections::BTreeSet;
+
+use twofold_core::anova::{
+    ModelFit, ModelSpec, Source, f_upper_p, fit_model, hierarchical_closure,
+};
+use twofold_core::data::Observations;
+use twofold_core::effects::EffectTable;
+use twofold_core::lenth::{Lenth, Significance};
+use twofold_core::term::Term;
+
+use super::ReportError;
+
+/// Significance level of the pure-error tests that choose the default terms (Montgomery's 5 %).
+pub const TERM_ALPHA: f64 = 0.05;
+
+/// How the model terms were chosen.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[non_exhaustive]
+pub enum Selection {
+    /// Chosen by the engineer (in the project or with `--terms`).
+    Given,
+    /// Terms significant against pure error at [`TERM_ALPHA`], closed under hierarchy.
+    PureErrorTests,
+    /// The effects beyond Lenth's margin of error, closed under hierarchy (no pure error).
+    LenthMargin,
+    /// Lenth's method was undefined and there is no pure error, so the main effects were fitted.
+    MainEffects,
+}
+
+impl Selection {
+    /// The key written in JSON.
+    pub fn key(self) -> &'static str {
+        match self {
+            Selection::Given => "given",
+            Selection::PureErrorTests => "pure_error_tests_hierarchical",
+            Selection::LenthMargin => "beyond_lenth_me_hierarchical",
+            Selection::MainEffects => "main_effects_lenth_undefined",
+        }
+    }
+
+    /// In words, for the text report, the page and the window.
+    pub fn words(self) -> &'static str {
+        match self {
+            Selection::Given => "as given",
+            Selection::PureErrorTests => {
+                "terms significant against pure error at the 5 % level, kept hierarchical"
+            }
+            Selection::LenthMargin => "effects beyond Lenth's ME, kept hierarchical",
+            Selection::MainEffects => "main effects, because Lenth's method is undefined",
+        }
+    }
+}
+
+/// Which error the tests of a report use.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[non_exhaustive]
+pub enum ErrorBasis {
+    /// The pure-error mean square of replicated runs or centre points.
+    PureError,
+    /// The residual mean square of the fitted model (no pure error in the data).
+    Residual,
+    /// Lenth's pseudo standard error of the effects (unreplicated design, default terms).
+    LenthPse,
+}
+
+impl ErrorBasis {
+    /// The key written in JSON (`"error_basis"`).
+    pub fn key(self) -> &'static str {
+        match self {
+            ErrorBasis::PureError => "pure_error",
+            ErrorBasis::Residual => "residual",
+            ErrorBasis::LenthPse => "lenth_pse",
+        }
+    }
+
+    /// One line in words, shown in every front end.
+    pub fn sentence(self) -> &'static str {
+        match self {
+            ErrorBasis::PureError => {
+                "Tests use pure error (replicated runs or centre points): term choice and curvature are judged against it."
+            }
+            ErrorBasis::Residual => {
+                "Tests use the residual of the fitted model (the data carry no pure error)."
+            }
+            ErrorBasis::LenthPse => {
+                "Tests use Lenth's pseudo standard error of the effects (unreplicated design, no pure error)."
+            }
+        }
+    }
+}
+
+/// The pure error of the data: runs with identical settings in the same block.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct PureError {
+    /// Sum of squares.
+    pub ss: f64,
+    /// Degrees of freedom.
+    pub df: usize,
+    /// Mean square `ss / df`.
+    pub ms: f64,
+}
+
+impl PureError {
+    /// The pure error of a fit's ANOVA table, if the data carry any.
+    pub fn of(fit: &ModelFit) -> Option<PureError> {
+        let row = fit.anova_row(Source::PureError)?;
+        (row.df > 0).then(|| PureError {
+            ss: row.ss,
+            df: row.df,
+            ms: row.ss / row.df as f64,
+        })
+    }
+
+    /// F and its upper-tail p of a one-degree-of-freedom sum of squares against this error;
+    /// `None`s when the pure error is zero.
+    pub fn test(&self, ss: f64) -> (Option<f64>, Option<f64>) {
+        if self.ms.is_nan() || self.ms <= 0.0 {
+            return (None, None);
+        }
+        let f = ss / self.ms;
+        (Some(f), f_upper_p(f, 1, self.df))
+    }
+}
+
+/// One term tested against pure error when the default terms are chosen.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct TermTest {
+    /// The term (an alias-chain representative).
+    pub term: Term,
+    /// Its adjusted sum of squares with every estimable effect and curvature fitted.
+    pub ss: f64,
+    /// `ss / MS_PE`.
+    pub f: Option<f64>,
+    /// Upper-tail p of `f` on (1, df_PE).
+    pub p: Option<f64>,
+}
+
+/// The centre-point curvature test of the fitted model, against the report's error.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct CurvatureTest {
+    /// Used runs at the centre.
+    pub centre_runs: usize,
+    /// Fitted corner average at the centre minus the centre-point level.
+    pub factorial_minus_centre: f64,
+    /// Sum of squares on one degree of freedom.
+    pub ss: f64,
+    /// F against the error named by `basis`.
+    pub f: Option<f64>,
+    /// Upper-tail p of `f`.
+    pub p: Option<f64>,
+    /// Degrees of freedom of that error.
+    pub df_error: usize,
+    /// Pure error when the data carry it, the residual otherwise.
+    pub basis: ErrorBasis,
+}
+
+impl CurvatureTest {
+    /// The fit's curvature, tested against `pure` when there is pure error.
+    pub fn of(fit: &ModelFit, pure: Option<&PureError>) -> Option<CurvatureTest> {
+        let c = fit.curvature?;
+        let (f, p, df_error, basis) = match pure {
+            Some(pe) => {
+                let (f, p) = pe.test(c.ss);
+                (f, p, pe.df, ErrorBasis::PureError)
+            }
+            None => (c.f, c.p, fit.df_residual, ErrorBasis::Residual),
+        };
+        Some(CurvatureTest {
+            centre_runs: c.centre_runs,
+            factorial_minus_centre: c.factorial_minus_centre,
+            ss: c.ss,
+            f,
+            p,
+            df_error,
+            basis,
+        })
+    }
+}
+
+/// The terms handed to the fit and how they were found.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ModelChoice {
+    /// Terms to fit (chain representatives), in the order of the trade.
+    pub terms: Vec<Term>,
+    /// How they were chosen.
+    pub selection: Selection,
+    /// Whether the fit adds missing parents (engineer's terms with a hierarchical model).
+    pub hierarchical: bool,
+    /// Terms added to keep a default choice hierarchical (for the engineer's terms the fit's own
+    /// list, [`ModelFit::added_for_hierarchy`], says it).
+    pub added_for_hierarchy: Vec<Term>,
+    /// Notes on the terms in words (e.g. a term fitted as its alias).
+    pub notes: Vec<String>,
+    /// The pure-error tests behind a [`Selection::PureErrorTests`] choice, in effect order.
+    pub tests: Vec<TermTest>,
+}
+
+/// The engineer's terms, mapped to their chain representatives (see the module documentation).
+pub fn given_choice(
+    labels: &[String],
+    factor_count: usize,
+    effects: Option<&EffectTable>,
+    hierarchical: bool,
+) -> Result<ModelChoice, ReportError> {
+    let mut chosen = BTreeSet::new();
+    let mut notes = Vec::new();
+    for label in labels {
+        let t = Term::parse(label, factor_count)?;
+        if t.is_identity() {
+            continue;
+        }
+        let Some(table) = effects else {
+            chosen.insert(t);
+            continue;
+        };
+        if table.aliasing.is_aliased_with_mean(t) {
+            return Err(ReportError::TermAliasedWithMean { term: t.label() });
+        }
+        match table.aliasing.representative_of(t) {
+            Some(rep) if rep.term != t => {
+                notes.push(format!("{t} is fitted as its alias {rep}"));
+                chosen.insert(rep.term);
+            }
+            _ => {
+                chosen.insert(t);
+            }
+        }
+    }
+    Ok(ModelChoice {
+        terms: chosen.into_iter().collect(),
+        selection: Selection::Given,
+        hierarchical,
+        added_for_hierarchy: Vec::new(),
+        notes,
+        tests: Vec::new(),
+    })
+}
+
+/// The default choice (see the module documentation), with the pure error of the data when it
+/// carries any.
+pub fn default_choice(
+    obs: &Observations,
+    effects: &EffectTable,
+    lenth: Option<&Lenth>,
+) -> (ModelChoice, Option<PureError>) {
+    let all: Vec<Term> = effects.effects.iter().map(|e| e.term).collect();
+    let full = fit_model(obs, &ModelSpec::new(all).hierarchical(false)).ok();
+    let pure = full.as_ref().and_then(PureError::of);
+    let mut notes = Vec::new();
+    let mut tests = Vec::new();
+    let (flagged, selection): (Vec<Term>, Selection) = match (&full, &pure) {
+        (Some(fit), Some(pe)) if pe.ms > 0.0 => {
+            for e in &effects.effects {
+                if let Some(row) = fit.anova_row(Source::Term(e.term)) {
+                    let (f, p) = pe.test(row.ss);
+                    tests.push(TermTest {
+                        term: e.term,
+                        ss: row.ss,
+                        f,
+                        p,
+                    });
+                }
+            }
+            let chosen = tests
+                .iter()
+                .filter(|t| t.p.is_some_and(|p| p < TERM_ALPHA))
+                .map(|t| t.term)
+                .collect();
+            (chosen, Selection::PureErrorTests)
+        }
+        _ => {
+            if pure.is_some() {
+                notes.push(
+                    "the replicated runs agree exactly (pure error zero), so Lenth's margins choose the terms"
+                        .to_string(),
+                );
+            }
+            match lenth {
+                Some(l) => (
+                    effects
+                        .effects
+                        .iter()
+                        .filter(|e| l.classify(e.effect) != Significance::WithinMe)
+                        .map(|e| e.term)
+                        .collect(),
+                    Selection::LenthMargin,
+                ),
+                None => (
+                    effects
+                        .effects
+                        .iter()
+                        .filter(|e| e.term.order() == 1)
+                        .map(|e| e.term)
+                        .collect(),
+                    Selection::MainEffects,
+                ),
+            }
+        }
+    };
+    let flagged_set: BTreeSet<Term> = flagged.iter().copied().collect();
+    let mut chosen = BTreeSet::new();
+    let mut added = Vec::new();
+    for t in hierarchical_closure(&flagged) {
+        // A lower-order term may be aliased: fit its chain's representative once.
+        if effects.aliasing.is_aliased_with_mean(t) {
+            continue;
+        }
+        let rep = effects.aliasing.representative_of(t).map_or(t, |r| r.term);
+        if chosen.insert(rep) && !flagged_set.contains(&rep) {
+            added.push(rep);
+        }
+    }
+    (
+        ModelChoice {
+            terms: chosen.into_iter().collect(),
+            selection,
+            hierarchical: false,
+            added_for_hierarchy: added,
+            notes,
+            tests,
+        },
+        pure,
+    )
+}

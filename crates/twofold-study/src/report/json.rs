@@ -1,0 +1,168 @@
+//! A report as one JSON object (the output of `twofold analyze --json`).
+
+use serde_json::{Value, json};
+use twofold_core::effects::EffectMethod;
+use twofold_core::lenth::Significance;
+use twofold_core::term::Term;
+use twofold_core::transform::Transform;
+
+use super::Report;
+
+/// The transform's key in JSON (`none`, `ln`, `log10`, `sqrt`, `inverse`, `power:λ`).
+pub fn transform_key(t: Transform) -> String {
+    match t {
+        Transform::None => "none".into(),
+        Transform::Ln => "ln".into(),
+        Transform::Log10 => "log10".into(),
+        Transform::Sqrt => "sqrt".into(),
+        Transform::Inverse => "inverse".into(),
+        Transform::Power(l) => format!("power:{l}"),
+        // Transforms added later are written as they display.
+        other => other.to_string(),
+    }
+}
+
+fn method_key(m: EffectMethod) -> &'static str {
+    match m {
+        EffectMethod::FastTransform => "fast_transform",
+        EffectMethod::LeastSquares => "least_squares",
+        _ => "other",
+    }
+}
+
+fn significance_key(s: Significance) -> &'static str {
+    match s {
+        Significance::WithinMe => "within_me",
+        Significance::BeyondMe => "beyond_me",
+        Significance::BeyondSme => "beyond_sme",
+        _ => "other",
+    }
+}
+
+/// Labels of terms.
+pub(super) fn labels(terms: &[Term]) -> Vec<String> {
+    terms.iter().map(|t| t.label()).collect()
+}
+
+/// The report as one JSON object, or why it cannot be written (no effects or no fit).
+///
+/// Keys: `response`, `transform`, `factors`, `runs` (`total`, `factorial_used`, `centre_used`,
+/// `missing`, `excluded`), `method`, `defining_relation`, `generators`, `effects` (`term`,
+/// `aliases`, `effect`, `coefficient`, `lenth`), `not_estimable`, `confounded_with_blocks`,
+/// `lenth` (`pse`, `me`, `sme`, `df`, `s0`, `m`, `t_me`, `t_sme`, `gamma`, or null with
+/// `lenth_note`), `half_normal` (`term`, `effect`, `abs_effect`, `rank`, `quantile`),
+/// `normal_probability`, `error_basis` (`pure_error`, `residual` or `lenth_pse`: which error the
+/// tests use), `pure_error` (`ss`, `df`, `ms`, or null), `model` (`terms`, `coefficients` in the
+/// order of `terms`, `intercept`, `coefficient_details`, `r2`, `adj_r2`, `pred_r2`, `sigma`,
+/// `df_residual`, `selection`, `added_for_hierarchy`, `notes`, `unestimable`, `term_tests`:
+/// `term`, `ss`, `f`, `p` against pure error when the default terms were chosen by them),
+/// `anova` (`source`, `df`, `ss`, `ms`, `f`, `p`), `curvature` (`ss`, `f`, `p`, `error`,
+/// `df_error`, `factorial_minus_centre`, `centre_runs`, or null; `f` and `p` against the error
+/// named by `error`) and `warnings`. Undefined numbers are null.
+pub fn report_json(r: &Report) -> Result<Value, String> {
+    let e = r.effects.as_ref().map_err(Clone::clone)?;
+    let m = r.fit.as_ref().map_err(Clone::clone)?;
+    let choice = r.choice.as_ref().map_err(Clone::clone)?;
+    let lenth_ok = r.lenth.as_ref().ok();
+    let effects: Vec<Value> = e
+        .effects
+        .iter()
+        .map(|e| {
+            json!({
+                "term": e.term.label(),
+                "aliases": e.aliases.iter().map(ToString::to_string).collect::<Vec<_>>(),
+                "effect": e.effect,
+                "coefficient": e.coefficient,
+                "lenth": lenth_ok.map(|l| significance_key(l.classify(e.effect))),
+            })
+        })
+        .collect();
+    let lenth_value = match lenth_ok {
+        Some(l) => json!({
+            "pse": l.pse, "me": l.me, "sme": l.sme, "df": l.df, "s0": l.s0, "m": l.m,
+            "t_me": l.t_me, "t_sme": l.t_sme, "gamma": l.gamma,
+        }),
+        None => Value::Null,
+    };
+    let anova_rows: Vec<Value> = m
+        .anova
+        .iter()
+        .map(|r| {
+            json!({
+                "source": r.source.to_string(), "df": r.df, "ss": r.ss, "ms": r.ms, "f": r.f,
+                "p": r.p,
+            })
+        })
+        .collect();
+    let details: Vec<Value> = std::iter::once(&m.intercept)
+        .chain(&m.coefficients)
+        .map(|c| {
+            json!({
+                "term": c.term.label(), "estimate": c.estimate, "std_error": c.std_error,
+                "t": c.t, "p": c.p,
+            })
+        })
+        .collect();
+    let mut added = choice.added_for_hierarchy.clone();
+    added.extend(m.added_for_hierarchy.iter().copied());
+    let excluded = r
+        .total_runs
+        .saturating_sub(r.used_runs)
+        .saturating_sub(r.values_missing);
+    let mut obj = json!({
+        "response": r.response_name,
+        "transform": transform_key(r.transform),
+        "factors": r.factor_count,
+        "runs": {
+            "total": r.total_runs,
+            "factorial_used": e.factorial_runs,
+            "centre_used": e.centre_runs,
+            "missing": r.values_missing,
+            "excluded": excluded,
+        },
+        "method": method_key(e.method),
+        "defining_relation": e.aliasing.defining_words().iter().map(ToString::to_string).collect::<Vec<_>>(),
+        "generators": e.aliasing.generators().iter().map(|g| g.label()).collect::<Vec<_>>(),
+        "effects": effects,
+        "not_estimable": labels(&e.not_estimable),
+        "confounded_with_blocks": labels(&e.confounded_with_blocks),
+        "lenth": lenth_value,
+        "half_normal": r.half_normal.iter().map(|p| json!({
+            "term": p.term.label(), "effect": p.effect, "abs_effect": p.abs_effect,
+            "rank": p.rank, "quantile": p.quantile,
+        })).collect::<Vec<_>>(),
+        "normal_probability": r.normal.iter().map(|p| json!({
+            "term": p.term.label(), "effect": p.effect, "rank": p.rank, "quantile": p.quantile,
+        })).collect::<Vec<_>>(),
+        "error_basis": r.error_basis.key(),
+        "pure_error": r.pure_error.map(|pe| json!({ "ss": pe.ss, "df": pe.df, "ms": pe.ms })),
+        "model": {
+            "terms": labels(&m.terms),
+            "coefficients": m.coefficients.iter().map(|c| c.estimate).collect::<Vec<_>>(),
+            "intercept": m.intercept.estimate,
+            "coefficient_details": details,
+            "r2": m.r2,
+            "adj_r2": m.adj_r2,
+            "pred_r2": m.pred_r2,
+            "sigma": m.sigma,
+            "df_residual": m.df_residual,
+            "selection": choice.selection.key(),
+            "added_for_hierarchy": labels(&added),
+            "notes": choice.notes,
+            "unestimable": m.unestimable.iter().map(|u| u.column.to_string()).collect::<Vec<_>>(),
+            "term_tests": choice.tests.iter().map(|t| json!({
+                "term": t.term.label(), "ss": t.ss, "f": t.f, "p": t.p,
+            })).collect::<Vec<_>>(),
+        },
+        "anova": anova_rows,
+        "curvature": r.curvature.map(|c| json!({
+            "ss": c.ss, "f": c.f, "p": c.p, "error": c.basis.key(), "df_error": c.df_error,
+            "factorial_minus_centre": c.factorial_minus_centre, "centre_runs": c.centre_runs,
+        })),
+        "warnings": r.warnings.iter().map(|w| w.text.clone()).collect::<Vec<_>>(),
+    });
+    if let (Err(e), Some(map)) = (&r.lenth, obj.as_object_mut()) {
+        map.insert("lenth_note".into(), Value::String(e.clone()));
+    }
+    Ok(obj)
+}
