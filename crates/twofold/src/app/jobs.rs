@@ -11,6 +11,9 @@ use twofold_study::report::{Report, ReportCache};
 
 use super::{Modal, TwofoldApp};
 
+/// Which report a job is making: (revision, response).
+type ReportFor = (u64, usize);
+
 /// The analysis of one response, computed once per (revision, response) when an analysis step
 /// needs it. In the window it runs on a worker thread, because a large sheet with few values can
 /// take long, and the sheet must stay responsive while the engineer types; the last finished
@@ -18,7 +21,7 @@ use super::{Modal, TwofoldApp};
 #[derive(Default)]
 pub(super) struct AnalysisSlot {
     pub(super) results: Option<Arc<Report>>,
-    pending: Option<((u64, usize), Job<Arc<Report>>)>,
+    pending: Option<(ReportFor, Job<Arc<Report>>)>,
     /// The shared analysis cache: going back with undo finds the earlier analysis there. Only the
     /// one worker (or, in tests, the frame) locks it, never the drawing.
     pub(super) cache: Arc<Mutex<ReportCache>>,
