@@ -127,9 +127,11 @@ fn demo_is_the_same_report_in_window_page_and_command() {
 
         let rows = json["anova"].as_array().unwrap();
         let page_rows = &page.anova.as_ref().unwrap().rows;
-        assert_eq!(rows.len(), fit.anova.len());
-        assert_eq!(page_rows.len(), fit.anova.len());
-        for ((c, p), r) in rows.iter().zip(page_rows).zip(&fit.anova) {
+        let shown = window.anova_rows();
+        assert_eq!(shown.len(), fit.anova.len());
+        assert_eq!(rows.len(), shown.len());
+        assert_eq!(page_rows.len(), shown.len());
+        for ((c, p), r) in rows.iter().zip(page_rows).zip(&shown) {
             assert_eq!(c["source"], r.source.to_string());
             assert_eq!(p.source, r.source.to_string());
             assert_eq!(c["df"], r.df);
@@ -144,6 +146,10 @@ fn demo_is_the_same_report_in_window_page_and_command() {
         let c = window.curvature.unwrap();
         assert_eq!(json["curvature"]["error"], "pure_error");
         assert_eq!(opt_bits(&json["curvature"]["f"]), c.f.map(f64::to_bits));
+        // Its row in the table shown everywhere carries that same test.
+        let row = rows.iter().find(|r| r["source"] == "Curvature").unwrap();
+        assert_eq!(opt_bits(&row["f"]), c.f.map(f64::to_bits));
+        assert_eq!(opt_bits(&row["p"]), c.p.map(f64::to_bits));
     }
 }
 
@@ -224,7 +230,7 @@ fn default_terms_and_curvature_are_judged_against_pure_error() {
         .collect();
     assert_eq!(twofold_app::cli::run(&args, &mut out, &mut Vec::new()), 0);
     let text = String::from_utf8(out).unwrap();
-    assert!(text.contains("Tests use pure error"), "{text}");
+    assert!(text.contains("The data carry pure error"), "{text}");
     assert!(text.contains("against pure error on 4 df"), "{text}");
 }
 

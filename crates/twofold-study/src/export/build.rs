@@ -190,8 +190,8 @@ pub fn summary_input(project: &Project, results: &Report, options: &BuildOptions
 
     let fit = results.fit.as_ref().ok();
     let anova = fit.map(|fit| AnovaTable {
-        rows: fit
-            .anova
+        rows: results
+            .anova_rows()
             .iter()
             .map(|r| AnovaRow {
                 source: r.source.to_string(),

@@ -101,7 +101,7 @@ impl ErrorBasis {
     pub fn sentence(self) -> &'static str {
         match self {
             ErrorBasis::PureError => {
-                "Tests use pure error (replicated runs or centre points): term choice and curvature are judged against it."
+                "The data carry pure error (replicated runs or centre points): the default terms and the curvature test are judged against it; the other F tests of the table use the model's residual."
             }
             ErrorBasis::Residual => {
                 "Tests use the residual of the fitted model (the data carry no pure error)."

@@ -84,8 +84,8 @@ pub fn report_json(r: &Report) -> Result<Value, String> {
         }),
         None => Value::Null,
     };
-    let anova_rows: Vec<Value> = m
-        .anova
+    let anova_rows: Vec<Value> = r
+        .anova_rows()
         .iter()
         .map(|r| {
             json!({

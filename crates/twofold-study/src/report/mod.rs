@@ -277,6 +277,29 @@ impl Report {
             .is_ok_and(|c| c.selection == Selection::Given)
     }
 
+    /// The ANOVA rows as every front end shows them: the fit's rows, except that the curvature
+    /// row carries the report's curvature test ([`Self::curvature`]), which is made against pure
+    /// error when the data carry it (Montgomery, *Design and Analysis of Experiments*, Example
+    /// 6-6: a 2^2 with five centre points). Empty without a fit.
+    pub fn anova_rows(&self) -> Vec<twofold_core::anova::AnovaRow> {
+        let Ok(fit) = &self.fit else {
+            return Vec::new();
+        };
+        fit.anova
+            .iter()
+            .map(|row| match (&row.source, &self.curvature) {
+                (twofold_core::anova::Source::Curvature, Some(c)) => {
+                    twofold_core::anova::AnovaRow {
+                        f: c.f,
+                        p: c.p,
+                        ..*row
+                    }
+                }
+                _ => *row,
+            })
+            .collect()
+    }
+
     /// The fit of the engineer's terms, for the window: with none chosen it says so (and names
     /// the suggested terms) instead of showing the default choice's fit.
     pub fn chosen_fit(&self) -> Result<&ModelFit, String> {

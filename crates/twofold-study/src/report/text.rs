@@ -192,16 +192,20 @@ pub fn report_text(r: &Report) -> Result<String, String> {
         SumsOfSquaresKind::Orthogonal => "orthogonal",
         _ => "adjusted",
     };
+    let curvature_error = match r.curvature.map(|c| c.basis) {
+        Some(super::ErrorBasis::PureError) => "; curvature against pure error",
+        _ => "",
+    };
     let _ = writeln!(
         s,
-        "\nAnalysis of variance ({kind} sums of squares; F against the residual)"
+        "\nAnalysis of variance ({kind} sums of squares; F against the residual{curvature_error})"
     );
     let _ = writeln!(
         s,
         "  {:<12} {:>4} {:>12} {:>12} {:>10} {:>10}",
         "source", "df", "SS", "MS", "F", "p"
     );
-    for row in &m.anova {
+    for row in &r.anova_rows() {
         let _ = writeln!(
             s,
             "  {:<12} {:>4} {:>12} {:>12} {:>10} {:>10}",

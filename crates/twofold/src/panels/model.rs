@@ -107,18 +107,6 @@ impl Pane for ModelPane {
             ));
         }
         ui.weak(res.error_basis.sentence());
-        if let Some(c) = &res.curvature {
-            ui.weak(format!(
-                "Curvature test against {} ({} df): F {}, p {}.",
-                match c.basis {
-                    twofold_study::report::ErrorBasis::PureError => "pure error",
-                    _ => "the residual",
-                },
-                c.df_error,
-                opt(c.f, 4),
-                opt(c.p, 3)
-            ));
-        }
         for w in res.warnings_of(&[WarningKind::Data, WarningKind::Model]) {
             warning_box(ui, &pal, w);
         }
@@ -144,14 +132,18 @@ impl Pane for ModelPane {
                 }
                 ui.add_space(6.0);
                 ui.label(RichText::new("Analysis of variance").strong());
+                let pure_curvature = res
+                    .curvature
+                    .is_some_and(|c| c.basis == twofold_study::report::ErrorBasis::PureError);
                 Grid::new("anova").striped(true).num_columns(6).spacing([18.0, 3.0]).show(ui, |ui| {
                     for h in ["Source", "df", "Sum of squares", "Mean square", "F", "p"] {
                         ui.label(RichText::new(h).color(pal.muted).strong());
                     }
                     ui.end_row();
-                    for row in &fit.anova {
+                    for row in &res.anova_rows() {
                         let name = match row.source {
                             Source::Term(t) => format!("   {}", t.label()),
+                            Source::Curvature if pure_curvature => "Curvature (vs pure error)".to_string(),
                             other => other.to_string(),
                         };
                         ui.label(name);
