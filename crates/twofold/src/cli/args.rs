@@ -53,10 +53,16 @@ pub struct Cli {
 #[derive(Debug, Subcommand)]
 pub enum Command {
     /// Choose a design, show its aliasing and print the randomised run sheet.
+    #[command(long_about = super::plan::LONG_ABOUT, after_help = super::plan::AFTER_HELP)]
     Plan(PlanArgs),
     /// Effects, Lenth's margins, a model fit and its ANOVA for one response.
+    #[command(
+        long_about = super::analyze::LONG_ABOUT,
+        after_help = super::analyze::AFTER_HELP
+    )]
     Analyze(AnalyzeCommand),
     /// Write the one-page summary, the blank run sheet or the run sheet as CSV.
+    #[command(long_about = super::export::LONG_ABOUT)]
     Export(ExportArgs),
 }
 

@@ -21,7 +21,8 @@ use twofold_study::interchange;
 use twofold_study::project::{Project, load_project};
 use twofold_study::results::ResponseResults;
 
-const LONG_ABOUT: &str = "\
+/// The long description shown by `--help`.
+pub(crate) const LONG_ABOUT: &str = "\
 Write, from a project file, the one-page summary of one response (FILE ending in .png, .svg or
 .pdf), the printable blank run sheet to carry to the bench (--run-sheet), or the run sheet as
 data (FILE ending in .csv).
@@ -33,7 +34,6 @@ file is never replaced unless --overwrite is given. The page never reads the clo
 
 /// The options of `twofold export`, as typed.
 #[derive(Debug, Clone, Default, clap::Args)]
-#[command(long_about = LONG_ABOUT)]
 pub struct ExportArgs {
     /// The project file to export from
     #[arg(value_name = "PROJECT.ron")]

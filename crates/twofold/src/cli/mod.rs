@@ -175,6 +175,22 @@ mod tests {
         ] {
             assert!(out.contains(option), "{option}: {out}");
         }
+        // Each command's long description and examples come with `--help`.
+        for (argv, needle) in [
+            (&["plan", "--help"], "fraction of least aberration"),
+            (
+                &["analyze", "--help"],
+                "An empty response\ncell is a missing value",
+            ),
+            (&["export", "--help"], "300 dpi"),
+            (
+                &["help", "plan"],
+                "twofold plan --factors 5 --runs 16 --json",
+            ),
+        ] {
+            let (_, out, _) = run_args(argv);
+            assert!(out.contains(needle), "{argv:?}: {out}");
+        }
         let (code, out, _) = run_args(&["--version"]);
         assert_eq!(code, 0);
         assert_eq!(out.trim(), format!("twofold {}", env!("CARGO_PKG_VERSION")));

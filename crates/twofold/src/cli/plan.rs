@@ -20,7 +20,8 @@ use twofold_core::plan::{Blocking, Plan, PlanSpec, build_fold_over_plan, build_p
 use twofold_core::search::{SearchBudget, minimum_aberration};
 use twofold_core::term::{LETTERS, MAX_FACTORS, Term, factor_index};
 
-const LONG_ABOUT: &str = "\
+/// The long description shown by `--help`.
+pub(crate) const LONG_ABOUT: &str = "\
 Choose a two-level design, show what it confounds, and print the run sheet in random order.
 
 Without --runs the design is the full factorial. With --runs and no --generators, the fraction
@@ -28,7 +29,8 @@ of least aberration is searched for and the output says whether the search prove
 report lists the generators, the defining relation, the word-length pattern, the aliases up to
 three-factor terms and the effects left clear.";
 
-const AFTER_HELP: &str = "\
+/// The examples shown by `--help`.
+pub(crate) const AFTER_HELP: &str = "\
 Examples:
   twofold plan --factors 5 --runs 16 --json
   twofold plan --factors \"Temp,Time,Speed,Load\" --centre-points 3 --replicates 2 --blocks 2 --seed 42
@@ -36,7 +38,6 @@ Examples:
 
 /// The options of `twofold plan`, as typed.
 #[derive(Debug, Clone, Default, clap::Args)]
-#[command(long_about = LONG_ABOUT, after_help = AFTER_HELP)]
 pub struct PlanArgs {
     /// How many factors (2 to 25), or their names separated by commas ("Temp,Time,Speed")
     #[arg(long, value_name = "K|NAMES")]

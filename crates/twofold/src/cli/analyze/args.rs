@@ -4,7 +4,8 @@ use std::path::PathBuf;
 
 use twofold_core::transform::Transform;
 
-const LONG_ABOUT: &str = "\
+/// The long description shown by `--help`.
+pub(crate) const LONG_ABOUT: &str = "\
 Effects, Lenth's margins, half-normal positions, a model fit and its ANOVA for one response.
 
 The data come from a project file (its run sheet, and by default its chosen terms and
@@ -13,14 +14,14 @@ column per factor named by its letter in order (A, B, C, ...) with cells -1, 0 o
 centre point); an optional `block` column; then one or more response columns. An empty response
 cell is a missing value.";
 
-const AFTER_HELP: &str = "\
+/// The examples shown by `--help`.
+pub(crate) const AFTER_HELP: &str = "\
 Examples:
   twofold analyze --csv results.csv --json
   twofold analyze cure.ron --response Gloss --terms A,B,AB --transform ln";
 
 /// The options of `twofold analyze`, as typed; [`AnalyzeCommand::into_args`] checks them.
 #[derive(Debug, Clone, Default, clap::Args)]
-#[command(long_about = LONG_ABOUT, after_help = AFTER_HELP)]
 pub struct AnalyzeCommand {
     /// A project file: its run sheet, chosen terms and transform
     #[arg(value_name = "PROJECT.ron")]

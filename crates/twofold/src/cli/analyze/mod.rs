@@ -35,6 +35,7 @@ use twofold_core::transform::{Transform, TransformError};
 
 use super::{EXIT_BAD_INPUT, EXIT_FAILURE};
 
+pub(crate) use args::{AFTER_HELP, LONG_ABOUT};
 pub use args::{AnalyzeArgs, AnalyzeCommand, Input, parse_transform};
 pub use twofold_study::interchange::coded::{
     CodedTable, ResponseColumn, TableError, read_coded_csv,
