@@ -177,7 +177,7 @@ mod tests {
         }
         // Each command's long description and examples come with `--help`.
         for (argv, needle) in [
-            (&["plan", "--help"], "fraction of least aberration"),
+            (&["plan", "--help"], "of least aberration is searched for"),
             (
                 &["analyze", "--help"],
                 "An empty response\ncell is a missing value",
