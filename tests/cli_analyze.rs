@@ -363,7 +363,7 @@ fn text_report_names_the_generator_found_in_the_columns() {
 fn help_prints_usage() {
     let (code, out, _) = analyze(&["--help"]);
     assert_eq!(code, 0);
-    assert!(out.contains("--csv FILE"));
+    assert!(out.contains("--csv <FILE>"), "{out}");
 }
 
 #[test]

@@ -1,107 +1,173 @@
-//! A small, strict reader of `--option value` and `--flag` arguments for the subcommands.
+//! The command line of the program, declared with `clap`: the subcommands, their options and
+//! help texts, and the translation of `clap`'s outcomes into our exit codes and one-line errors.
 //!
-//! Unknown options, missing values and repeated options are bad input: the message names the
-//! option so the user can fix the command line.
+//! Only the form of the command line is checked here (known options, one value each, whole
+//! numbers where a count is asked for). What a value means — a factor list, generator words, a
+//! transform, a paper size — is checked by the subcommand itself, with messages in its own words.
 
-use std::collections::BTreeMap;
+use clap::error::{ContextKind, ContextValue, ErrorKind};
+use clap::{ColorChoice, CommandFactory, Parser, Subcommand};
 
-/// Why the command line cannot be read.
-#[derive(Debug, Clone, PartialEq, Eq, thiserror::Error)]
-#[non_exhaustive]
-pub enum ArgError {
-    /// An option the subcommand does not know.
-    #[error("unknown option `{0}`")]
-    Unknown(String),
-    /// An option that needs a value got none.
-    #[error("option `{0}` needs a value")]
-    MissingValue(String),
-    /// The same option given twice.
-    #[error("option `{0}` is given twice")]
-    Repeated(String),
-    /// A value of the wrong form.
-    #[error("option `{option}`: {reason}")]
-    BadValue {
-        /// The option.
-        option: String,
-        /// What is wrong.
-        reason: String,
-    },
-    /// A positional argument where none is expected.
-    #[error("unexpected argument `{0}`")]
-    Unexpected(String),
+use super::analyze::AnalyzeCommand;
+use super::export::ExportArgs;
+use super::plan::PlanArgs;
+
+const ABOUT: &str = "Plan and analyse two-level factorial experiments.";
+
+const LONG_ABOUT: &str = "\
+Plan and analyse two-level factorial experiments.
+
+Without a command the window opens: on the bundled demo project, or on the project file given
+(twofold PROJECT.ron). The commands below work without a window and write to the terminal or to
+files. A project file whose name is also a command name is opened as ./NAME.";
+
+const AFTER_HELP: &str = "\
+Exit codes: 0 done, 1 failure while working (e.g. a file could not be written), 2 bad input
+(one line on standard error naming the problem).
+
+Examples:
+  twofold plan --factors 5 --runs 16
+  twofold analyze --csv results.csv --json
+  twofold export project.ron --out summary.pdf";
+
+/// The whole command line after the program name.
+#[derive(Debug, Parser)]
+#[command(
+    name = "twofold",
+    version,
+    about = ABOUT,
+    long_about = LONG_ABOUT,
+    after_help = AFTER_HELP,
+    override_usage = "twofold [PROJECT.ron]\n       twofold <COMMAND> [OPTIONS]",
+    subcommand_required = true,
+    arg_required_else_help = true,
+    color = ColorChoice::Never
+)]
+pub struct Cli {
+    /// The command to run.
+    #[command(subcommand)]
+    pub command: Command,
 }
 
-/// Parsed arguments: options with values, flags, and positional arguments.
-#[derive(Debug, Default)]
-pub struct Parsed {
-    values: BTreeMap<String, String>,
-    flags: Vec<String>,
-    /// Arguments that are not options, in order.
-    pub positional: Vec<String>,
+/// The headless commands.
+#[derive(Debug, Subcommand)]
+pub enum Command {
+    /// Choose a design, show its aliasing and print the randomised run sheet.
+    #[command(long_about = super::plan::LONG_ABOUT, after_help = super::plan::AFTER_HELP)]
+    Plan(PlanArgs),
+    /// Effects, Lenth's margins, a model fit and its ANOVA for one response.
+    #[command(
+        long_about = super::analyze::LONG_ABOUT,
+        after_help = super::analyze::AFTER_HELP
+    )]
+    Analyze(AnalyzeCommand),
+    /// Write the one-page summary, the blank run sheet or the run sheet as CSV.
+    #[command(long_about = super::export::LONG_ABOUT)]
+    Export(ExportArgs),
 }
 
-/// Reads `args` given the options that take a value and the flags that do not.
-pub fn parse(args: &[String], with_value: &[&str], flags: &[&str]) -> Result<Parsed, ArgError> {
-    let mut out = Parsed::default();
-    let mut i = 0;
-    while i < args.len() {
-        let a = &args[i];
-        if let Some(stripped) = a.strip_prefix("--") {
-            let (name, inline) = match stripped.split_once('=') {
-                Some((n, v)) => (format!("--{n}"), Some(v.to_string())),
-                None => (a.clone(), None),
-            };
-            if with_value.contains(&name.as_str()) {
-                let value = match inline {
-                    Some(v) => v,
-                    None => {
-                        i += 1;
-                        args.get(i)
-                            .cloned()
-                            .ok_or_else(|| ArgError::MissingValue(name.clone()))?
-                    }
-                };
-                if out.values.insert(name.clone(), value).is_some() {
-                    return Err(ArgError::Repeated(name));
-                }
-            } else if flags.contains(&name.as_str()) && inline.is_none() {
-                if out.flags.contains(&name) {
-                    return Err(ArgError::Repeated(name));
-                }
-                out.flags.push(name);
-            } else {
-                return Err(ArgError::Unknown(name));
+/// The names of the commands, and `help`, as typed on the command line.
+pub fn command_names() -> Vec<String> {
+    let mut names: Vec<String> = Cli::command()
+        .get_subcommands()
+        .flat_map(|c| {
+            std::iter::once(c.get_name().to_string()).chain(c.get_all_aliases().map(str::to_string))
+        })
+        .collect();
+    names.push("help".to_string());
+    names
+}
+
+/// What reading the command line gave.
+#[derive(Debug)]
+pub enum Reading {
+    /// A command to run.
+    Run(Command),
+    /// Text the user asked for (`--help`, `--version`, `help plan`): print it, exit 0.
+    Asked(String),
+    /// The command line is malformed: a message for standard error, exit 2. It is one line
+    /// starting `error: `, except when no command is given at all (then it is the overview).
+    Refused(String),
+}
+
+/// Reads the arguments after the program name.
+pub fn read(args: &[String]) -> Reading {
+    let argv = std::iter::once("twofold".to_string()).chain(args.iter().cloned());
+    match Cli::try_parse_from(argv) {
+        Ok(cli) => Reading::Run(cli.command),
+        Err(e) => match e.kind() {
+            ErrorKind::DisplayHelp | ErrorKind::DisplayVersion => {
+                Reading::Asked(e.render().to_string())
             }
-        } else {
-            out.positional.push(a.clone());
-        }
-        i += 1;
+            // Nothing at all to run: the overview is the most useful answer.
+            ErrorKind::DisplayHelpOnMissingArgumentOrSubcommand => {
+                Reading::Refused(e.render().to_string().trim_end().to_string())
+            }
+            _ => Reading::Refused(one_line(&e, args)),
+        },
     }
-    Ok(out)
 }
 
-impl Parsed {
-    /// The value of an option, if given.
-    pub fn value(&self, name: &str) -> Option<&str> {
-        self.values.get(name).map(String::as_str)
-    }
+/// A `clap` error as one line: what is wrong, a suggestion if `clap` has one, and where to read
+/// the usage.
+fn one_line(e: &clap::Error, args: &[String]) -> String {
+    let names = command_names();
+    let help = match args.first() {
+        Some(first) if names.contains(first) && first != "help" => {
+            format!("twofold {first} --help")
+        }
+        _ => "twofold --help".to_string(),
+    };
+    let context = |kind: ContextKind| match e.get(kind) {
+        Some(ContextValue::String(s)) => Some(s.clone()),
+        Some(ContextValue::Strings(list)) => Some(list.join(", ")),
+        _ => None,
+    };
+    let problem = match e.kind() {
+        ErrorKind::UnknownArgument => {
+            let arg = context(ContextKind::InvalidArg).unwrap_or_default();
+            if arg.starts_with('-') {
+                format!("unknown option `{arg}`")
+            } else {
+                format!("unexpected argument `{arg}`")
+            }
+        }
+        ErrorKind::InvalidSubcommand => {
+            let arg = context(ContextKind::InvalidSubcommand).unwrap_or_default();
+            format!("unknown command `{arg}` (the commands are plan, analyze and export)")
+        }
+        _ => first_sentence(&e.render().to_string()),
+    };
+    let suggestion = context(ContextKind::SuggestedArg)
+        .or_else(|| context(ContextKind::SuggestedSubcommand))
+        .map(|s| format!("; did you mean `{s}`?"))
+        .unwrap_or_default();
+    format!("error: {problem}{suggestion} (see `{help}`)")
+}
 
-    /// Whether a flag was given.
-    pub fn flag(&self, name: &str) -> bool {
-        self.flags.iter().any(|f| f == name)
+/// The message of a rendered `clap` error without its `error: ` prefix, its tips and its usage
+/// block; a message ending in a colon keeps the indented list that follows it, on the same line.
+fn first_sentence(rendered: &str) -> String {
+    let mut lines = rendered.lines();
+    let first = lines.next().unwrap_or_default();
+    let first = first.strip_prefix("error: ").unwrap_or(first).trim_end();
+    if let Some(head) = first.strip_suffix(':') {
+        let items: Vec<&str> = lines
+            .take_while(|l| l.starts_with("  ") && !l.trim_start().starts_with("tip:"))
+            .map(str::trim)
+            .collect();
+        if !items.is_empty() {
+            return format!("{head}: {}", items.join(", "));
+        }
     }
+    first.to_string()
+}
 
-    /// The value of an option read as a whole number.
-    pub fn number<T: std::str::FromStr>(&self, name: &str) -> Result<Option<T>, ArgError> {
-        self.value(name)
-            .map(|v| {
-                v.trim().parse::<T>().map_err(|_| ArgError::BadValue {
-                    option: name.to_string(),
-                    reason: format!("`{v}` is not a whole number"),
-                })
-            })
-            .transpose()
-    }
+/// Reads a count or a seed, with the message used everywhere for a malformed number.
+pub fn whole_number<T: std::str::FromStr>(text: &str) -> Result<T, String> {
+    text.trim()
+        .parse::<T>()
+        .map_err(|_| format!("`{text}` is not a whole number"))
 }
 
 #[cfg(test)]
@@ -113,33 +179,46 @@ mod tests {
     }
 
     #[test]
-    fn reads_values_flags_and_positionals() {
-        let p = parse(
-            &s(&["file.ron", "--runs", "8", "--json", "--seed=3"]),
-            &["--runs", "--seed"],
-            &["--json"],
-        )
-        .unwrap();
-        assert_eq!(p.value("--runs"), Some("8"));
-        assert_eq!(p.number::<u64>("--seed").unwrap(), Some(3));
-        assert!(p.flag("--json"));
-        assert_eq!(p.positional, ["file.ron"]);
+    fn the_declaration_is_consistent() {
+        // clap's own check of the declared options (duplicate names, bad defaults...).
+        Cli::command().debug_assert();
     }
 
     #[test]
-    fn bad_command_lines_name_the_option() {
-        let cases: &[(&[&str], ArgError)] = &[
-            (&["--bogus"], ArgError::Unknown("--bogus".into())),
-            (&["--runs"], ArgError::MissingValue("--runs".into())),
+    fn usage_errors_are_one_line_naming_the_help() {
+        let cases: &[(&[&str], &str)] = &[
+            (&["plan", "--bogus"], "unknown option `--bogus`"),
+            (&["plan", "--fator", "3"], "did you mean `--factors`?"),
+            (&["export", "p.ron", "q.ron"], "unexpected argument `q.ron`"),
+            (&["plna"], "unknown command `plna`"),
+            (&["plan", "--seed", "x"], "`x` is not a whole number"),
+            (&["plan", "--runs"], "a value is required for '--runs <N>'"),
             (
-                &["--runs", "8", "--runs", "4"],
-                ArgError::Repeated("--runs".into()),
+                &["analyze", "--json", "--json"],
+                "cannot be used multiple times",
             ),
         ];
-        for (args, expected) in cases {
-            assert_eq!(&parse(&s(args), &["--runs"], &[]).unwrap_err(), expected);
+        for (argv, needle) in cases {
+            let Reading::Refused(message) = read(&s(argv)) else {
+                panic!("{argv:?} should be refused")
+            };
+            assert_eq!(message.lines().count(), 1, "{argv:?}: {message}");
+            assert!(message.starts_with("error: "), "{message}");
+            assert!(message.contains(needle), "{argv:?}: {message}");
+            let help = if argv[0] == "plna" {
+                "`twofold --help`"
+            } else {
+                "--help`"
+            };
+            assert!(message.ends_with(&format!("{help})")), "{message}");
         }
-        let p = parse(&s(&["--runs", "x"]), &["--runs"], &[]).unwrap();
-        assert!(p.number::<usize>("--runs").is_err());
+    }
+
+    #[test]
+    fn names_of_the_commands() {
+        let names = command_names();
+        for n in ["plan", "analyze", "export", "help"] {
+            assert!(names.iter().any(|m| m == n), "{n} in {names:?}");
+        }
     }
 }

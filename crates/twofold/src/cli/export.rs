@@ -15,34 +15,51 @@ use std::path::{Path, PathBuf};
 
 use twofold_core::predict::Goal;
 
-use super::args::{self, ArgError};
 use super::{EXIT_BAD_INPUT, EXIT_FAILURE};
 use twofold_study::export::{self, BuildOptions, Format, Paper};
 use twofold_study::interchange;
 use twofold_study::project::{Project, load_project};
 use twofold_study::report::Report;
 
-/// Usage text printed by `--help`.
-pub const USAGE: &str = "\
-usage: twofold export PROJECT.ron --out FILE [options]
+/// The long description shown by `--help`.
+pub(crate) const LONG_ABOUT: &str = "\
+Write, from a project file, the one-page summary of one response (FILE ending in .png, .svg or
+.pdf), the printable blank run sheet to carry to the bench (--run-sheet), or the run sheet as
+data (FILE ending in .csv).
 
-Writes the one-page summary of one response (FILE ending in .png, .svg or .pdf), the printable
-blank run sheet (--run-sheet), or the run sheet as CSV (FILE ending in .csv).
+PNG pages are drawn at 300 dpi: 2480 x 3508 pixels on A4, 2550 x 3300 on letter. A run sheet
+longer than a page gives one PNG or SVG file per page, or one PDF with all pages. An existing
+file is never replaced unless --overwrite is given. The page never reads the clock: its date is
+--date, or the date of the latest value entered.";
 
-options:
-  --out FILE            the file to write; its extension picks the format
-  --paper a4|letter     paper size (default a4; PNG 2480 x 3508 or 2550 x 3300 pixels, 300 dpi)
-  --response NAME|N     the response to summarise, by name or 1-based number (default: the first)
-  --goal G              what the best settings aim at: max, min or target:VALUE (default max)
-  --date TEXT           date printed on the page (default: the date of the latest value entered,
-                        if one was recorded; the clock is never read)
-  --run-sheet           write the blank run sheet to carry to the bench instead of the summary
-  --overwrite           replace FILE if it exists (otherwise an existing file is left alone)
-  -h, --help            print this help
-";
-
-const WITH_VALUE: &[&str] = &["--out", "--paper", "--response", "--goal", "--date"];
-const FLAGS: &[&str] = &["--run-sheet", "--overwrite", "--help"];
+/// The options of `twofold export`, as typed.
+#[derive(Debug, Clone, Default, clap::Args)]
+pub struct ExportArgs {
+    /// The project file to export from
+    #[arg(value_name = "PROJECT.ron")]
+    pub project: Option<PathBuf>,
+    /// The file to write; its extension (.png, .svg, .pdf or .csv) picks the format
+    #[arg(long, value_name = "FILE")]
+    pub out: Option<PathBuf>,
+    /// Paper size: a4 or letter [default: a4]
+    #[arg(long, value_name = "a4|letter")]
+    pub paper: Option<String>,
+    /// The response to summarise, by name or by number counted from 1 [default: the first]
+    #[arg(long, value_name = "NAME|N")]
+    pub response: Option<String>,
+    /// What the best settings aim at: max, min or target:VALUE [default: max]
+    #[arg(long, value_name = "GOAL", allow_hyphen_values = true)]
+    pub goal: Option<String>,
+    /// Date printed on the page [default: the date of the latest value entered, if recorded]
+    #[arg(long, value_name = "TEXT", allow_hyphen_values = true)]
+    pub date: Option<String>,
+    /// Write the blank run sheet instead of the summary
+    #[arg(long = "run-sheet")]
+    pub run_sheet: bool,
+    /// Replace FILE if it exists already
+    #[arg(long)]
+    pub overwrite: bool,
+}
 
 /// What to write.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -67,15 +84,11 @@ struct Request {
 
 /// Bad input, in words for the command line.
 #[derive(Debug, thiserror::Error)]
-enum InputError {
-    #[error(transparent)]
-    Args(#[from] ArgError),
-    #[error("{0}")]
-    Invalid(String),
-}
+#[error("{0}")]
+struct InputError(String);
 
 fn invalid(msg: impl Into<String>) -> InputError {
-    InputError::Invalid(msg.into())
+    InputError(msg.into())
 }
 
 fn parse_goal(text: &str) -> Result<Goal, InputError> {
@@ -98,28 +111,16 @@ fn parse_goal(text: &str) -> Result<Goal, InputError> {
     }
 }
 
-/// `None` means help was asked for.
-fn parse_request(argv: &[String]) -> Result<Option<Request>, InputError> {
-    if argv.iter().any(|a| a == "-h") {
-        return Ok(None);
-    }
-    let parsed = args::parse(argv, WITH_VALUE, FLAGS)?;
-    if parsed.flag("--help") {
-        return Ok(None);
-    }
-    let project = match parsed.positional.as_slice() {
-        [one] => PathBuf::from(one),
-        [] => {
-            return Err(invalid(
-                "no project file given (twofold export PROJECT.ron --out FILE)",
-            ));
-        }
-        [_, extra, ..] => return Err(ArgError::Unexpected(extra.clone()).into()),
-    };
-    let out = parsed.value("--out").map(PathBuf::from).ok_or_else(|| {
+/// Checks the options of one call.
+fn parse_request(parsed: &ExportArgs) -> Result<Request, InputError> {
+    let project = parsed
+        .project
+        .clone()
+        .ok_or_else(|| invalid("no project file given (twofold export PROJECT.ron --out FILE)"))?;
+    let out = parsed.out.clone().ok_or_else(|| {
         invalid("no output file given: add --out FILE (.png, .svg, .pdf or .csv)")
     })?;
-    let run_sheet = parsed.flag("--run-sheet");
+    let run_sheet = parsed.run_sheet;
     let ext = out
         .extension()
         .and_then(|e| e.to_str())
@@ -136,25 +137,25 @@ fn parse_request(argv: &[String]) -> Result<Option<Request>, InputError> {
             )));
         }
     };
-    let paper = match parsed.value("--paper") {
+    let paper = match parsed.paper.as_deref() {
         None => Paper::A4,
         Some(p) => Paper::parse(p)
             .ok_or_else(|| invalid(format!("option `--paper`: `{p}` is not a4 or letter")))?,
     };
-    let goal = match parsed.value("--goal") {
+    let goal = match parsed.goal.as_deref() {
         None => Goal::Maximise,
         Some(g) => parse_goal(g)?,
     };
-    Ok(Some(Request {
+    Ok(Request {
         project,
         out,
         kind,
         paper,
-        response: parsed.value("--response").map(str::to_string),
+        response: parsed.response.clone(),
         goal,
-        date: parsed.value("--date").map(str::to_string),
-        overwrite: parsed.flag("--overwrite"),
-    }))
+        date: parsed.date.clone(),
+        overwrite: parsed.overwrite,
+    })
 }
 
 /// The response index named by `--response` (a name, any case, or a 1-based number).
@@ -202,13 +203,9 @@ fn human_size(bytes: usize) -> String {
 }
 
 /// Runs `twofold export` with the arguments after the subcommand name.
-pub fn run(argv: &[String], out: &mut dyn Write, err: &mut dyn Write) -> i32 {
+pub fn run(argv: &ExportArgs, out: &mut dyn Write, err: &mut dyn Write) -> i32 {
     let request = match parse_request(argv) {
-        Ok(Some(r)) => r,
-        Ok(None) => {
-            let _ = write!(out, "{USAGE}");
-            return 0;
-        }
+        Ok(r) => r,
         Err(e) => {
             let _ = writeln!(err, "error: {e}");
             return EXIT_BAD_INPUT;
@@ -349,13 +346,23 @@ fn report_lines(report: &export::ExportReport, what: &str, paper: Paper) -> Vec<
 mod tests {
     use super::*;
 
-    fn s(v: &[&str]) -> Vec<String> {
-        v.iter().map(|x| x.to_string()).collect()
+    /// Reads `twofold export ARGV...` as the program does: the command line, then the checks.
+    fn parse(argv: &[&str]) -> Result<Request, String> {
+        let full: Vec<String> = std::iter::once("export")
+            .chain(argv.iter().copied())
+            .map(str::to_string)
+            .collect();
+        match crate::cli::args::read(&full) {
+            crate::cli::args::Reading::Run(crate::cli::args::Command::Export(a)) => {
+                parse_request(&a).map_err(|e| e.to_string())
+            }
+            other => Err(format!("{other:?}")),
+        }
     }
 
     #[test]
     fn reads_the_options() {
-        let r = parse_request(&s(&[
+        let r = parse(&[
             "p.ron",
             "--out",
             "x.PDF",
@@ -364,18 +371,27 @@ mod tests {
             "--goal",
             "target:12.5",
             "--date=2025-01-02",
-        ]))
-        .unwrap()
+        ])
         .unwrap();
         assert_eq!(r.kind, Kind::Summary);
         assert_eq!(r.paper, Paper::Letter);
         assert_eq!(r.goal, Goal::Target(12.5));
         assert_eq!(r.date.as_deref(), Some("2025-01-02"));
-        let r = parse_request(&s(&["p.ron", "--out", "x.png", "--run-sheet"]))
-            .unwrap()
-            .unwrap();
+        let r = parse(&["p.ron", "--out", "x.png", "--run-sheet"]).unwrap();
         assert_eq!(r.kind, Kind::RunSheet);
-        assert!(parse_request(&s(&["-h"])).unwrap().is_none());
+        // A date or a target may begin with a minus sign.
+        let r = parse(&[
+            "p.ron",
+            "--out",
+            "x.pdf",
+            "--goal",
+            "target:-3",
+            "--date",
+            "-",
+        ])
+        .unwrap();
+        assert_eq!(r.goal, Goal::Target(-3.0));
+        assert_eq!(r.date.as_deref(), Some("-"));
     }
 
     #[test]
@@ -409,7 +425,7 @@ mod tests {
             ),
         ];
         for (argv, want) in cases {
-            let e = parse_request(&s(argv)).unwrap_err().to_string();
+            let e = parse(argv).unwrap_err();
             assert!(e.contains(want), "{argv:?}: {e}");
         }
     }

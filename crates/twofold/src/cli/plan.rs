@@ -7,7 +7,7 @@
 //!              [--json | --csv]
 //! ```
 
-use super::args::{self, ArgError};
+use super::args::whole_number;
 use super::{EXIT_BAD_INPUT, EXIT_FAILURE};
 use serde_json::{Value, json};
 use std::io::Write;
@@ -20,36 +20,76 @@ use twofold_core::plan::{Blocking, Plan, PlanSpec, build_fold_over_plan, build_p
 use twofold_core::search::{SearchBudget, minimum_aberration};
 use twofold_core::term::{LETTERS, MAX_FACTORS, Term, factor_index};
 
-const WITH_VALUE: &[&str] = &[
-    "--factors",
-    "--runs",
-    "--generators",
-    "--centre-points",
-    "--replicates",
-    "--blocks",
-    "--block-on",
-    "--seed",
-    "--fold",
-    "--search-seconds",
-];
-const FLAGS: &[&str] = &[
-    "--json",
-    "--csv",
-    "--standard-order",
-    "--replicates-as-blocks",
-];
+/// The long description shown by `--help`.
+pub(crate) const LONG_ABOUT: &str = "\
+Choose a two-level design, show what it confounds, and print the run sheet in random order.
+
+Without --runs the design is the full factorial. With --runs and no --generators, the fraction
+of least aberration is searched for and the output says whether the search proved it best. The
+report lists the generators, the defining relation, the word-length pattern, the aliases up to
+three-factor terms and the effects left clear.";
+
+/// The examples shown by `--help`.
+pub(crate) const AFTER_HELP: &str = "\
+Examples:
+  twofold plan --factors 5 --runs 16 --json
+  twofold plan --factors \"Temp,Time,Speed,Load\" --centre-points 3 --replicates 2 --blocks 2 --seed 42
+  twofold plan --factors 7 --runs 8 --generators \"D=AB,E=AC,F=BC,G=ABC\" --fold full";
+
+/// The options of `twofold plan`, as typed.
+#[derive(Debug, Clone, Default, clap::Args)]
+pub struct PlanArgs {
+    /// How many factors (2 to 25), or their names separated by commas ("Temp,Time,Speed")
+    #[arg(long, value_name = "K|NAMES")]
+    pub factors: Option<String>,
+    /// Base runs of the design, a power of two [default: the full factorial]
+    #[arg(long, value_name = "N", value_parser = whole_number::<usize>)]
+    pub runs: Option<usize>,
+    /// The added factors as products of the base factors, e.g. "E=ABCD,F=-ABCE"
+    #[arg(long, value_name = "LIST")]
+    pub generators: Option<String>,
+    /// Centre points added to each block [default: 0]
+    #[arg(long = "centre-points", value_name = "N", value_parser = whole_number::<usize>)]
+    pub centre_points: Option<usize>,
+    /// How many times every run of the design is repeated [default: 1]
+    #[arg(long, value_name = "N", value_parser = whole_number::<usize>)]
+    pub replicates: Option<usize>,
+    /// Split the runs into N blocks (2, 4, 8, ...), confounding interactions chosen for you
+    #[arg(long, value_name = "N", value_parser = whole_number::<usize>)]
+    pub blocks: Option<usize>,
+    /// Split the runs into blocks by the signs of these interaction words, e.g. "ABC,ACD"
+    #[arg(long = "block-on", value_name = "WORDS")]
+    pub block_on: Option<String>,
+    /// Put each replicate in a block of its own
+    #[arg(long = "replicates-as-blocks")]
+    pub replicates_as_blocks: bool,
+    /// Seed of the random run order, to repeat a plan [default: from the clock, printed]
+    #[arg(long, value_name = "N", value_parser = whole_number::<u64>)]
+    pub seed: Option<u64>,
+    /// Keep the runs in standard order instead of randomising them
+    #[arg(long = "standard-order")]
+    pub standard_order: bool,
+    /// Add the fold-over: `full` (all signs reversed) or one factor letter (that factor reversed)
+    #[arg(long, value_name = "full|A")]
+    pub fold: Option<String>,
+    /// Time allowed for the design search, in seconds (more than 0, at most 3600) [default: 2]
+    #[arg(long = "search-seconds", value_name = "S")]
+    pub search_seconds: Option<String>,
+    /// Print the plan as one JSON object
+    #[arg(long)]
+    pub json: bool,
+    /// Print the run sheet as CSV (one row per run)
+    #[arg(long)]
+    pub csv: bool,
+}
 
 /// Bad input to `plan`, in words for the command line.
 #[derive(Debug, thiserror::Error)]
-enum PlanInputError {
-    #[error(transparent)]
-    Args(#[from] ArgError),
-    #[error("{0}")]
-    Invalid(String),
-}
+#[error("{0}")]
+struct PlanInputError(String);
 
 fn invalid(msg: impl Into<String>) -> PlanInputError {
-    PlanInputError::Invalid(msg.into())
+    PlanInputError(msg.into())
 }
 
 /// Everything `plan` computed, ready to print.
@@ -66,7 +106,7 @@ struct Planned {
 }
 
 /// Runs `twofold plan`.
-pub fn run(args: &[String], out: &mut dyn Write, err: &mut dyn Write) -> i32 {
+pub fn run(args: &PlanArgs, out: &mut dyn Write, err: &mut dyn Write) -> i32 {
     let planned = match compute(args) {
         Ok(p) => p,
         Err(e) => {
@@ -74,14 +114,11 @@ pub fn run(args: &[String], out: &mut dyn Write, err: &mut dyn Write) -> i32 {
             return EXIT_BAD_INPUT;
         }
     };
-    let parsed = args::parse(args, WITH_VALUE, FLAGS).ok();
-    let as_json = parsed.as_ref().is_some_and(|p| p.flag("--json"));
-    let as_csv = parsed.as_ref().is_some_and(|p| p.flag("--csv"));
-    let written = if as_json {
+    let written = if args.json {
         serde_json::to_string_pretty(&to_json(&planned))
             .map_err(std::io::Error::other)
             .and_then(|s| writeln!(out, "{s}"))
-    } else if as_csv {
+    } else if args.csv {
         write_csv(&planned, out)
     } else {
         write_text(&planned, out)
@@ -95,24 +132,20 @@ pub fn run(args: &[String], out: &mut dyn Write, err: &mut dyn Write) -> i32 {
     }
 }
 
-fn compute(raw: &[String]) -> Result<Planned, PlanInputError> {
-    let a = args::parse(raw, WITH_VALUE, FLAGS)?;
-    if let Some(p) = a.positional.first() {
-        return Err(ArgError::Unexpected(p.clone()).into());
-    }
-    if a.flag("--json") && a.flag("--csv") {
+fn compute(a: &PlanArgs) -> Result<Planned, PlanInputError> {
+    if a.json && a.csv {
         return Err(invalid("choose one of --json and --csv"));
     }
-    let factors = a.value("--factors").ok_or_else(|| {
+    let factors = a.factors.as_deref().ok_or_else(|| {
         invalid("--factors is required: a count (5) or names (\"Temp,Time,Speed\")")
     })?;
     let names = factor_names(factors)?;
     let k = names.len();
-    let runs: Option<usize> = a.number("--runs")?;
+    let runs = a.runs;
     if let Some(n) = runs {
         check_run_count(k, n).map_err(|e| invalid(e.to_string()))?;
     }
-    let search_seconds: f64 = match a.value("--search-seconds") {
+    let search_seconds: f64 = match a.search_seconds.as_deref() {
         Some(v) => v
             .trim()
             .parse::<f64>()
@@ -125,7 +158,7 @@ fn compute(raw: &[String]) -> Result<Planned, PlanInputError> {
             })?,
         None => 2.0,
     };
-    let (design, proven) = match a.value("--generators") {
+    let (design, proven) = match a.generators.as_deref() {
         Some(g) => (
             FractionalDesign::from_text(k, runs, g).map_err(|e| invalid(e.to_string()))?,
             None,
@@ -149,17 +182,15 @@ fn compute(raw: &[String]) -> Result<Planned, PlanInputError> {
             }
         },
     };
-    let centre_points: usize = a.number("--centre-points")?.unwrap_or(0);
-    let replicates: usize = a.number("--replicates")?.unwrap_or(1);
+    let centre_points: usize = a.centre_points.unwrap_or(0);
+    let replicates: usize = a.replicates.unwrap_or(1);
     if replicates == 0 {
         return Err(invalid("--replicates must be at least 1"));
     }
-    let blocking = match (a.value("--blocks"), a.value("--block-on")) {
+    let blocking = match (a.blocks, a.block_on.as_deref()) {
         (Some(_), Some(_)) => return Err(invalid("give --blocks or --block-on, not both")),
-        (Some(_), None) => match a.number::<usize>("--blocks")? {
-            Some(0 | 1) | None => Blocking::None,
-            Some(n) => Blocking::Count(n),
-        },
+        (Some(0 | 1), None) => Blocking::None,
+        (Some(n), None) => Blocking::Count(n),
         (None, Some(text)) => Blocking::Generators(
             text.split(',')
                 .map(|t| Term::parse(t, k).map_err(|e| invalid(format!("--block-on: {e}"))))
@@ -167,7 +198,7 @@ fn compute(raw: &[String]) -> Result<Planned, PlanInputError> {
         ),
         (None, None) => Blocking::None,
     };
-    let seed: u64 = match a.number("--seed")? {
+    let seed: u64 = match a.seed {
         Some(s) => s,
         None => clock_seed(),
     };
@@ -175,9 +206,9 @@ fn compute(raw: &[String]) -> Result<Planned, PlanInputError> {
     spec.centre_points = centre_points;
     spec.replicates = replicates;
     spec.blocking = blocking;
-    spec.replicates_as_blocks = a.flag("--replicates-as-blocks");
-    spec.randomise = !a.flag("--standard-order");
-    let fold = match a.value("--fold") {
+    spec.replicates_as_blocks = a.replicates_as_blocks;
+    spec.randomise = !a.standard_order;
+    let fold = match a.fold.as_deref() {
         None => None,
         Some(text) => {
             let kind = parse_fold(text, k)?;

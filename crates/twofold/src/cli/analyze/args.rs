@@ -4,27 +4,46 @@ use std::path::PathBuf;
 
 use twofold_core::transform::Transform;
 
-/// Usage text printed by `--help`.
-pub const USAGE: &str = "\
-usage: twofold analyze --csv FILE [options]
-       twofold analyze PROJECT.ron [options]
+/// The long description shown by `--help`.
+pub(crate) const LONG_ABOUT: &str = "\
+Effects, Lenth's margins, half-normal positions, a model fit and its ANOVA for one response.
 
-Effects, Lenth's margins, half-normal positions, a model fit and its ANOVA for one response of a
-coded table (header row: factor columns A, B, C, ... with cells -1, 0 or +1, an optional `block`
-column, then response columns; an empty response cell is a missing value).
+The data come from a project file (its run sheet, and by default its chosen terms and
+transform, as the window analyses them) or from a coded table, a CSV file: a header row; one
+column per factor named by its letter in order (A, B, C, ...) with cells -1, 0 or +1 (all 0 is a
+centre point); an optional `block` column; then one or more response columns. An empty response
+cell is a missing value.";
 
-options:
-  PROJECT.ron         a project file: its run sheet, chosen terms and transform
-  --csv FILE          the coded table to analyse
-  --response NAME     the response column (default: the first one)
-  --terms LIST        model terms, comma-separated, e.g. A,C,D,AC,AD
-                      (default: with replicated runs or centre points, the terms significant
-                      against pure error at 5 %; otherwise the effects beyond Lenth's margin
-                      of error; kept hierarchical)
-  --transform T       none, ln, log10, sqrt, inverse or power:L (e.g. power:0.5)
-  --json              print the results as one JSON object
-  -h, --help          print this help
-";
+/// The examples shown by `--help`.
+pub(crate) const AFTER_HELP: &str = "\
+Examples:
+  twofold analyze --csv results.csv --json
+  twofold analyze cure.ron --response Gloss --terms A,B,AB --transform ln";
+
+/// The options of `twofold analyze`, as typed; [`AnalyzeCommand::into_args`] checks them.
+#[derive(Debug, Clone, Default, clap::Args)]
+pub struct AnalyzeCommand {
+    /// A project file: its run sheet, chosen terms and transform
+    #[arg(value_name = "PROJECT.ron")]
+    pub project: Option<PathBuf>,
+    /// A coded table (CSV) to analyse instead of a project
+    #[arg(long, value_name = "FILE")]
+    pub csv: Option<PathBuf>,
+    /// The response column [default: the first one]
+    #[arg(long, value_name = "NAME")]
+    pub response: Option<String>,
+    /// Model terms separated by commas, e.g. A,C,D,AC,AD [default: the project's chosen terms;
+    /// else, with replicated runs or centre points, the terms significant against pure error at
+    /// 5 %; otherwise the effects beyond Lenth's margin of error; kept hierarchical]
+    #[arg(long, value_name = "LIST")]
+    pub terms: Option<String>,
+    /// Transform of the response: none, ln, log10, sqrt, inverse or power:L (e.g. power:0.5)
+    #[arg(long, value_name = "T", allow_hyphen_values = true)]
+    pub transform: Option<String>,
+    /// Print the results as one JSON object
+    #[arg(long)]
+    pub json: bool,
+}
 
 /// The options of one `analyze` call, validated.
 #[derive(Debug, Clone, PartialEq)]
@@ -33,7 +52,7 @@ pub struct AnalyzeArgs {
     pub input: Input,
     /// The response column; `None` = the first.
     pub response: Option<String>,
-    /// Model terms as typed; `None` = the report's default choice.
+    /// Model terms as typed; `None` = chosen by Lenth's method.
     pub terms: Option<Vec<String>>,
     /// Transform of the response; `None` = none for a table, the project's choice for a project.
     pub transform: Option<Transform>,
@@ -51,105 +70,31 @@ pub enum Input {
     Project(PathBuf),
 }
 
-/// What the command line asked for.
-#[derive(Debug, Clone, PartialEq)]
-pub enum Request {
-    /// Print the usage.
-    Help,
-    /// Analyse a table.
-    Analyze(AnalyzeArgs),
-}
-
-/// Reads the arguments after `analyze`. Errors are one-line messages.
-pub fn parse_args(args: &[String]) -> Result<Request, String> {
-    let mut csv: Option<PathBuf> = None;
-    let mut project: Option<PathBuf> = None;
-    let mut response: Option<String> = None;
-    let mut terms: Option<Vec<String>> = None;
-    let mut transform: Option<Transform> = None;
-    let mut json = false;
-    let mut i = 0;
-    while i < args.len() {
-        let arg = args[i].as_str();
-        let (name, inline) = match arg.split_once('=') {
-            Some((n, v)) if n.starts_with("--") => (n, Some(v.to_string())),
-            _ => (arg, None),
+impl AnalyzeCommand {
+    /// Checks the options: one data source, a well-formed term list and transform. Errors are
+    /// one-line messages.
+    pub fn into_args(self) -> Result<AnalyzeArgs, String> {
+        let input = match (self.csv, self.project) {
+            (Some(_), Some(_)) => {
+                return Err("give a project file or --csv FILE, not both".into());
+            }
+            (Some(c), None) => Input::Csv(c),
+            (None, Some(p)) => Input::Project(p),
+            (None, None) => {
+                return Err(
+                    "`analyze` needs a project file or a coded table: --csv FILE (see `twofold analyze --help`)"
+                        .into(),
+                );
+            }
         };
-        let takes_value = matches!(name, "--csv" | "--response" | "--terms" | "--transform");
-        let value = if takes_value {
-            match inline {
-                Some(v) => Some(v),
-                None => {
-                    i += 1;
-                    match args.get(i) {
-                        Some(v) if !v.starts_with("--") => Some(v.clone()),
-                        _ => return Err(format!("option `{name}` needs a value")),
-                    }
-                }
-            }
-        } else {
-            if inline.is_some() {
-                return Err(format!("option `{name}` takes no value"));
-            }
-            None
-        };
-        match (name, value) {
-            ("-h" | "--help", _) => return Ok(Request::Help),
-            ("--json", _) => {
-                if json {
-                    return Err("option `--json` given twice".into());
-                }
-                json = true;
-            }
-            ("--csv", Some(v)) => set_once(&mut csv, PathBuf::from(v), "--csv")?,
-            ("--response", Some(v)) => set_once(&mut response, v, "--response")?,
-            ("--terms", Some(v)) => set_once(&mut terms, split_terms(&v)?, "--terms")?,
-            ("--transform", Some(v)) => {
-                set_once(&mut transform, parse_transform(&v)?, "--transform")?;
-            }
-            (other, _) if other.starts_with('-') => {
-                return Err(format!(
-                    "unknown option `{other}` for `analyze` (see --help)"
-                ));
-            }
-            (other, _) => {
-                if project.is_some() {
-                    return Err(format!(
-                        "unexpected argument `{other}`: give one project file"
-                    ));
-                }
-                project = Some(PathBuf::from(other));
-            }
-        }
-        i += 1;
+        Ok(AnalyzeArgs {
+            input,
+            response: self.response,
+            terms: self.terms.as_deref().map(split_terms).transpose()?,
+            transform: self.transform.as_deref().map(parse_transform).transpose()?,
+            json: self.json,
+        })
     }
-    let input = match (csv, project) {
-        (Some(_), Some(_)) => {
-            return Err("give a project file or --csv FILE, not both".into());
-        }
-        (Some(c), None) => Input::Csv(c),
-        (None, Some(p)) => Input::Project(p),
-        (None, None) => {
-            return Err(
-                "`analyze` needs a project file or a coded table: --csv FILE (see --help)".into(),
-            );
-        }
-    };
-    Ok(Request::Analyze(AnalyzeArgs {
-        input,
-        response,
-        terms,
-        transform,
-        json,
-    }))
-}
-
-fn set_once<T>(slot: &mut Option<T>, value: T, name: &str) -> Result<(), String> {
-    if slot.is_some() {
-        return Err(format!("option `{name}` given twice"));
-    }
-    *slot = Some(value);
-    Ok(())
 }
 
 fn split_terms(list: &str) -> Result<Vec<String>, String> {
@@ -193,41 +138,52 @@ pub fn parse_transform(text: &str) -> Result<Transform, String> {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::cli::args::{Command, Reading, read};
 
-    fn args(list: &[&str]) -> Vec<String> {
-        list.iter().map(|s| s.to_string()).collect()
+    /// Reads `twofold analyze LIST...` as the program does: the command line, then the checks.
+    fn parse(list: &[&str]) -> Result<AnalyzeArgs, String> {
+        let full: Vec<String> = std::iter::once("analyze")
+            .chain(list.iter().copied())
+            .map(str::to_string)
+            .collect();
+        match read(&full) {
+            Reading::Run(Command::Analyze(a)) => a.into_args(),
+            Reading::Refused(message) => Err(message),
+            other => Err(format!("{other:?}")),
+        }
     }
 
     #[test]
     fn arguments_are_read_strictly() {
-        let ok = parse_args(&args(&[
-            "--csv",
-            "t.csv",
-            "--json",
-            "--transform=power:0.5",
-        ]))
-        .unwrap();
-        let Request::Analyze(a) = ok else {
-            panic!("expected an analysis request")
-        };
+        let a = parse(&["--csv", "t.csv", "--json", "--transform=power:0.5"]).unwrap();
+        assert_eq!(a.input, Input::Csv(PathBuf::from("t.csv")));
         assert!(a.json);
         assert_eq!(a.transform, Some(Transform::Power(0.5)));
+        let a = parse(&["p.ron", "--terms", "A, C,AC", "--transform", "power:-1"]).unwrap();
+        assert_eq!(a.input, Input::Project(PathBuf::from("p.ron")));
+        assert_eq!(a.terms, Some(vec!["A".into(), "C".into(), "AC".into()]));
+        assert_eq!(a.transform, Some(Transform::Power(-1.0)));
         let cases: &[(&[&str], &str)] = &[
-            (&["--csv"], "option `--csv` needs a value"),
+            (&["--csv"], "a value is required for '--csv <FILE>'"),
             (&["--csv", "a", "--bogus"], "unknown option `--bogus`"),
             (&["--json"], "needs a project file or a coded table"),
-            (&["--csv", "a", "--csv", "b"], "given twice"),
+            (
+                &["--csv", "a", "--csv", "b"],
+                "cannot be used multiple times",
+            ),
             (&["--csv", "a", "--terms", "A,,B"], "empty term"),
             (&["--csv", "a", "--transform", "cube"], "use none, ln"),
             (&["--csv", "a", "--transform", "power:0"], "power of 0"),
-            (&["--csv", "a", "--json=yes"], "takes no value"),
-            (&["a.ron", "b.ron"], "give one project file"),
+            (
+                &["--csv", "a", "--json=yes"],
+                "unexpected value 'yes' for '--json'",
+            ),
+            (&["a.ron", "b.ron"], "unexpected argument `b.ron`"),
             (&["a.ron", "--csv", "b.csv"], "not both"),
         ];
         for (list, needle) in cases {
-            let e = parse_args(&args(list)).unwrap_err();
+            let e = parse(list).unwrap_err();
             assert!(e.contains(needle), "{list:?}: {e}");
         }
-        assert_eq!(parse_args(&args(&["-h"])).unwrap(), Request::Help);
     }
 }

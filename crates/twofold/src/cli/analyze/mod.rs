@@ -31,7 +31,8 @@ use twofold_study::report::{Report, ReportError, json::report_json, text::report
 
 use super::{EXIT_BAD_INPUT, EXIT_FAILURE};
 
-pub use args::{AnalyzeArgs, Input, Request, USAGE, parse_args, parse_transform};
+pub(crate) use args::{AFTER_HELP, LONG_ABOUT};
+pub use args::{AnalyzeArgs, AnalyzeCommand, Input, parse_transform};
 pub use twofold_study::interchange::coded::{
     CodedTable, ResponseColumn, TableError, read_coded_csv,
 };
@@ -72,21 +73,8 @@ fn report_message(err: &ReportError, table: &CodedTable, response: &str) -> Stri
     }
 }
 
-/// Runs `twofold analyze` with the arguments after the subcommand name.
-pub fn run(args: &[String], out: &mut dyn Write, err: &mut dyn Write) -> i32 {
-    let request = match parse_args(args) {
-        Ok(r) => r,
-        Err(message) => return bad_input(err, &message),
-    };
-    let a = match request {
-        Request::Help => {
-            return match out.write_all(USAGE.as_bytes()) {
-                Ok(()) => 0,
-                Err(_) => EXIT_FAILURE,
-            };
-        }
-        Request::Analyze(a) => a,
-    };
+/// Runs `twofold analyze` with its checked options.
+pub fn run(a: AnalyzeArgs, out: &mut dyn Write, err: &mut dyn Write) -> i32 {
     let report = match &a.input {
         Input::Csv(path) => report_csv(path, &a),
         Input::Project(path) => report_project(path, &a),
