@@ -574,3 +574,149 @@ fn the_interaction_plots_show_the_predicted_cells_legend_only_with_a_model() {
     assert!(h.query_by_label_contains("Interactions").is_some());
     assert!(h.query_by_label_contains(legend).is_none());
 }
+
+/// Three factors and two responses with a full 2^3 run sheet already made (not an unsaved change).
+fn sheet_with_two_responses() -> Project {
+    let mut p = three_factor_project();
+    p.responses.push(ResponseDef::new("Haze", "%"));
+    p.apply(twofold_study::project::Edit::RegenerateRuns)
+        .unwrap();
+    p
+}
+
+/// The run with run-order number `n`.
+fn run_no(p: &Project, n: u32) -> &twofold_study::project::RunRecord {
+    p.runs.iter().find(|r| r.run_order == n).unwrap()
+}
+
+#[test]
+fn typing_into_a_level_field_reached_by_tab_or_a_click_replaces_its_content() {
+    // Common practice, no source: a number field that takes the keyboard has its content
+    // selected, so typed digits replace the old number instead of joining it ("1" + "200"
+    // would read as 1200).
+    let mut p = three_factor_project();
+    p.factors[0] = Factor::numeric("Temperature", "°C", 1.0, 300.0);
+    let mut h = harness(TwofoldApp::new_for_test(p));
+    h.state_mut().set_step(Step::Factors);
+    h.run();
+    // By keyboard: from the kind box before it, Tab goes to the low level.
+    h.get_by_label("kind of factor A").focus();
+    h.run();
+    h.key_press(egui::Key::Tab);
+    h.run();
+    assert!(h.get_by_label("low level of factor A").is_focused());
+    for c in "200".chars() {
+        h.get_by_label("low level of factor A")
+            .type_text(&c.to_string());
+        h.run();
+    }
+    let levels = |h: &Harness<'static, TwofoldApp>| match h.state().project().factors[0].kind {
+        twofold_study::project::FactorKind::Numeric { low, high } => (low, high),
+        _ => panic!("the factor stays numeric"),
+    };
+    assert_eq!(levels(&h), (200.0, 300.0));
+    // By mouse: a click in the high level selects it as well.
+    h.get_by_label("high level of factor A").click();
+    h.run();
+    h.get_by_label("high level of factor A").type_text("250");
+    h.run();
+    h.key_press(egui::Key::Enter);
+    h.run();
+    assert_eq!(levels(&h), (200.0, 250.0));
+}
+
+#[test]
+fn typing_into_a_run_sheet_cell_reached_by_tab_replaces_its_value() {
+    let mut p = sheet_with_two_responses();
+    let first = p.runs.iter().position(|r| r.run_order == 1).unwrap();
+    p.apply(twofold_study::project::Edit::SetCell {
+        run: first,
+        response: 1,
+        text: "3.0".into(),
+        at: None,
+    })
+    .unwrap();
+    let mut h = harness(TwofoldApp::new_for_test(p));
+    h.state_mut().set_step(Step::Runs);
+    h.run();
+    h.get_by_label("value run 1 Gloss").focus();
+    h.run();
+    h.get_by_label("value run 1 Gloss").type_text("80");
+    h.run();
+    h.key_press(egui::Key::Tab);
+    h.run();
+    // The Haze cell of the same run has the keyboard, its "3.0" selected.
+    h.get_by_label("value run 1 Haze").type_text("2.5");
+    h.run();
+    h.key_press(egui::Key::Enter);
+    h.run();
+    let p = h.state().project();
+    assert_eq!(run_no(p, 1).values[0].text, "80");
+    assert_eq!(run_no(p, 1).values[1].text, "2.5", "not 3.02.5");
+}
+
+#[test]
+fn a_value_committed_with_enter_is_in_the_recovery_copy_within_the_same_frame() {
+    // The contract behind "a committed value survives a crash": no timer, no later frame.
+    let dir = tempfile::tempdir().unwrap();
+    let store = twofold_study::project::RecoveryStore::in_dir(dir.path());
+    let mut app = TwofoldApp::new_for_test(sheet_with_two_responses());
+    app.set_recovery_store(store.clone());
+    let mut h = harness(app);
+    h.state_mut().set_step(Step::Runs);
+    h.run();
+    h.get_by_label("value run 1 Gloss").focus();
+    h.run();
+    h.get_by_label("value run 1 Gloss").type_text("87.5");
+    h.run();
+    assert!(
+        store.find(None).unwrap().is_none(),
+        "nothing is committed while the value is being typed"
+    );
+    // Exactly one frame: the Enter key going down.
+    h.event(egui::Event::Key {
+        key: egui::Key::Enter,
+        physical_key: None,
+        pressed: true,
+        repeat: false,
+        modifiers: egui::Modifiers::NONE,
+    });
+    h.step();
+    assert_eq!(run_no(h.state().project(), 1).values[0].text, "87.5");
+    let copy = store
+        .find(None)
+        .unwrap()
+        .expect("the recovery copy is written in the frame of the commit");
+    assert_eq!(run_no(&copy.project, 1).values[0].text, "87.5");
+    assert_eq!(&copy.project, h.state().project());
+}
+
+#[test]
+fn a_level_typed_far_from_the_other_level_is_flagged_beside_the_field() {
+    // The rule (common practice, no source): two non-zero levels more than ten times apart in
+    // size are flagged as a likely slip of the keyboard.
+    let mut h = harness(TwofoldApp::new_for_test(three_factor_project()));
+    h.state_mut().set_step(Step::Factors);
+    h.run();
+    assert!(h.query_by_label_contains("ten times").is_none());
+    h.get_by_label("high level of factor A").click();
+    h.run();
+    // One key at a time, as a person types: the warning follows the text as it is typed.
+    for c in "2000".chars() {
+        h.get_by_label("high level of factor A")
+            .type_text(&c.to_string());
+        h.run();
+    }
+    let warning = h.get_by_label_contains("ten times");
+    let field = h.get_by_label("high level of factor A");
+    let (w, f) = (warning.rect(), field.rect());
+    assert!(
+        w.min.y < f.max.y && f.min.y < w.max.y && w.min.x > f.max.x,
+        "the warning {w:?} sits on the row of the field {f:?}, to its right"
+    );
+    // The typed value is kept as typed, only flagged.
+    assert!(matches!(
+        h.state().project().factors[0].kind,
+        twofold_study::project::FactorKind::Numeric { high: 2000.0, .. }
+    ));
+}

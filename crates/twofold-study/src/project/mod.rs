@@ -36,7 +36,7 @@ pub use model::{
 pub use recent::RecentFiles;
 pub use recovery::{RecoveryDebouncer, RecoveryOffer, RecoveryStore};
 pub use regenerate::PlanError;
-pub use validate::{FactorField, Field, Problem, Severity};
+pub use validate::{FactorField, Field, Problem, Severity, levels_far_apart};
 
 impl Project {
     /// An empty project with the given name: no factors, default design, no runs.

@@ -1,4 +1,5 @@
-//! Recovery copies: the project as it stood a second after the last edit, kept until it is saved.
+//! Recovery copies: the project as it stood at the last committed value (or a second after the
+//! last keystroke), kept until it is saved.
 //!
 //! # Where
 //! For a project that has a file, the copy sits beside it as `.<file name>.recovery` (e.g.
@@ -13,9 +14,18 @@
 //! differs from the file's. Saving the project or choosing "discard" removes the copy.
 //!
 //! # When it is written
-//! [`RecoveryDebouncer`] decides: the first unsaved change starts a delay (one second by default);
-//! when it runs out, one copy of the then-current revision is written, however many edits came
-//! in between. It takes the time from the caller, so it is tested without sleeping.
+//! At once, in the frame of the change, when a value is committed: Enter or Tab in a field, a
+//! field left, or any applied change that is not a keystroke in the middle of typing (the window
+//! asks [`RecoveryDebouncer::needs_copy`] and writes). A value committed just before a crash is
+//! therefore in the copy.
+//!
+//! Keystrokes still inside a field are coalesced: [`RecoveryDebouncer`] decides. The first unsaved
+//! change starts a delay (one second by default); when it runs out, one copy of the then-current
+//! revision is written, however many edits came in between. It takes the time from the caller,
+//! so it is tested without sleeping.
+//!
+//! Every copy goes through the one atomic writer (`files::write_atomic`): a crash during the
+//! write leaves the previous copy whole.
 
 use std::fs;
 use std::path::{Path, PathBuf};
@@ -259,6 +269,13 @@ impl RecoveryDebouncer {
         self.pending_since = None;
     }
 
+    /// Whether `revision` has no copy yet (it is neither written, saved nor just loaded). A
+    /// committed value is copied at once when this is `true`, without waiting for the delay;
+    /// then call [`Self::written`] (or [`Self::failed`]).
+    pub fn needs_copy(&self, revision: u64) -> bool {
+        self.written != Some(revision)
+    }
+
     /// Call once per frame with the current revision. Returns `true` when a copy of this revision
     /// should be written now; then call [`Self::written`] (or [`Self::failed`]).
     pub fn poll(&mut self, revision: u64, now: Instant) -> bool {
@@ -334,6 +351,22 @@ mod tests {
             "undo back to the written state needs no copy"
         );
         assert_eq!(d.deadline(), None);
+    }
+
+    #[test]
+    fn a_commit_needs_a_copy_only_of_a_revision_not_yet_written() {
+        let t0 = Instant::now();
+        let mut d = RecoveryDebouncer::default();
+        d.settled(1);
+        assert!(!d.needs_copy(1), "just loaded or saved");
+        assert!(
+            d.needs_copy(2),
+            "a committed change is copied without waiting"
+        );
+        assert!(!d.poll(2, t0), "the delay alone would not write it yet");
+        d.written(2);
+        assert!(!d.needs_copy(2), "the same revision is not written twice");
+        assert!(!d.poll(2, t0 + Duration::from_secs(5)));
     }
 
     #[test]

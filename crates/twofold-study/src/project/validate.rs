@@ -55,6 +55,27 @@ pub enum Field {
     },
 }
 
+/// Two non-zero levels of a factor whose sizes differ by more than this factor are flagged as a
+/// likely slip of the keyboard (see [`levels_far_apart`]).
+pub const FAR_APART_RATIO: f64 = 10.0;
+
+/// Whether the two levels of a numeric factor look like a typing slip: both non-zero and one more
+/// than [`FAR_APART_RATIO`] times the other in size.
+///
+/// The rule (common practice, no source): a two-level experiment varies a setting within one
+/// order of magnitude, while a digit added to an old number, or one left out, multiplies or
+/// divides it by ten or more ("200" typed after "1" reads 1200). A zero level gives no scale to
+/// compare with, so it is never flagged; ten times exactly (1 to 10 bar) is not flagged either.
+/// It is a warning only: a factor deliberately varied over decades (a catalyst at 0.01 and 1 %)
+/// may keep it.
+pub fn levels_far_apart(low: f64, high: f64) -> bool {
+    let (a, b) = (low.abs(), high.abs());
+    if !(a.is_finite() && b.is_finite()) || a == 0.0 || b == 0.0 {
+        return false;
+    }
+    a.max(b) > FAR_APART_RATIO * a.min(b)
+}
+
 /// One problem found by [`Project::validate`].
 #[derive(Debug, Clone, PartialEq)]
 pub struct Problem {
@@ -120,6 +141,16 @@ impl Project {
                             Severity::Error,
                             at(FactorField::Levels),
                             "low and high levels are equal: the factor would not vary".into(),
+                        );
+                    }
+                    if levels_far_apart(*low, *high) {
+                        push(
+                            Severity::Warning,
+                            at(FactorField::Levels),
+                            format!(
+                                "low level {low} and high level {high} {unit}are more than ten times apart: check for a typing slip",
+                                unit = unit_space(&f.unit)
+                            ),
                         );
                     }
                     if let Some((lo, hi)) = f.safe_range {
@@ -311,6 +342,41 @@ mod tests {
                 (e, Field::ResponseModel { index: 1 }),
                 (e, Field::ResponseName { index: 2 }),
             ]
+        );
+    }
+
+    #[test]
+    fn levels_more_than_ten_times_apart_are_flagged() {
+        // The rule is common practice, no source; the cases are chosen by hand.
+        for (low, high, flagged) in [
+            (100.0, 1200.0, true),  // "200" typed after the old "1"
+            (1200.0, 100.0, true),  // either order
+            (160.0, 200.0, false),  // an ordinary pair
+            (1.0, 10.0, false),     // exactly ten times: not flagged
+            (1.0, 10.5, true),      // just beyond
+            (0.0, 1200.0, false),   // a zero level gives no scale
+            (-5.0, 5.0, false),     // symmetric about zero
+            (-2.0, 30.0, true),     // sizes compared, whatever the sign
+            (0.1, 2.0, true),       // decades apart: flagged, may be kept
+            (f64::NAN, 1.0, false), // left to the error for non-finite levels
+        ] {
+            assert_eq!(levels_far_apart(low, high), flagged, "{low} {high}");
+        }
+        let mut p = two();
+        p.factors[0].kind = FactorKind::Numeric {
+            low: 160.0,
+            high: 2000.0,
+        };
+        assert_eq!(
+            p.validate(),
+            vec![Problem {
+                severity: Severity::Warning,
+                field: Field::Factor {
+                    index: 0,
+                    part: FactorField::Levels
+                },
+                message: "low level 160 and high level 2000 °C are more than ten times apart: check for a typing slip".into(),
+            }]
         );
     }
 

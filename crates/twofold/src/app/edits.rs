@@ -90,6 +90,8 @@ impl TwofoldApp {
             // Keystrokes in one field make one undo step: replace the previous keystroke's step.
             self.history.undo();
         }
+        // A keystroke in a field is committed when the field is left; anything else at once.
+        self.committed |= key.is_none();
         match self.history.apply(edit) {
             Ok(()) => self.coalesce = key.map(|k| (k, self.history.revision())),
             Err(e) => {
@@ -118,6 +120,7 @@ impl TwofoldApp {
             }
         }
         self.history.replace(next);
+        self.committed = true;
         true
     }
 
@@ -143,6 +146,7 @@ impl TwofoldApp {
     /// Undoes the last step.
     pub fn undo(&mut self) {
         self.coalesce = None;
+        self.committed = true;
         self.history.undo();
         self.refresh();
     }
@@ -150,6 +154,7 @@ impl TwofoldApp {
     /// Redoes the last undone step.
     pub fn redo(&mut self) {
         self.coalesce = None;
+        self.committed = true;
         self.history.redo();
         self.refresh();
     }

@@ -202,6 +202,12 @@ pub struct TwofoldApp {
     recent_store: Option<PathBuf>,
     recovery: Option<RecoveryStore>,
     debouncer: RecoveryDebouncer,
+    /// A value was committed since the last recovery copy (Enter, Tab, a field left, or an
+    /// applied change that is not a keystroke in a field): copy it in this frame.
+    committed: bool,
+    /// The widget that had the keyboard at the end of the last frame: when it changes, the field
+    /// that had it was left, which commits what was typed there.
+    focus_seen: Option<egui::Id>,
     notice: Option<String>,
     sent_title: String,
     clock: fn() -> String,
@@ -245,6 +251,8 @@ impl TwofoldApp {
             recent_store: None,
             recovery: None,
             debouncer: RecoveryDebouncer::default(),
+            committed: false,
+            focus_seen: None,
             notice: None,
             sent_title: String::new(),
             clock: now_iso,
@@ -290,16 +298,25 @@ impl TwofoldApp {
         }
     }
 
-    /// Writes a recovery copy when one falls due at `now` (about a second after an edit); the
-    /// window calls this every frame. Returns when the next copy falls due.
+    /// Writes a recovery copy when one is needed at `now`: at once after a committed value
+    /// (Enter or Tab in a field, a field left, any applied change that is not a keystroke in a
+    /// field), otherwise about a second after the first keystroke not yet copied. The window
+    /// calls this at the end of every frame, so a committed value is on disk before the frame
+    /// ends. Returns when the next copy falls due.
     pub fn autosave_tick(&mut self, now: std::time::Instant) -> Option<std::time::Instant> {
         let rev = self.history.revision();
+        let committed = std::mem::take(&mut self.committed);
         if !self.history.is_dirty() {
             self.debouncer.settled(rev);
             return None;
         }
         let store = self.recovery.as_ref()?;
-        if self.debouncer.poll(rev, now) {
+        let due = if committed {
+            self.debouncer.needs_copy(rev)
+        } else {
+            self.debouncer.poll(rev, now)
+        };
+        if due {
             let at = (self.clock)();
             match store.write(self.path.as_deref(), self.history.project(), rev, &at) {
                 Ok(_) => self.debouncer.written(rev),
@@ -527,6 +544,12 @@ impl TwofoldApp {
         self.modals(&ctx, &pal, &mut actions);
         for action in actions {
             self.act(action);
+        }
+        // Leaving a field (Tab, Enter, a click elsewhere) commits what was typed in it.
+        let focused = ctx.memory(|m| m.focused());
+        if focused != self.focus_seen {
+            self.focus_seen = focused;
+            self.committed = true;
         }
         let now = std::time::Instant::now();
         if let Some(due) = self.autosave_tick(now) {

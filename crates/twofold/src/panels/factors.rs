@@ -5,9 +5,11 @@ use egui::{Grid, RichText, Ui};
 
 use super::widgets::{number_field, plain_number, text_field, warning_box};
 use super::{Command, Pane, View};
+use crate::theme::Palette;
 use twofold_core::term::LETTERS;
 use twofold_study::project::{
     Edit, Factor, FactorField, FactorKind, Field, MAX_FACTORS, MIN_FACTORS, Severity,
+    levels_far_apart,
 };
 
 /// View state of the factors pane.
@@ -126,7 +128,7 @@ fn factor_grid(
                     }
                 });
                 kind_picker(ui, id, index, f, out);
-                levels(ui, id, index, f, out);
+                levels(ui, id, index, f, &pal, out);
                 safe_range(ui, id, index, f, out);
                 ui.horizontal(|ui| {
                     if ui
@@ -205,11 +207,40 @@ fn kind_picker(ui: &mut Ui, id: egui::Id, index: usize, f: &Factor, out: &mut Ve
         .accessible_name(format!("kind of factor {letter}"));
 }
 
-fn levels(ui: &mut Ui, id: egui::Id, index: usize, f: &Factor, out: &mut Vec<Command>) {
+fn levels(
+    ui: &mut Ui,
+    id: egui::Id,
+    index: usize,
+    f: &Factor,
+    pal: &Palette,
+    out: &mut Vec<Command>,
+) {
     match &f.kind {
         FactorKind::Numeric { low, high } => {
+            let letter = LETTERS.get(index).copied().unwrap_or('?');
+            // A level to check is outlined where it is typed; the row's last cell says why.
+            let far = levels_far_apart(*low, *high);
+            let outside = |v: f64| f.safe_range.is_some_and(|(a, b)| v < a || v > b);
             let lo = number_field(ui, id.with("low"), Some(*low), 80.0, "low");
+            let lo_rect = lo.response.rect;
+            let _ = lo
+                .response
+                .accessible_name(format!("low level of factor {letter}"));
             let hi = number_field(ui, id.with("high"), Some(*high), 80.0, "high");
+            let hi_rect = hi.response.rect;
+            let _ = hi
+                .response
+                .accessible_name(format!("high level of factor {letter}"));
+            for (rect, v) in [(lo_rect, *low), (hi_rect, *high)] {
+                if far || outside(v) {
+                    ui.painter().rect_stroke(
+                        rect.expand(2.0),
+                        3.0,
+                        egui::Stroke::new(1.5, pal.warn),
+                        egui::StrokeKind::Outside,
+                    );
+                }
+            }
             if lo.changed.is_some() || hi.changed.is_some() {
                 out.push(Command::Edit(Edit::SetFactorKind {
                     index,

@@ -9,7 +9,7 @@ use std::rc::Rc;
 use egui::{Id, Key, Modifiers, RichText, TextEdit, Ui};
 use egui_extras::{Column, TableBuilder};
 
-use super::widgets::{plain_number, text_field, warning_box};
+use super::widgets::{NumberEdit, plain_number, text_field, warning_box};
 use super::{Command, Pane, Step, View};
 use crate::theme::Palette;
 use twofold_core::term::LETTERS;
@@ -472,7 +472,7 @@ fn next_run_card(
                         pane.focus_card = None;
                     }
                     let resp = ui
-                        .add(
+                        .add_number(
                             TextEdit::singleline(&mut text)
                                 .id(id)
                                 .font(egui::FontId::proportional(22.0))
@@ -725,7 +725,7 @@ fn response_cell(
     if bad.is_some() {
         edit = edit.text_color(pal.error);
     }
-    let resp = ui.add(edit).accessible_name(cell_name(run, def));
+    let resp = ui.add_number(edit).accessible_name(cell_name(run, def));
     if let Some(reason) = &bad {
         ui.label(RichText::new("⚠").color(pal.error))
             .on_hover_text(format!("Not a number, left out of the analysis: {reason}"));

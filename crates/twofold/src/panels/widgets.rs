@@ -1,6 +1,7 @@
 //! Small widgets shared by the panes: text and number fields that report changes as values, and
 //! the boxes that carry warnings in plain words.
 
+use egui::text::CCursorRange;
 use egui::{Color32, Id, RichText, TextEdit, Ui};
 
 use crate::theme::Palette;
@@ -21,6 +22,37 @@ pub fn text_field(ui: &mut Ui, id: Id, current: &str, width: f32, hint: &str) ->
             .hint_text(hint),
     );
     (resp.changed() && text != current).then_some(text)
+}
+
+/// Shows a one-line field that holds a number, and selects its whole content whenever it takes
+/// the keyboard (Tab, a click, or a focus request), so what is typed replaces the old number
+/// instead of joining it: "200" typed over "1" must not read as 1200.
+///
+/// Every numeric text field of the window goes through here (factor levels and safe range, run
+/// sheet values, prediction target); the design's counts are egui drag values, which select their
+/// text on focus by themselves.
+pub fn number_edit(ui: &mut Ui, edit: TextEdit<'_>) -> egui::Response {
+    let mut output = edit.show(ui);
+    let response = output.response.response;
+    if response.gained_focus() {
+        let all = CCursorRange::select_all_str(output.galley.text());
+        output.state.cursor.set_char_range(Some(all));
+        output.state.store(ui.ctx(), response.id);
+    }
+    response
+}
+
+/// [`number_edit`] as a method of `Ui`, so that a call site reads like `ui.add(edit)`.
+pub trait NumberEdit {
+    /// Shows `edit`, a field holding a number, with its content selected when it takes the
+    /// keyboard (see [`number_edit`]).
+    fn add_number(&mut self, edit: TextEdit<'_>) -> egui::Response;
+}
+
+impl NumberEdit for Ui {
+    fn add_number(&mut self, edit: TextEdit<'_>) -> egui::Response {
+        number_edit(self, edit)
+    }
 }
 
 /// The result of drawing a [`number_field`].
@@ -58,7 +90,7 @@ pub fn number_field(
     if before_error {
         edit = edit.text_color(ui.visuals().error_fg_color);
     }
-    let response = ui.add(edit);
+    let response = ui.add_number(edit);
     let (changed, error) = match parsed(&text) {
         CellValue::Number(x) => ((value != Some(x) && response.changed()).then_some(x), None),
         CellValue::Empty => (None, None),
