@@ -579,14 +579,18 @@ fn the_interaction_plots_show_the_predicted_cells_legend_only_with_a_model() {
 fn sheet_with_two_responses() -> Project {
     let mut p = three_factor_project();
     p.responses.push(ResponseDef::new("Haze", "%"));
-    p.apply(twofold_study::project::Edit::RegenerateRuns)
-        .unwrap();
+    if let Err(e) = p.apply(twofold_study::project::Edit::RegenerateRuns) {
+        panic!("the run sheet of a full 2^3 design: {e}");
+    }
     p
 }
 
 /// The run with run-order number `n`.
 fn run_no(p: &Project, n: u32) -> &twofold_study::project::RunRecord {
-    p.runs.iter().find(|r| r.run_order == n).unwrap()
+    let Some(run) = p.runs.iter().find(|r| r.run_order == n) else {
+        panic!("no run {n}");
+    };
+    run
 }
 
 #[test]
