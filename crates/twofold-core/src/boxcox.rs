@@ -250,8 +250,8 @@ fn bisect(g: &dyn Fn(f64) -> f64, mut a: f64, mut b: f64) -> f64 {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::test_support::{observations, replicated_full};
     use crate::term::Term;
+    use crate::test_support::{observations, replicated_full};
 
     fn design(y: &[f64]) -> Observations {
         observations(3, replicated_full(3, y.len()), y)

@@ -672,7 +672,6 @@ mod tests {
     use super::*;
     use crate::test_support::full;
 
-
     /// A fraction from base factorial columns and generator words (product of base factors,
     /// sign).
     fn fraction(base: usize, generators: &[(&str, bool)]) -> Vec<Vec<f64>> {

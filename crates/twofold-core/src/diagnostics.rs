@@ -182,10 +182,10 @@ impl Diagnostics {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::test_support::{observations, replicated_full};
     use crate::anova::{ModelSpec, fit_model};
     use crate::data::Observations;
     use crate::term::Term;
+    use crate::test_support::{observations, replicated_full};
 
     fn two_by_two_replicated(y: &[f64]) -> Observations {
         observations(2, replicated_full(2, y.len()), y)

@@ -740,10 +740,9 @@ pub fn yates_effects(y_standard_order: &[f64]) -> Option<HashMap<Term, f64>> {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::test_support::full;
     use crate::prec::close_rel;
+    use crate::test_support::full;
     use proptest::prelude::*;
-
 
     fn t(s: &str) -> Term {
         Term::parse(s, 25).unwrap()

@@ -247,9 +247,9 @@ pub fn cube_plot(
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::test_support::{observations, replicated_full};
     use crate::anova::{ModelSpec, fit_model};
     use crate::term::Term;
+    use crate::test_support::{observations, replicated_full};
 
     /// Montgomery, Example 6-1 (fill height, 2^3 with two replicates; data verified in
     /// REFERENCES.md), in standard order, replicate I then replicate II.

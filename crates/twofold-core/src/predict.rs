@@ -413,11 +413,10 @@ impl Optimum {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::test_support::full;
     use crate::anova::{ModelSpec, fit_model};
     use crate::data::Observations;
     use crate::term::Term;
-
+    use crate::test_support::full;
 
     fn fit_of(k: usize, y: &[f64], terms: &[&str]) -> ModelFit {
         let o = Observations::new(

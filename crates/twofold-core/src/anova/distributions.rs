@@ -3,7 +3,6 @@
 use statrs::distribution::{Continuous, ContinuousCDF, StudentsT};
 use statrs::function::beta::checked_beta_reg;
 
-
 /// Two-sided p-value of Student's t with `df` degrees of freedom:
 /// `p = I_{ν/(ν+t²)}(ν/2, 1/2)` (Abramowitz & Stegun 1964, 26.7.1 with 26.5.27; from memory).
 /// Computed from the incomplete beta function directly so that small p-values keep their relative

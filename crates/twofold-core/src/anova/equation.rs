@@ -4,7 +4,6 @@ use crate::columns::term_value;
 use crate::term::{Term, factor_letter};
 use serde::{Deserialize, Serialize};
 
-
 /// Units of an equation.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
 pub enum Units {

@@ -8,7 +8,6 @@ use crate::term::Term;
 use nalgebra::{DMatrix, DVector};
 use std::collections::{BTreeMap, BTreeSet};
 
-
 use super::*;
 
 /// Least-squares coefficients of `v` on the columns of `x` (full column rank), by QR.

@@ -52,8 +52,8 @@ mod distributions;
 mod equation;
 mod fit;
 
-pub(crate) use distributions::{t_quantile, t_two_sided_p};
 pub use distributions::f_upper_p;
+pub(crate) use distributions::{t_quantile, t_two_sided_p};
 pub use equation::{Equation, EquationTerm, Units, format_number};
 pub use fit::fit_model;
 
@@ -537,14 +537,13 @@ impl ModelFit {
 mod tests {
     use super::*;
     use crate::data::Observations;
-    use crate::test_support::{full as full_factorial, observations as obs};
     use crate::prec::close_rel;
+    use crate::test_support::{full as full_factorial, observations as obs};
     use proptest::prelude::*;
 
     fn t(label: &str, k: usize) -> Term {
         Term::parse(label, k).unwrap()
     }
-
 
     #[test]
     fn closure_contains_every_parent() {

@@ -197,7 +197,14 @@ fn effect_table(svg: &mut Svg, area: Rect, rows: &[EffectRow], lenth: Option<&Le
     let bar_x0 = area.x + term_w + effect_w + pad * 2.0;
     let bar_x1 = area.x + area.w - mark_w - pad;
     let baseline = |top: f64| top + rh * 0.5 + size * 0.36;
-    svg.rect(area.x, area.y, area.w, rh, Some(crate::export::svg::SHADE), None);
+    svg.rect(
+        area.x,
+        area.y,
+        area.w,
+        rh,
+        Some(crate::export::svg::SHADE),
+        None,
+    );
     let head = TextStyle::new(size).bold();
     svg.text(area.x + pad, baseline(area.y), "Term", head);
     svg.text(
