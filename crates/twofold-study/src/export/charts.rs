@@ -292,7 +292,7 @@ pub fn interaction(svg: &mut Svg, area: Rect, panel: &InteractionPanel, y_ticks:
         w: area.w,
         h: (area.h - title.size * 1.4 - legend_h).max(10.0),
     };
-    let label_chars = widest_label(&y_ticks);
+    let label_chars = widest_label(y_ticks);
     let mut plot = plot_area(body, label_chars);
     // No axis title under an interaction plot: the level names say what the axis is.
     plot.h += sizes::SMALL * 1.2;
