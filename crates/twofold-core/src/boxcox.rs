@@ -251,24 +251,10 @@ fn bisect(g: &dyn Fn(f64) -> f64, mut a: f64, mut b: f64) -> f64 {
 mod tests {
     use super::*;
     use crate::term::Term;
+    use crate::test_support::{observations, replicated_full};
 
     fn design(y: &[f64]) -> Observations {
-        let levels: Vec<Vec<f64>> = (0..y.len())
-            .map(|r| {
-                let i = r % 8;
-                (0..3)
-                    .map(|f| if i >> f & 1 == 1 { 1.0 } else { -1.0 })
-                    .collect()
-            })
-            .collect();
-        Observations::new(
-            3,
-            levels,
-            vec![],
-            y.iter().map(|&v| Some(v)).collect(),
-            vec![],
-        )
-        .unwrap()
+        observations(3, replicated_full(3, y.len()), y)
     }
 
     #[test]

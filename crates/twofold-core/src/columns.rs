@@ -204,15 +204,8 @@ impl AliasChain {
     /// The chain written out, e.g. `AB = -CDE`; `= ...` ends it when members above the label
     /// order were left out.
     pub fn label(&self) -> String {
-        let mut s = self.representative.label();
-        for a in &self.aliases {
-            s.push_str(" = ");
-            s.push_str(&a.to_string());
-        }
-        if (self.aliases.len() as u64) + 1 < self.size {
-            s.push_str(" = ...");
-        }
-        s
+        let left_out = (self.aliases.len() as u64) + 1 < self.size;
+        chain_label(self.representative, &self.aliases, left_out)
     }
 }
 
@@ -224,6 +217,20 @@ pub struct ChainKey {
     pub bits: u32,
     /// Whether the term's column is the negative of that product.
     pub negative: bool,
+}
+
+/// A chain written out from its representative and listed aliases, e.g. `AB = -CDE`, ending in
+/// `= ...` when `left_out` says members above the label order were not listed.
+pub(crate) fn chain_label(representative: Term, aliases: &[SignedTerm], left_out: bool) -> String {
+    let mut s = representative.label();
+    for a in aliases {
+        s.push_str(" = ");
+        s.push_str(&a.to_string());
+    }
+    if left_out {
+        s.push_str(" = ...");
+    }
+    s
 }
 
 /// The aliasing of a set of two-level runs, read from its columns.
@@ -663,13 +670,7 @@ fn for_each_subset_of_size(n: usize, size: usize, mut f: impl FnMut(u32)) {
 #[cfg(test)]
 mod tests {
     use super::*;
-
-    /// Rows of a 2^k full factorial in standard order (first factor fastest).
-    fn full(k: usize) -> Vec<Vec<f64>> {
-        crate::design::FractionalDesign::full(k)
-            .unwrap()
-            .coded_rows()
-    }
+    use crate::test_support::full;
 
     /// A fraction from base factorial columns and generator words (product of base factors,
     /// sign).

@@ -185,18 +185,10 @@ mod tests {
     use crate::anova::{ModelSpec, fit_model};
     use crate::data::Observations;
     use crate::term::Term;
+    use crate::test_support::{observations, replicated_full};
 
     fn two_by_two_replicated(y: &[f64]) -> Observations {
-        let base = [[-1.0, -1.0], [1.0, -1.0], [-1.0, 1.0], [1.0, 1.0]];
-        let levels: Vec<Vec<f64>> = (0..y.len()).map(|i| base[i % 4].to_vec()).collect();
-        Observations::new(
-            2,
-            levels,
-            vec![],
-            y.iter().map(|&v| Some(v)).collect(),
-            vec![],
-        )
-        .unwrap()
+        observations(2, replicated_full(2, y.len()), y)
     }
 
     #[test]

@@ -123,12 +123,7 @@ pub struct Effect {
 impl Effect {
     /// The chain written out, e.g. `AB = -CDE`.
     pub fn label(&self) -> String {
-        let mut s = self.term.label();
-        for a in &self.aliases {
-            s.push_str(" = ");
-            s.push_str(&a.to_string());
-        }
-        s
+        crate::columns::chain_label(self.term, &self.aliases, false)
     }
 }
 
@@ -746,13 +741,8 @@ pub fn yates_effects(y_standard_order: &[f64]) -> Option<HashMap<Term, f64>> {
 mod tests {
     use super::*;
     use crate::prec::close_rel;
+    use crate::test_support::full;
     use proptest::prelude::*;
-
-    fn full(k: usize) -> Vec<Vec<f64>> {
-        crate::design::FractionalDesign::full(k)
-            .unwrap()
-            .coded_rows()
-    }
 
     fn t(s: &str) -> Term {
         Term::parse(s, 25).unwrap()
@@ -1042,6 +1032,19 @@ mod tests {
             .collect()
     }
 
+    /// `reps` replicates of the fraction of `base` factors with generator words `gens` (a base
+    /// column mask, the sign), masks cut to the base factors and empty words dropped.
+    fn replicated_fraction(base: usize, gens: Vec<(u32, bool)>, reps: usize) -> Vec<Vec<f64>> {
+        let gens: Vec<(u32, bool)> = gens
+            .into_iter()
+            .map(|(m, s)| (m & ((1 << base) - 1), s))
+            .filter(|(m, _)| *m != 0)
+            .collect();
+        let rows = fraction_rows(base, &gens);
+        let n = rows.len() * reps;
+        rows.into_iter().cycle().take(n).collect()
+    }
+
     proptest! {
         /// Two implementations that must agree: Yates' transform and least squares, on complete
         /// (possibly replicated, possibly fractional) data, to 1e-9 relative.
@@ -1053,16 +1056,7 @@ mod tests {
             seed in proptest::collection::vec(-100.0f64..100.0, 64),
             shuffle in any::<u64>(),
         ) {
-            let gens: Vec<(u32, bool)> = gens
-                .into_iter()
-                .map(|(m, s)| (m & ((1 << base) - 1), s))
-                .filter(|(m, _)| *m != 0)
-                .collect();
-            let rows = fraction_rows(base, &gens);
-            let mut levels = Vec::new();
-            for _ in 0..reps {
-                levels.extend(rows.iter().cloned());
-            }
+            let levels = replicated_fraction(base, gens, reps);
             // A fixed permutation so run order does not matter.
             let n = levels.len();
             // n is a power of two, so any odd step visits every run once.
@@ -1096,16 +1090,7 @@ mod tests {
             seed in proptest::collection::vec(-100.0f64..100.0, 64),
             drop in proptest::collection::vec(proptest::bool::weighted(0.25), 64),
         ) {
-            let gens: Vec<(u32, bool)> = gens
-                .into_iter()
-                .map(|(m, s)| (m & ((1 << base) - 1), s))
-                .filter(|(m, _)| *m != 0)
-                .collect();
-            let rows = fraction_rows(base, &gens);
-            let mut levels = Vec::new();
-            for _ in 0..reps {
-                levels.extend(rows.iter().cloned());
-            }
+            let levels = replicated_fraction(base, gens, reps);
             let n = levels.len();
             let y: Vec<Option<f64>> = (0..n)
                 .map(|i| (!drop[i % 64] || i >= 64).then(|| seed[i % 64] + i as f64 * 0.01))

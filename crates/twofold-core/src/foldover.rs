@@ -134,6 +134,16 @@ mod tests {
         w.iter().map(ToString::to_string).collect()
     }
 
+    /// The combined runs, as a set, are the original runs plus the follow-up.
+    fn assert_combined_is_both(d: &FractionalDesign, f: &FoldOver) {
+        let mut both: Vec<Vec<i8>> = d.coded_runs();
+        both.extend(f.follow_up_runs.clone());
+        both.sort();
+        let mut comb = f.combined.coded_runs();
+        comb.sort();
+        assert_eq!(both, comb);
+    }
+
     #[test]
     fn full_fold_of_a_resolution_iii_design_gives_resolution_iv() {
         // 2^(7-4) with D=AB, E=AC, F=BC, G=ABC folded over fully: the combined 16 runs have the
@@ -145,13 +155,7 @@ mod tests {
         assert_eq!(f.combined_aliases.resolution, Some(4));
         assert_eq!(f.combined_aliases.word_length_pattern, vec![0, 7, 0, 0, 0]);
         assert_eq!(f.broken_words.len(), 8);
-        // The combined runs as a set equal the original plus the follow-up.
-        let mut both: Vec<Vec<i8>> = d.coded_runs();
-        both.extend(f.follow_up_runs.clone());
-        both.sort();
-        let mut comb = f.combined.coded_runs();
-        comb.sort();
-        assert_eq!(both, comb);
+        assert_combined_is_both(&d, &f);
     }
 
     #[test]
@@ -170,12 +174,7 @@ mod tests {
                 .iter()
                 .any(|t| t.label() == "A")
         );
-        let mut both: Vec<Vec<i8>> = d.coded_runs();
-        both.extend(f.follow_up_runs.clone());
-        both.sort();
-        let mut comb = f.combined.coded_runs();
-        comb.sort();
-        assert_eq!(both, comb);
+        assert_combined_is_both(&d, &f);
     }
 
     #[test]

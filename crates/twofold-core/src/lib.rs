@@ -34,3 +34,6 @@ pub mod predict;
 pub mod transform;
 
 pub use term::{SignedTerm, Term};
+
+#[cfg(test)]
+pub(crate) mod test_support;

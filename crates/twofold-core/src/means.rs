@@ -249,6 +249,7 @@ mod tests {
     use super::*;
     use crate::anova::{ModelSpec, fit_model};
     use crate::term::Term;
+    use crate::test_support::{observations, replicated_full};
 
     /// Montgomery, Example 6-1 (fill height, 2^3 with two replicates; data verified in
     /// REFERENCES.md), in standard order, replicate I then replicate II.
@@ -256,21 +257,7 @@ mod tests {
         let y = [
             -3.0, 0.0, -1.0, 2.0, -1.0, 2.0, 1.0, 6.0, -1.0, 1.0, 0.0, 3.0, 0.0, 1.0, 1.0, 5.0,
         ];
-        let levels: Vec<Vec<f64>> = (0..16)
-            .map(|r| {
-                (0..3)
-                    .map(|f| if (r % 8) >> f & 1 == 1 { 1.0 } else { -1.0 })
-                    .collect()
-            })
-            .collect();
-        Observations::new(
-            3,
-            levels,
-            vec![],
-            y.iter().map(|&v| Some(v)).collect(),
-            vec![],
-        )
-        .unwrap()
+        observations(3, replicated_full(3, y.len()), &y)
     }
 
     #[test]

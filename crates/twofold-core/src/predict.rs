@@ -416,12 +416,7 @@ mod tests {
     use crate::anova::{ModelSpec, fit_model};
     use crate::data::Observations;
     use crate::term::Term;
-
-    fn full(k: usize) -> Vec<Vec<f64>> {
-        crate::design::FractionalDesign::full(k)
-            .unwrap()
-            .coded_rows()
-    }
+    use crate::test_support::full;
 
     fn fit_of(k: usize, y: &[f64], terms: &[&str]) -> ModelFit {
         let o = Observations::new(

@@ -205,27 +205,29 @@ impl ColumnSearch {
     /// Adds column `z` to the subset counts: `n_j(x) += n_{j−1}(x·z)`, x and x·z in pairs so
     /// the old values are read before they change.
     pub(super) fn add(&mut self, z: u32) {
-        let w = self.width;
-        let z = z as usize;
-        for x in 0..self.counts.len() / w {
-            let y = x ^ z;
-            if y < x {
-                continue;
-            }
-            let (lo, hi) = self.counts.split_at_mut(y * w);
-            let rx = &mut lo[x * w..x * w + w];
-            let ry = &mut hi[..w];
-            for j in (1..w).rev() {
+        self.for_each_pair(z, |rx, ry| {
+            for j in (1..rx.len()).rev() {
                 let a = rx[j] + ry[j - 1];
                 let b = ry[j] + rx[j - 1];
                 rx[j] = a;
                 ry[j] = b;
             }
-        }
+        });
     }
 
     /// Undoes [`Self::add`]: `n_j(x) −= n_{j−1}(x·z)` in increasing j.
     pub(super) fn remove(&mut self, z: u32) {
+        self.for_each_pair(z, |rx, ry| {
+            for j in 1..rx.len() {
+                rx[j] -= ry[j - 1];
+                ry[j] -= rx[j - 1];
+            }
+        });
+    }
+
+    /// Calls `f` once for every pair of column values {x, x·z} (x < x·z) with their rows of
+    /// counts, so [`Self::add`] and [`Self::remove`] can update both rows of a pair together.
+    fn for_each_pair(&mut self, z: u32, mut f: impl FnMut(&mut [u32], &mut [u32])) {
         let w = self.width;
         let z = z as usize;
         for x in 0..self.counts.len() / w {
@@ -234,12 +236,7 @@ impl ColumnSearch {
                 continue;
             }
             let (lo, hi) = self.counts.split_at_mut(y * w);
-            let rx = &mut lo[x * w..x * w + w];
-            let ry = &mut hi[..w];
-            for j in 1..w {
-                rx[j] -= ry[j - 1];
-                ry[j] -= rx[j - 1];
-            }
+            f(&mut lo[x * w..x * w + w], &mut hi[..w]);
         }
     }
 

@@ -78,6 +78,17 @@ fn y_ticks(svg: &mut Svg, plot: Rect, ticks: &Ticks, sy: Scale, grid: bool) {
     }
 }
 
+/// Length of the longest tick label of an axis (1 for an axis without ticks), for the room left
+/// of the plot.
+fn widest_label(ticks: &Ticks) -> usize {
+    ticks
+        .values()
+        .iter()
+        .map(|v| ticks.label(*v).len())
+        .max()
+        .unwrap_or(1)
+}
+
 /// Room left of and below a plot area for tick labels and axis titles.
 fn plot_area(area: Rect, y_label_chars: usize) -> Rect {
     let small = sizes::SMALL;
@@ -117,12 +128,7 @@ pub fn half_normal(
     let y_max = finite.iter().map(|p| p.quantile).fold(0.0, f64::max);
     let xt = Ticks::new(0.0, x_max * 1.04, 5);
     let yt = Ticks::new(0.0, y_max * 1.04, 4);
-    let label_chars = yt
-        .values()
-        .iter()
-        .map(|v| yt.label(*v).len())
-        .max()
-        .unwrap_or(1);
+    let label_chars = widest_label(&yt);
     let plot = plot_area(area, label_chars);
     let sx = Scale {
         d0: xt.lo,
@@ -286,12 +292,7 @@ pub fn interaction(svg: &mut Svg, area: Rect, panel: &InteractionPanel, y_ticks:
         w: area.w,
         h: (area.h - title.size * 1.4 - legend_h).max(10.0),
     };
-    let label_chars = y_ticks
-        .values()
-        .iter()
-        .map(|v| y_ticks.label(*v).len())
-        .max()
-        .unwrap_or(1);
+    let label_chars = widest_label(y_ticks);
     let mut plot = plot_area(body, label_chars);
     // No axis title under an interaction plot: the level names say what the axis is.
     plot.h += sizes::SMALL * 1.2;

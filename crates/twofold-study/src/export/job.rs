@@ -119,20 +119,18 @@ impl ExportJob {
         paper: Paper,
         notify: impl Fn() + Send + 'static,
     ) -> ExportJob {
-        let work: Work = Box::new(move |progress, cancelled| {
-            progress(Stage::LayingOut);
-            let input = make_input();
-            let page = super::summary_svg(&input, paper);
-            super::write_pages(
-                &[page],
-                paper,
-                &path,
-                &super::summary_title(&input),
-                progress,
-                cancelled,
-            )
-        });
-        ExportJob::spawn(work, notify)
+        ExportJob::pages(
+            move || {
+                let input = make_input();
+                (
+                    vec![super::summary_svg(&input, paper)],
+                    super::summary_title(&input),
+                )
+            },
+            path,
+            paper,
+            notify,
+        )
     }
 
     /// Starts exporting a blank run sheet.
@@ -142,17 +140,31 @@ impl ExportJob {
         paper: Paper,
         notify: impl Fn() + Send + 'static,
     ) -> ExportJob {
+        ExportJob::pages(
+            move || {
+                (
+                    super::run_sheet::render_pages(&sheet, paper),
+                    super::run_sheet::document_title(&sheet),
+                )
+            },
+            path,
+            paper,
+            notify,
+        )
+    }
+
+    /// Starts laying out pages with `lay_out` (the pages as SVG and the document title) on a
+    /// new thread, then writing them to `path`.
+    fn pages(
+        lay_out: impl FnOnce() -> (Vec<String>, String) + Send + 'static,
+        path: PathBuf,
+        paper: Paper,
+        notify: impl Fn() + Send + 'static,
+    ) -> ExportJob {
         let work: Work = Box::new(move |progress, cancelled| {
             progress(Stage::LayingOut);
-            let pages = super::run_sheet::render_pages(&sheet, paper);
-            super::write_pages(
-                &pages,
-                paper,
-                &path,
-                &super::run_sheet::document_title(&sheet),
-                progress,
-                cancelled,
-            )
+            let (pages, title) = lay_out();
+            super::write_pages(&pages, paper, &path, &title, progress, cancelled)
         });
         ExportJob::spawn(work, notify)
     }

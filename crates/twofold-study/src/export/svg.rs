@@ -264,18 +264,7 @@ impl Svg {
             num(y),
             num(style.size)
         );
-        if style.bold {
-            self.body.push_str(" font-weight=\"bold\"");
-        }
-        match style.anchor {
-            Anchor::Start => {}
-            Anchor::Middle => self.body.push_str(" text-anchor=\"middle\""),
-            Anchor::End => self.body.push_str(" text-anchor=\"end\""),
-        }
-        if style.fill != INK {
-            let _ = write!(self.body, " fill=\"{}\"", style.fill);
-        }
-        let _ = writeln!(self.body, ">{}</text>", escape(text));
+        self.end_text(text, style, Some(style.anchor));
     }
 
     /// Text turned 90° anticlockwise (a vertical axis title), centred on `(x, y)`.
@@ -290,8 +279,19 @@ impl Svg {
             num(y),
             num(style.size)
         );
+        self.end_text(text, style, None);
+    }
+
+    /// Ends a `<text>` element whose position and size are written: the weight, the anchor
+    /// (`None` where the element has set its own), the colour unless ink, then the text.
+    fn end_text(&mut self, text: &str, style: TextStyle, anchor: Option<Anchor>) {
         if style.bold {
             self.body.push_str(" font-weight=\"bold\"");
+        }
+        match anchor {
+            None | Some(Anchor::Start) => {}
+            Some(Anchor::Middle) => self.body.push_str(" text-anchor=\"middle\""),
+            Some(Anchor::End) => self.body.push_str(" text-anchor=\"end\""),
         }
         if style.fill != INK {
             let _ = write!(self.body, " fill=\"{}\"", style.fill);

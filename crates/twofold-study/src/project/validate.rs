@@ -111,22 +111,9 @@ impl Project {
         }
         for (index, f) in self.factors.iter().enumerate() {
             let at = |part| Field::Factor { index, part };
-            let name = f.name.trim();
-            if name.is_empty() {
-                push(
-                    Severity::Error,
-                    at(FactorField::Name),
-                    "the factor needs a name".into(),
-                );
-            } else if self.factors[..index]
-                .iter()
-                .any(|g| g.name.trim().eq_ignore_ascii_case(name))
-            {
-                push(
-                    Severity::Error,
-                    at(FactorField::Name),
-                    format!("another factor is already called “{name}”"),
-                );
+            let earlier = self.factors[..index].iter().map(|g| g.name.as_str());
+            if let Some(problem) = name_problem(&f.name, earlier, "factor") {
+                push(Severity::Error, at(FactorField::Name), problem);
             }
             match &f.kind {
                 FactorKind::Numeric { low, high } => {
@@ -218,22 +205,9 @@ impl Project {
             );
         }
         for (index, r) in self.responses.iter().enumerate() {
-            let name = r.name.trim();
-            if name.is_empty() {
-                push(
-                    Severity::Error,
-                    Field::ResponseName { index },
-                    "the response needs a name".into(),
-                );
-            } else if self.responses[..index]
-                .iter()
-                .any(|g| g.name.trim().eq_ignore_ascii_case(name))
-            {
-                push(
-                    Severity::Error,
-                    Field::ResponseName { index },
-                    format!("another response is already called “{name}”"),
-                );
+            let earlier = self.responses[..index].iter().map(|g| g.name.as_str());
+            if let Some(problem) = name_problem(&r.name, earlier, "response") {
+                push(Severity::Error, Field::ResponseName { index }, problem);
             }
             for label in &r.model.terms {
                 if let Err(e) = twofold_core::term::Term::parse(label, n) {
@@ -254,6 +228,23 @@ fn unit_space(unit: &str) -> String {
         String::new()
     } else {
         format!("{unit} ")
+    }
+}
+
+/// What is wrong with the name of a `what` ("factor", "response"): empty once trimmed, or the
+/// same as one of the `earlier` names apart from case and surrounding spaces.
+fn name_problem<'a>(
+    name: &str,
+    mut earlier: impl Iterator<Item = &'a str>,
+    what: &str,
+) -> Option<String> {
+    let name = name.trim();
+    if name.is_empty() {
+        Some(format!("the {what} needs a name"))
+    } else if earlier.any(|g| g.trim().eq_ignore_ascii_case(name)) {
+        Some(format!("another {what} is already called “{name}”"))
+    } else {
+        None
     }
 }
 

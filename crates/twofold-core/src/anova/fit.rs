@@ -1,0 +1,457 @@
+//! The least-squares fit itself: model columns, rank checks, QR solution and the ANOVA table
+//! (see the parent module for the method and its sources).
+
+use crate::columns::term_value;
+use crate::data::Observations;
+use crate::prec::RANK_REL;
+use crate::term::Term;
+use nalgebra::{DMatrix, DVector};
+use std::collections::{BTreeMap, BTreeSet};
+
+use super::*;
+
+/// Least-squares coefficients of `v` on the columns of `x` (full column rank), by QR.
+fn least_squares(x: &DMatrix<f64>, v: &DVector<f64>) -> Option<DVector<f64>> {
+    if x.ncols() == 0 {
+        return Some(DVector::zeros(0));
+    }
+    let qr = x.clone().qr();
+    let qtv = qr.q().transpose() * v;
+    qr.r().solve_upper_triangular(&qtv)
+}
+
+/// Fits `spec` to the used runs of `obs`. See the module documentation for the model, the order
+/// of the columns and the ANOVA table.
+///
+/// # Example
+/// Montgomery, Example 6-1 (fill height, 2^3 with two replicates; verified): SS(A) = 36.00 and
+/// the pure error is 5.00 on 8 df.
+/// ```
+/// use twofold_core::Term;
+/// use twofold_core::anova::{ModelSpec, Source, fit_model};
+/// use twofold_core::data::Observations;
+///
+/// let y = [-3., 0., -1., 2., -1., 2., 1., 6., -1., 1., 0., 3., 0., 1., 1., 5.];
+/// let levels = (0..16usize)
+///     .map(|r| (0..3).map(|f| if (r % 8) >> f & 1 == 1 { 1.0 } else { -1.0 }).collect())
+///     .collect();
+/// let obs = Observations::new(3, levels, vec![], y.iter().map(|&v| Some(v)).collect(), vec![])?;
+/// let spec = ModelSpec::new(vec![Term::main(0), Term::main(1), Term::main(2)]);
+/// let fit = fit_model(&obs, &spec)?;
+/// let ss_a = fit.anova_row(Source::Term(Term::main(0))).map_or(f64::NAN, |r| r.ss);
+/// // Tolerance 1e-9: sums of squares of small integers, exact up to rounding.
+/// assert!((ss_a - 36.0).abs() < 1e-9);
+/// let pure = fit.anova_row(Source::PureError).map_or((0, f64::NAN), |r| (r.df, r.ss));
+/// assert_eq!(pure.0, 8);
+/// assert!((pure.1 - 5.0).abs() < 1e-9);
+/// # Ok::<(), Box<dyn std::error::Error>>(())
+/// ```
+pub fn fit_model(obs: &Observations, spec: &ModelSpec) -> Result<ModelFit, FitError> {
+    let k = obs.factor_count();
+    let mut chosen: BTreeSet<Term> = BTreeSet::new();
+    for &t in &spec.terms {
+        if t.span() > k {
+            return Err(FitError::TermBeyondFactors {
+                term: t.label(),
+                factor_count: k,
+            });
+        }
+        if !t.is_identity() {
+            chosen.insert(t);
+        }
+    }
+    let mut added_for_hierarchy = Vec::new();
+    let terms: Vec<Term> = if spec.hierarchical {
+        let closed = hierarchical_closure(&chosen.iter().copied().collect::<Vec<_>>());
+        added_for_hierarchy = closed
+            .iter()
+            .copied()
+            .filter(|t| !chosen.contains(t))
+            .collect();
+        closed
+    } else {
+        chosen.into_iter().collect()
+    };
+
+    let runs = obs.used_runs();
+    let n = runs.len();
+    if n == 0 {
+        return Err(FitError::NoUsableRuns);
+    }
+    let levels = obs.levels();
+    let y: Vec<f64> = runs
+        .iter()
+        .map(|&r| obs.response()[r].unwrap_or(0.0))
+        .collect();
+    let block_of: Vec<u32> = runs.iter().map(|&r| obs.blocks()[r]).collect();
+    let labels: Vec<u32> = {
+        let s: BTreeSet<u32> = block_of.iter().copied().collect();
+        s.into_iter().collect()
+    };
+    let centre: Vec<bool> = runs.iter().map(|&r| obs.is_centre(r)).collect();
+    let centre_runs = centre.iter().filter(|&&c| c).count();
+    let with_curvature = spec.curvature && centre_runs > 0 && centre_runs < n;
+
+    let parameters = 1 + (labels.len() - 1) + terms.len() + usize::from(with_curvature);
+    if n < parameters {
+        return Err(FitError::TooFewRuns {
+            runs: n,
+            parameters,
+        });
+    }
+
+    // Candidate columns in fitting order.
+    let mut candidates: Vec<(Column, Vec<f64>)> = Vec::with_capacity(parameters);
+    candidates.push((Column::Intercept, vec![1.0; n]));
+    if let Some((&last, rest)) = labels.split_last() {
+        for &lab in rest {
+            let col = block_of
+                .iter()
+                .map(|&b| {
+                    if b == lab {
+                        1.0
+                    } else if b == last {
+                        -1.0
+                    } else {
+                        0.0
+                    }
+                })
+                .collect();
+            candidates.push((Column::Block(lab), col));
+        }
+    }
+    for &t in &terms {
+        let col = runs.iter().map(|&r| term_value(&levels[r], t)).collect();
+        candidates.push((Column::Term(t), col));
+    }
+    if with_curvature {
+        let col = centre.iter().map(|&c| if c { 1.0 } else { 0.0 }).collect();
+        candidates.push((Column::Curvature, col));
+    }
+
+    // Rank check in order: keep a column only if it is not (numerically) a combination of the
+    // columns kept before it.
+    let mut basis: Vec<Vec<f64>> = Vec::new();
+    let mut kept: Vec<usize> = Vec::new();
+    let mut dropped: Vec<usize> = Vec::new();
+    for (ci, (_, col)) in candidates.iter().enumerate() {
+        let norm0 = col.iter().map(|v| v * v).sum::<f64>().sqrt();
+        let mut v = col.clone();
+        // Two passes of Gram–Schmidt ("twice is enough", Giraud et al. 2005; from memory).
+        for _ in 0..2 {
+            for q in &basis {
+                let d: f64 = q.iter().zip(&v).map(|(a, b)| a * b).sum();
+                for (vi, qi) in v.iter_mut().zip(q) {
+                    *vi -= d * qi;
+                }
+            }
+        }
+        let norm = v.iter().map(|x| x * x).sum::<f64>().sqrt();
+        if norm0 == 0.0 || norm <= RANK_REL * norm0 {
+            dropped.push(ci);
+        } else {
+            v.iter_mut().for_each(|x| *x /= norm);
+            basis.push(v);
+            kept.push(ci);
+        }
+    }
+    let p = kept.len();
+    let xk = DMatrix::from_fn(n, p, |i, j| candidates[kept[j]].1[i]);
+
+    let mut unestimable = Vec::new();
+    for &ci in &dropped {
+        let before: Vec<usize> = kept.iter().copied().filter(|&j| j < ci).collect();
+        let xb = DMatrix::from_fn(n, before.len(), |i, j| candidates[before[j]].1[i]);
+        let v = DVector::from_column_slice(&candidates[ci].1);
+        let coefs = least_squares(&xb, &v).unwrap_or_else(|| DVector::zeros(before.len()));
+        let aliased_with = before
+            .iter()
+            .zip(coefs.iter())
+            .filter(|(_, c)| c.abs() > 1e-9)
+            .map(|(&j, &c)| (candidates[j].0, c))
+            .collect();
+        unestimable.push(Unestimable {
+            column: candidates[ci].0,
+            aliased_with,
+        });
+    }
+
+    let yv = DVector::from_column_slice(&y);
+    let qr = xk.clone().qr();
+    let q = qr.q();
+    let r = qr.r();
+    let qty = q.transpose() * &yv;
+    // The rank check above guarantees a non-singular R; fall back to zeros only to avoid a panic.
+    let b = r
+        .solve_upper_triangular(&qty)
+        .unwrap_or_else(|| DVector::zeros(p));
+    let r_inv = r
+        .solve_upper_triangular(&DMatrix::identity(p, p))
+        .unwrap_or_else(|| DMatrix::zeros(p, p));
+    let xtx_inv = &r_inv * r_inv.transpose();
+
+    let fitted_v = &xk * &b;
+    let fitted: Vec<f64> = fitted_v.iter().copied().collect();
+    let residuals: Vec<f64> = y.iter().zip(&fitted).map(|(a, f)| a - f).collect();
+    let leverage: Vec<f64> = (0..n)
+        .map(|i| (0..p).map(|j| q[(i, j)] * q[(i, j)]).sum())
+        .collect();
+
+    let mean = y.iter().sum::<f64>() / n as f64;
+    let ss_total: f64 = y.iter().map(|v| (v - mean).powi(2)).sum();
+    let ss_res: f64 = residuals.iter().map(|e| e * e).sum();
+    let df_res = n - p;
+    let sum_sq_y: f64 = y.iter().map(|v| v * v).sum();
+    // An exact fit (residuals at rounding level) leaves no error estimate worth dividing by.
+    let exact_fit = ss_res <= 1e-24 * sum_sq_y.max(f64::MIN_POSITIVE);
+    let ms_res = (df_res > 0 && !exact_fit).then(|| ss_res / df_res as f64);
+    let constant = ss_total <= 1e-24 * sum_sq_y.max(f64::MIN_POSITIVE);
+
+    let kind_of = |j: usize| candidates[kept[j]].0;
+    let mut ss_blocks = 0.0;
+    let mut ss_model = 0.0;
+    for j in 0..p {
+        match kind_of(j) {
+            Column::Block(_) => ss_blocks += qty[j] * qty[j],
+            Column::Term(_) => ss_model += qty[j] * qty[j],
+            _ => {}
+        }
+    }
+
+    let coefficient = |j: usize, term: Term| {
+        let se = ms_res.map(|m| (m * xtx_inv[(j, j)]).sqrt());
+        let t = se.filter(|s| *s > 0.0).map(|s| b[j] / s);
+        Coefficient {
+            term,
+            estimate: b[j],
+            std_error: se,
+            t,
+            p: t.and_then(|t| t_two_sided_p(t, df_res)),
+        }
+    };
+    let f_and_p = |ms: f64, df: usize| -> (Option<f64>, Option<f64>) {
+        match ms_res {
+            Some(m) if m > 0.0 && df > 0 => {
+                let f = ms / m;
+                (Some(f), f_upper_p(f, df, df_res))
+            }
+            _ => (None, None),
+        }
+    };
+
+    let mut intercept = coefficient(0, Term::IDENTITY);
+    let mut coefficients = Vec::new();
+    let mut fitted_terms = Vec::new();
+    let mut block_coefs: Vec<(u32, f64)> = Vec::new();
+    let mut term_rows = Vec::new();
+    let mut curvature = None;
+    for j in 0..p {
+        match kind_of(j) {
+            Column::Intercept => intercept = coefficient(j, Term::IDENTITY),
+            Column::Block(lab) => block_coefs.push((lab, b[j])),
+            Column::Term(t) => {
+                fitted_terms.push(t);
+                coefficients.push(coefficient(j, t));
+                let ss = b[j] * b[j] / xtx_inv[(j, j)];
+                let (f, pv) = f_and_p(ss, 1);
+                term_rows.push(AnovaRow {
+                    source: Source::Term(t),
+                    df: 1,
+                    ss,
+                    ms: Some(ss),
+                    f,
+                    p: pv,
+                });
+            }
+            Column::Curvature => {
+                let c = coefficient(j, Term::IDENTITY);
+                let ss = b[j] * b[j] / xtx_inv[(j, j)];
+                let (f, pv) = f_and_p(ss, 1);
+                curvature = Some(Curvature {
+                    centre_runs,
+                    factorial_runs: n - centre_runs,
+                    factorial_minus_centre: -c.estimate,
+                    std_error: c.std_error,
+                    ss,
+                    f,
+                    p: pv,
+                });
+            }
+        }
+    }
+    let mut block_effects: Vec<BlockEffect> = block_coefs
+        .iter()
+        .map(|&(label, effect)| BlockEffect { label, effect })
+        .collect();
+    if let Some(&last) = labels.last()
+        && labels.len() > 1
+    {
+        block_effects.push(BlockEffect {
+            label: last,
+            effect: -block_coefs.iter().map(|(_, e)| e).sum::<f64>(),
+        });
+    }
+
+    // Pure error: runs with identical settings in the same block.
+    let mut groups: BTreeMap<(u32, Vec<i8>), Vec<f64>> = BTreeMap::new();
+    for (i, &r) in runs.iter().enumerate() {
+        let key: Vec<i8> = levels[r].iter().map(|&v| v as i8).collect();
+        groups.entry((block_of[i], key)).or_default().push(y[i]);
+    }
+    let (mut ss_pe, mut df_pe) = (0.0, 0usize);
+    for g in groups.values() {
+        if g.len() > 1 {
+            let m = g.iter().sum::<f64>() / g.len() as f64;
+            ss_pe += g.iter().map(|v| (v - m).powi(2)).sum::<f64>();
+            df_pe += g.len() - 1;
+        }
+    }
+
+    // The table.
+    let row = |source: Source, df: usize, ss: f64| {
+        let ms = (df > 0).then(|| ss / df as f64);
+        let (f, pv) = match ms {
+            Some(ms) => f_and_p(ms, df),
+            None => (None, None),
+        };
+        AnovaRow {
+            source,
+            df,
+            ss,
+            ms,
+            f,
+            p: pv,
+        }
+    };
+    let mut anova = Vec::new();
+    if labels.len() > 1 {
+        anova.push(row(Source::Blocks, labels.len() - 1, ss_blocks));
+    }
+    if !fitted_terms.is_empty() {
+        anova.push(row(Source::Model, fitted_terms.len(), ss_model));
+        anova.extend(term_rows);
+    }
+    if let Some(c) = &curvature {
+        anova.push(AnovaRow {
+            source: Source::Curvature,
+            df: 1,
+            ss: c.ss,
+            ms: Some(c.ss),
+            f: c.f,
+            p: c.p,
+        });
+    }
+    anova.push(AnovaRow {
+        source: Source::Residual,
+        df: df_res,
+        ss: ss_res,
+        ms: ms_res,
+        f: None,
+        p: None,
+    });
+    if df_pe > 0 && df_res > df_pe {
+        let df_lof = df_res - df_pe;
+        let ss_lof = (ss_res - ss_pe).max(0.0);
+        let ms_lof = ss_lof / df_lof as f64;
+        let ms_pe = ss_pe / df_pe as f64;
+        let f = (ms_pe > 1e-24 * sum_sq_y).then(|| ms_lof / ms_pe);
+        anova.push(AnovaRow {
+            source: Source::LackOfFit,
+            df: df_lof,
+            ss: ss_lof,
+            ms: Some(ms_lof),
+            f,
+            p: f.and_then(|f| f_upper_p(f, df_lof, df_pe)),
+        });
+    }
+    if df_pe > 0 {
+        anova.push(AnovaRow {
+            source: Source::PureError,
+            df: df_pe,
+            ss: ss_pe,
+            ms: Some(ss_pe / df_pe as f64),
+            f: None,
+            p: None,
+        });
+    }
+    anova.push(AnovaRow {
+        source: Source::Total,
+        df: n - 1,
+        ss: ss_total,
+        ms: None,
+        f: None,
+        p: None,
+    });
+
+    // Orthogonality of term and curvature columns once intercept and blocks are fitted: the
+    // columns residualised on the first `m` columns are Σ_{i≥m} R_ij q_i, so their inner products
+    // are those of the trailing rows of R.
+    let m = 1 + block_coefs.len();
+    let mut orthogonal = true;
+    for j in m..p {
+        for l in (j + 1)..p {
+            let dot: f64 = (m..p).map(|i| r[(i, j)] * r[(i, l)]).sum();
+            let nj: f64 = (m..p).map(|i| r[(i, j)].powi(2)).sum::<f64>().sqrt();
+            let nl: f64 = (m..p).map(|i| r[(i, l)].powi(2)).sum::<f64>().sqrt();
+            if dot.abs() > 1e-10 * nj * nl {
+                orthogonal = false;
+            }
+        }
+    }
+
+    let press = if leverage.iter().all(|&h| h < 1.0 - 1e-10) {
+        Some(
+            residuals
+                .iter()
+                .zip(&leverage)
+                .map(|(e, h)| (e / (1.0 - h)).powi(2))
+                .sum::<f64>(),
+        )
+    } else {
+        None
+    };
+    let r2 = (!constant).then(|| 1.0 - ss_res / ss_total);
+    let adj_r2 = if !constant && df_res > 0 {
+        Some(1.0 - (ss_res / df_res as f64) / (ss_total / (n - 1) as f64))
+    } else {
+        None
+    };
+    let pred_r2 = if constant {
+        None
+    } else {
+        press.map(|pr| 1.0 - pr / ss_total)
+    };
+
+    Ok(ModelFit {
+        factor_count: k,
+        added_for_hierarchy,
+        terms: fitted_terms,
+        unestimable,
+        intercept,
+        coefficients,
+        block_effects,
+        curvature,
+        anova,
+        sums_of_squares_kind: if orthogonal {
+            SumsOfSquaresKind::Orthogonal
+        } else {
+            SumsOfSquaresKind::Adjusted
+        },
+        r2,
+        adj_r2,
+        pred_r2,
+        press,
+        sigma: ms_res.map(f64::sqrt),
+        ms_residual: ms_res,
+        df_residual: df_res,
+        parameter_count: p,
+        runs,
+        observed: y,
+        fitted,
+        residuals,
+        leverage,
+        columns: kept.iter().map(|&c| candidates[c].0).collect(),
+        estimates: b.iter().copied().collect(),
+        xtx_inv,
+    })
+}
