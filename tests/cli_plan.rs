@@ -66,6 +66,72 @@ fn given_generators_are_used_and_not_searched() {
     assert_eq!(j["resolution"], 4);
 }
 
+/// The 28 two-factor interactions of the 16-run 2^(8-4)_IV (E=BCD, F=ACD, G=ABC, H=ABD, the
+/// table of selected designs) share 7 contrasts, four to a chain: 15 contrasts less 8 for the
+/// main effects (counted by hand).
+const EIGHT_FACTORS: [&str; 8] = [
+    "--factors",
+    "8",
+    "--runs",
+    "16",
+    "--generators",
+    "E=BCD, F=ACD, G=ABC, H=ABD",
+    "--seed",
+    "1",
+];
+
+#[test]
+fn json_lists_each_two_factor_chain_once_and_keeps_the_per_term_aliases() {
+    let j = plan_json(&EIGHT_FACTORS);
+    let chains = j["alias_chains"].as_array().unwrap();
+    let two_factor: Vec<Vec<String>> = chains
+        .iter()
+        .map(|c| {
+            c.as_array()
+                .unwrap()
+                .iter()
+                .map(|m| m.as_str().unwrap().to_string())
+                .collect::<Vec<String>>()
+        })
+        .filter(|c| c[0].len() == 2)
+        .collect();
+    assert_eq!(two_factor.len(), 7, "{two_factor:?}");
+    let mut all: Vec<String> = Vec::new();
+    for c in &two_factor {
+        assert_eq!(c.len(), 4, "{c:?}");
+        all.extend(c.iter().cloned());
+    }
+    all.sort();
+    all.dedup();
+    assert_eq!(all.len(), 28, "each interaction in one chain only");
+    // AB x ABCG = CG, AB x ABDH = DH, AB x ABEF = EF.
+    assert_eq!(two_factor[0], ["AB", "CG", "DH", "EF"]);
+    // The per-term map stays for readers that look a term up.
+    assert_eq!(j["aliases"]["CG"], serde_json::json!(["AB", "DH", "EF"]));
+    assert_eq!(j["aliases"].as_object().unwrap().len(), 8 + 28);
+}
+
+#[test]
+fn text_lists_each_two_factor_chain_once() {
+    let mut args = vec!["plan"];
+    args.extend_from_slice(&EIGHT_FACTORS);
+    let (code, out, err) = run(&args);
+    assert_eq!(code, 0, "{err}");
+    let chains: Vec<&str> = out
+        .lines()
+        .map(str::trim)
+        .filter(|l| {
+            let m: Vec<&str> = l.split(" = ").collect();
+            m.len() > 1
+                && m.iter()
+                    .all(|t| t.len() == 2 && t.chars().all(|c| c.is_ascii_uppercase()))
+        })
+        .collect();
+    assert_eq!(chains.len(), 7, "{out}");
+    assert!(chains.iter().all(|c| c.split(" = ").count() == 4), "{out}");
+    assert!(chains.contains(&"AB = CG = DH = EF"), "{out}");
+}
+
 #[test]
 fn full_factorial_has_null_resolution() {
     let j = plan_json(&["--factors", "Temp,Time,Speed"]);

@@ -161,6 +161,39 @@ impl AliasReport {
             .filter(|(_, a): &(Term, Vec<SignedTerm>)| !a.is_empty())
             .collect()
     }
+
+    /// The alias chains of the main effects and two-factor interactions, each chain once: a row
+    /// of [`AliasReport::aliases`] is left out when its term already appears in an earlier row's
+    /// chain (so `AB = CE = DF = GH` is listed under `AB` only, not again under `CE`, `DF`, `GH`).
+    /// Rows keep their order; the first member of a chain is its lowest-order, first-listed term.
+    pub fn chains(&self) -> Vec<(Term, Vec<SignedTerm>)> {
+        let mut seen: Vec<Term> = Vec::new();
+        let mut out = Vec::new();
+        for (t, a) in &self.aliases {
+            if seen.contains(t) {
+                continue;
+            }
+            seen.extend(a.iter().map(|x| x.term));
+            out.push((*t, a.clone()));
+        }
+        out
+    }
+
+    /// The chains of [`AliasReport::chains`] that hold two or more two-factor interactions and no
+    /// main effect: the two-factor chains a bench engineer must untangle with more runs.
+    pub fn two_factor_chains(&self) -> Vec<(Term, Vec<SignedTerm>)> {
+        self.chains()
+            .into_iter()
+            .filter(|(t, a)| t.order() == 2 && a.iter().any(|x| x.term.order() == 2))
+            .collect()
+    }
+}
+
+/// A chain written on one line with its leading term, e.g. `AB = CE = DF = GH`.
+pub fn chain_label(term: Term, aliases: &[SignedTerm]) -> String {
+    let mut parts = vec![term.label()];
+    parts.extend(aliases.iter().map(ToString::to_string));
+    parts.join(" = ")
 }
 
 /// Builds the [`AliasReport`] of a design.
@@ -230,6 +263,30 @@ mod tests {
 
     fn labels(words: &[SignedTerm]) -> Vec<String> {
         words.iter().map(ToString::to_string).collect()
+    }
+
+    #[test]
+    fn each_two_factor_chain_of_the_sixteen_run_eight_factor_design_is_listed_once() {
+        // Montgomery 2017, table of selected fractions, 2^(8-4)_IV: E=BCD, F=ACD, G=ABC, H=ABD. Counting by hand:
+        // 16 runs give 15 contrasts; 8 carry the main effects, so the 28 two-factor interactions
+        // share the other 7, four to a chain. AB x ABCG = CG, AB x ABDH = DH and
+        // AB x (BCDE x ACDF = ABEF) = EF give the chain AB = CG = DH = EF.
+        let r = alias_report(&design(8, "E=BCD, F=ACD, G=ABC, H=ABD"));
+        assert_eq!(r.aliases.len(), 8 + 28, "one row per member, as before");
+        let chains = r.two_factor_chains();
+        assert_eq!(chains.len(), 7);
+        let mut members: Vec<Term> = Vec::new();
+        for (t, a) in &chains {
+            assert_eq!(a.len(), 3, "{}", chain_label(*t, a));
+            members.push(*t);
+            members.extend(a.iter().map(|x| x.term));
+        }
+        members.sort();
+        members.dedup();
+        assert_eq!(members.len(), 28, "every interaction in exactly one chain");
+        assert_eq!(chain_label(chains[0].0, &chains[0].1), "AB = CG = DH = EF");
+        // The main effects keep a row each (aliased with three-factor terms only).
+        assert_eq!(r.chains().len(), 8 + 7);
     }
 
     #[test]

@@ -12,7 +12,7 @@ use super::{EXIT_BAD_INPUT, EXIT_FAILURE};
 use serde_json::{Value, json};
 use std::io::Write;
 use std::time::Duration;
-use twofold_core::alias::{AliasReport, alias_report, relation_label, roman};
+use twofold_core::alias::{AliasReport, alias_report, chain_label, relation_label, roman};
 use twofold_core::design::{FractionalDesign, check_run_count};
 use twofold_core::foldover::{FoldKind, FoldOver, fold_over};
 use twofold_core::ofat;
@@ -305,6 +305,19 @@ fn to_json(p: &Planned) -> Value {
             Value::from(a.iter().map(ToString::to_string).collect::<Vec<_>>()),
         );
     }
+    // Each chain once, leading term first: `aliases` above keeps one row per term for readers
+    // that look a term up; `alias_chains` is the list to show.
+    let chains: Vec<Value> = p
+        .report
+        .chains()
+        .iter()
+        .filter(|(_, a)| !a.is_empty())
+        .map(|(t, a)| {
+            let mut members = vec![t.label()];
+            members.extend(a.iter().map(ToString::to_string));
+            Value::from(members)
+        })
+        .collect();
     let runs: Vec<Value> = p
         .plan
         .runs
@@ -341,6 +354,7 @@ fn to_json(p: &Planned) -> Value {
         "resolution": p.report.resolution,
         "word_length_pattern": p.report.word_length_pattern,
         "aliases": aliases,
+        "alias_chains": chains,
         "clear_main_effects": labels(&p.report.clear_main_effects),
         "clear_two_factor_interactions": labels(&p.report.clear_two_factor_interactions),
         "proven_minimum_aberration": p.proven,
@@ -442,11 +456,13 @@ fn write_text(p: &Planned, out: &mut dyn Write) -> std::io::Result<()> {
             "Warning: main effects are aliased with two-factor interactions; an apparent main effect may be an interaction."
         )?;
     }
-    writeln!(out, "Aliases (up to three-factor terms):")?;
-    for (t, a) in &r.aliases {
+    writeln!(
+        out,
+        "Alias chains (up to three-factor terms, each chain once):"
+    )?;
+    for (t, a) in r.chains() {
         if !a.is_empty() {
-            let list: Vec<String> = a.iter().map(ToString::to_string).collect();
-            writeln!(out, "  {t} = {}", list.join(" = "))?;
+            writeln!(out, "  {}", chain_label(t, &a))?;
         }
     }
     writeln!(

@@ -9,7 +9,7 @@ use egui::{Grid, RichText, Ui};
 
 use super::widgets::{not_available, warning_box};
 use super::{Command, Pane, View};
-use twofold_core::alias::{AliasReport, alias_report, roman};
+use twofold_core::alias::{AliasReport, alias_report, chain_label, roman};
 use twofold_core::design::{FractionalDesign, Generator};
 use twofold_core::search::{DesignOption, SearchBudget, design_options};
 use twofold_study::jobs::{Control, Job};
@@ -627,23 +627,60 @@ fn alias_preview(
         .default_open(k <= 7)
         .show(ui, |ui| {
             Grid::new("alias_grid").striped(true).show(ui, |ui| {
-                for (term, aliases) in report.aliases.iter().take(400) {
-                    ui.label(RichText::new(term.label()).strong());
-                    if aliases.is_empty() {
-                        ui.weak("clear (only longer terms)");
-                    } else {
-                        let list: Vec<String> = aliases.iter().map(ToString::to_string).collect();
-                        let text = format!("= {}", list.join(" = "));
-                        if aliases.iter().any(|a| a.term.order() <= 2) && term.order() <= 2 {
-                            ui.colored_label(pal.warn, text);
-                        } else {
-                            ui.label(text);
+                for row in alias_rows(report).into_iter().take(400) {
+                    match row {
+                        AliasRow::Clear(term) => {
+                            ui.horizontal(|ui| {
+                                ui.label(RichText::new(term).strong());
+                                ui.weak("clear (only longer terms)");
+                            });
+                        }
+                        AliasRow::Chain { text, mixed } => {
+                            if mixed {
+                                ui.colored_label(pal.warn, text);
+                            } else {
+                                ui.label(text);
+                            }
                         }
                     }
                     ui.end_row();
                 }
             });
         });
+}
+
+/// One row of the design pane's alias list.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub enum AliasRow {
+    /// A term aliased with no term of up to three letters.
+    Clear(String),
+    /// A chain, written once, e.g. `AB = CG = DH = EF`; `mixed` when two of its members are
+    /// main effects or two-factor interactions (shown as a warning).
+    Chain {
+        /// The chain on one line.
+        text: String,
+        /// Two main effects or two-factor interactions share the chain.
+        mixed: bool,
+    },
+}
+
+/// The rows of the alias list: each chain of main effects and two-factor interactions once, in
+/// the order of the report.
+pub fn alias_rows(report: &AliasReport) -> Vec<AliasRow> {
+    report
+        .chains()
+        .into_iter()
+        .map(|(term, aliases)| {
+            if aliases.is_empty() {
+                AliasRow::Clear(term.label())
+            } else {
+                AliasRow::Chain {
+                    text: chain_label(term, &aliases),
+                    mixed: term.order() <= 2 && aliases.iter().any(|a| a.term.order() <= 2),
+                }
+            }
+        })
+        .collect()
 }
 
 fn factor_name(project: &Project, term: twofold_core::term::Term) -> String {
@@ -657,6 +694,39 @@ fn factor_name(project: &Project, term: twofold_core::term::Term) -> String {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn alias_list_shows_each_two_factor_chain_once() {
+        // Montgomery 2017, table of selected fractions, 2^(8-4)_IV (E=BCD, F=ACD, G=ABC, H=ABD):
+        // the 28 two-factor interactions fall into 7 chains of 4 (16 runs, 15 contrasts, 8 of
+        // them for the main effects; counted by hand).
+        let key: PreviewKey = (
+            8,
+            Some(16),
+            ["E=BCD", "F=ACD", "G=ABC", "H=ABD"]
+                .iter()
+                .map(|g| g.to_string())
+                .collect(),
+        );
+        let report = preview_of(&key).unwrap();
+        let rows = alias_rows(&report);
+        let two_factor: Vec<&String> = rows
+            .iter()
+            .filter_map(|r| match r {
+                AliasRow::Chain { text, mixed: true } => Some(text),
+                _ => None,
+            })
+            .collect();
+        assert_eq!(two_factor.len(), 7, "{two_factor:?}");
+        for chain in &two_factor {
+            let members: Vec<&str> = chain.split(" = ").collect();
+            assert_eq!(members.len(), 4, "{chain}");
+            assert!(members.iter().all(|m| m.len() == 2), "{chain}");
+        }
+        assert!(two_factor.contains(&&"AB = CG = DH = EF".to_string()));
+        // Eight main-effect rows (aliased with three-factor terms only) and the seven chains.
+        assert_eq!(rows.len(), 15);
+    }
 
     #[test]
     fn typed_block_generators_are_read_or_refused_with_the_reason() {
