@@ -181,6 +181,24 @@ pub fn percent(x: f64) -> String {
     format!("{} %", fixed(100.0 * x, 1))
 }
 
+/// A share of explained variation such as R² (at most 1): four significant digits, `1` only for
+/// a fit that is perfect to rounding error (`|1 − x| < 1e-12`), and `> 0.9999` for a value that
+/// would round to 1 without being 1 (`0.9512` -> `0.9512`, `0.99996` -> `> 0.9999`).
+pub fn fraction_of_one(x: f64) -> String {
+    if !x.is_finite() {
+        return not_finite(x, false);
+    }
+    if (1.0 - x).abs() < 1e-12 {
+        return "1".to_string();
+    }
+    let text = fmt_num(x, 4);
+    if x < 1.0 && text == "1" {
+        "> 0.9999".to_string()
+    } else {
+        text
+    }
+}
+
 /// Distance between axis ticks for about `target` intervals over a span of `span`: 1, 2, 2.5 or
 /// 5 times a power of ten (a common plotting heuristic, no source).
 pub fn tick_step(span: f64, target: usize) -> f64 {
@@ -418,5 +436,20 @@ mod tests {
         assert_eq!(p_value(0.00001), "< 0.0001");
         assert_eq!(p_value(0.04567), "0.0457");
         assert_eq!(percent(0.95123), "95.1 %");
+    }
+
+    #[test]
+    fn a_share_of_one_is_never_rounded_up_to_a_perfect_fit() {
+        // Common practice, no source: R² shown to four significant digits, 1 only when it is 1.
+        assert_eq!(fraction_of_one(1.0), "1");
+        assert_eq!(
+            fraction_of_one(1.0 - 1e-15),
+            "1",
+            "rounding error of a perfect fit"
+        );
+        assert_eq!(fraction_of_one(0.99996), "> 0.9999");
+        assert_eq!(fraction_of_one(0.9999), "0.9999");
+        assert_eq!(fraction_of_one(0.95123), "0.9512");
+        assert_eq!(fraction_of_one(-0.25), "\u{2212}0.25");
     }
 }

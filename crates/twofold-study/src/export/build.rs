@@ -747,4 +747,75 @@ mod tests {
         };
         assert_eq!(make(), make());
     }
+
+    /// The text of the SVG group that starts with `<title>{title}</title>`, up to its end.
+    fn group<'a>(svg: &'a str, title: &str) -> &'a str {
+        let start = svg
+            .find(&format!("<g><title>{title}</title>"))
+            .unwrap_or_else(|| panic!("no group {title}"));
+        let end = svg[start..].find("</g>").unwrap() + start;
+        &svg[start..end]
+    }
+
+    #[test]
+    fn interaction_panels_name_the_response_axis_and_show_the_markers_in_the_legend() {
+        // Common practice, no source: an axis carries its quantity; a legend shows the symbol
+        // drawn in the plot. The demo's model holds AB, so its page has the AB panel.
+        let p = demo_with_model();
+        let r = Report::for_response(&p, 0, 0);
+        let svg =
+            super::super::summary_svg(&summary_input(&p, &r, &BuildOptions::default()), Paper::A4);
+        let name = &p.responses[0].name;
+        let unit = &p.responses[0].unit;
+        let panel = &svg[svg.find("<g><title>interaction plot AB</title>").unwrap()..];
+        let vertical = "rotate(-90)";
+        let axis = &panel[panel.find(vertical).expect("a vertical axis title")..];
+        let text = &axis[axis.find('>').unwrap() + 1..axis.find("</text>").unwrap()];
+        assert_eq!(text, format!("{name} ({unit})"));
+        let legend = group(&svg, "legend of AB");
+        assert_eq!(legend.matches("<circle").count(), 1, "{legend}");
+        assert_eq!(legend.matches("<rect").count(), 1, "{legend}");
+        assert_eq!(legend.matches("<text").count(), 2, "{legend}");
+    }
+
+    #[test]
+    fn a_perfect_fit_reads_one_and_no_fit_prints_as_a_rounded_percentage() {
+        let p = demo_with_model();
+        let r = Report::for_response(&p, 0, 0);
+        let mut input = summary_input(&p, &r, &BuildOptions::default());
+        let svg = super::super::summary_svg(&input, Paper::A4);
+        assert!(!svg.contains(" %,"), "no R² as a percentage");
+        let anova = input.anova.as_mut().unwrap();
+        let r2 = anova.r_squared.unwrap();
+        assert!(
+            svg.contains(&format!("R² = {}", crate::numbers::fraction_of_one(r2))),
+            "the window's R² to four digits"
+        );
+        anova.r_squared = Some(1.0);
+        anova.adj_r_squared = Some(0.99996);
+        let svg = super::super::summary_svg(&input, Paper::A4);
+        assert!(svg.contains("R² = 1,"), "perfect fit");
+        assert!(
+            svg.contains("adjusted R² = &gt; 0.9999"),
+            "not rounded up to 1"
+        );
+        assert!(!svg.contains("100.0"));
+    }
+
+    #[test]
+    fn without_centre_points_the_page_says_curvature_was_not_checked() {
+        let p = demo_with_model();
+        let r = Report::for_response(&p, 0, 0);
+        let mut input = summary_input(&p, &r, &BuildOptions::default());
+        assert_eq!(
+            input.design.centre_points, 2,
+            "the demo has two centre points"
+        );
+        let line = "not checked: no centre points";
+        assert!(!super::super::summary_svg(&input, Paper::A4).contains(line));
+        input.design.centre_points = 0;
+        let svg = super::super::summary_svg(&input, Paper::A4);
+        assert_eq!(svg.matches(line).count(), 1);
+        assert!(svg.contains(">Curvature<"));
+    }
 }

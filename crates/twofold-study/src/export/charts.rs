@@ -271,8 +271,15 @@ pub fn half_normal(
     svg.end_group();
 }
 
-/// Draws one interaction plot into `area` with the shared response axis `y_ticks`.
-pub fn interaction(svg: &mut Svg, area: Rect, panel: &InteractionPanel, y_ticks: &Ticks) {
+/// Draws one interaction plot into `area` with the shared response axis `y_ticks`, titled
+/// `y_label` (the response), and a legend that shows each line with its marker.
+pub fn interaction(
+    svg: &mut Svg,
+    area: Rect,
+    panel: &InteractionPanel,
+    y_ticks: &Ticks,
+    y_label: &str,
+) {
     svg.begin_group(&format!("interaction plot {}", panel.term));
     let title = TextStyle::new(sizes::SMALL).bold();
     let title_text = super::page::ellipsize(
@@ -294,7 +301,7 @@ pub fn interaction(svg: &mut Svg, area: Rect, panel: &InteractionPanel, y_ticks:
     };
     let label_chars = widest_label(y_ticks);
     let mut plot = plot_area(body, label_chars);
-    // No axis title under an interaction plot: the level names say what the axis is.
+    // No axis title under an interaction plot: the level names say what the x axis is.
     plot.h += sizes::SMALL * 1.2;
     let sy = Scale {
         d0: y_ticks.lo,
@@ -306,6 +313,13 @@ pub fn interaction(svg: &mut Svg, area: Rect, panel: &InteractionPanel, y_ticks:
     let xs = [plot.x + inset, plot.x + plot.w - inset];
     axes_frame(svg, plot);
     y_ticks_only(svg, plot, y_ticks, sy);
+    let axis_title = TextStyle::new(sizes::SMALL);
+    svg.text_vertical(
+        area.x + axis_title.size * 0.8,
+        plot.y + plot.h / 2.0,
+        &super::page::ellipsize(y_label, axis_title, plot.h),
+        axis_title,
+    );
     let tick_style = TextStyle::new(sizes::SMALL)
         .fill(MUTED)
         .anchor(Anchor::Middle);
@@ -347,8 +361,9 @@ pub fn interaction(svg: &mut Svg, area: Rect, panel: &InteractionPanel, y_ticks:
             }
         }
     }
-    // Legend under the plot, one line per level of the trace factor; the level is never cut,
-    // only the factor name.
+    // Legend under the plot, one line per level of the trace factor with the marker of its
+    // points; the level is never cut, only the factor name.
+    svg.begin_group(&format!("legend of {}", panel.term));
     for t in 0..2 {
         let ly =
             area.y + area.h - legend.size * 0.3 - (1 - t) as f64 * legend.size * sizes::LEADING;
@@ -359,11 +374,22 @@ pub fn interaction(svg: &mut Svg, area: Rect, panel: &InteractionPanel, y_ticks:
         };
         let mid = ly - legend.size * 0.35;
         svg.line((area.x, mid), (area.x + 50.0, mid), colour, 4.0, dash);
+        if t == 1 {
+            svg.circle((area.x + 25.0, mid), 10.0, Some(ACCENT), None);
+        } else {
+            svg.square(
+                (area.x + 25.0, mid),
+                9.0,
+                Some("#ffffff"),
+                Some((QUIET, 3.0)),
+            );
+        }
         let level = format!(" = {}", panel.trace_levels[t]);
         let name_w = (area.w - 60.0 - legend.width(&level)).max(legend.size);
         let name = super::page::ellipsize(&panel.trace_factor, legend, name_w);
         svg.text(area.x + 60.0, ly, &format!("{name}{level}"), legend);
     }
+    svg.end_group();
     svg.end_group();
 }
 

@@ -89,6 +89,15 @@ fn design(svg: &mut Svg, flow: &mut Flow, input: &SummaryInput) {
     }
     runs.push_str(&format!(" = {} runs", d.total_runs));
     flow.fact(svg, "Runs", &runs, LABEL_W, 2);
+    if d.centre_points == 0 {
+        flow.fact(
+            svg,
+            "Curvature",
+            "not checked: no centre points",
+            LABEL_W,
+            2,
+        );
+    }
     let mut blocks = if d.blocks <= 1 {
         "none (one block)".to_string()
     } else {
@@ -367,13 +376,13 @@ fn anova(svg: &mut Svg, flow: &mut Flow, input: &SummaryInput) {
     }
     let mut fit = Vec::new();
     if let Some(v) = table.r_squared {
-        fit.push(format!("R² = {}", numbers::percent(v)));
+        fit.push(format!("R² = {}", numbers::fraction_of_one(v)));
     }
     if let Some(v) = table.adj_r_squared {
-        fit.push(format!("adjusted R² = {}", numbers::percent(v)));
+        fit.push(format!("adjusted R² = {}", numbers::fraction_of_one(v)));
     }
     if let Some(v) = table.pred_r_squared {
-        fit.push(format!("predicted R² = {}", numbers::percent(v)));
+        fit.push(format!("predicted R² = {}", numbers::fraction_of_one(v)));
     }
     if let Some(v) = table.std_dev {
         fit.push(format!("s = {}", numbers::fmt_sig(v, 4)));

@@ -250,6 +250,12 @@ fn right_column(svg: &mut Svg, input: &SummaryInput, flow: Flow) {
         top.paragraph(svg, text, TextStyle::new(sizes::BODY).fill(MUTED), 2);
     } else {
         let ticks: Ticks = charts::shared_interaction_ticks(&panels);
+        let r = &input.response;
+        let y_label = if r.unit.is_empty() {
+            r.name.clone()
+        } else {
+            format!("{} ({})", r.name, r.unit)
+        };
         for (i, panel) in panels.iter().enumerate() {
             let col = i % 2;
             let row = i / 2;
@@ -259,7 +265,7 @@ fn right_column(svg: &mut Svg, input: &SummaryInput, flow: Flow) {
                 w: panel_w,
                 h: panel_h,
             };
-            charts::interaction(svg, area, panel, &ticks);
+            charts::interaction(svg, area, panel, &ticks, &y_label);
         }
         top.space(rows as f64 * panel_h + (rows as f64 - 1.0) * gap);
         let shown = if input.interactions.len() > panels.len() {
