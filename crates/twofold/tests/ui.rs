@@ -724,3 +724,114 @@ fn a_level_typed_far_from_the_other_level_is_flagged_beside_the_field() {
         twofold_study::project::FactorKind::Numeric { high: 2000.0, .. }
     ));
 }
+
+#[test]
+fn new_clears_the_saved_notice_of_the_previous_project() {
+    let dir = tempfile::tempdir().unwrap();
+    let file = dir.path().join("coating.ron");
+    let mut app = TwofoldApp::new_for_test(three_factor_project());
+    app.set_file_picker(twofold_app::app::FilePicker::Fixed(Some(file.clone())));
+    let mut h = harness(app);
+    h.run();
+    h.key_press_modifiers(egui::Modifiers::COMMAND, egui::Key::S);
+    h.run();
+    let notice = h.state().notice().unwrap_or_default().to_string();
+    assert!(notice.starts_with("Saved"), "{notice}");
+    assert!(h.query_by_label_contains("Saved").is_some());
+    // Saved, so New asks nothing.
+    h.key_press_modifiers(egui::Modifiers::COMMAND, egui::Key::N);
+    h.run();
+    assert_eq!(h.state().project().name, "Untitled");
+    assert_eq!(h.state().notice(), None);
+    assert!(h.query_by_label_contains("Saved").is_none());
+}
+
+#[test]
+fn save_changes_first_speaks_of_no_file_for_a_project_never_saved() {
+    let mut h = harness(TwofoldApp::new_for_test(three_factor_project()));
+    h.run();
+    h.state_mut().act(twofold_app::app::AppAction::Command(
+        twofold_app::panels::Command::Edit(twofold_study::project::Edit::SetName(
+            "Coating trial 2".into(),
+        )),
+    ));
+    h.run();
+    assert!(h.state().history().is_dirty());
+    assert!(h.state().path().is_none());
+    h.key_press_modifiers(egui::Modifiers::COMMAND, egui::Key::N);
+    h.run();
+    assert!(h.query_by_label("Save changes first?").is_some());
+    assert!(h.query_by_label_contains("its file").is_none());
+    assert!(h.query_by_label_contains("never been saved").is_some());
+    h.get_by_label("Cancel").click();
+    h.run();
+
+    // Once saved to a file, the question names that file.
+    let dir = tempfile::tempdir().unwrap();
+    let file = dir.path().join("coating.ron");
+    assert!(h.state_mut().save_to(&file));
+    h.state_mut().act(twofold_app::app::AppAction::Command(
+        twofold_app::panels::Command::Edit(twofold_study::project::Edit::SetName(
+            "Coating trial 3".into(),
+        )),
+    ));
+    h.run();
+    h.key_press_modifiers(egui::Modifiers::COMMAND, egui::Key::N);
+    h.run();
+    assert!(
+        h.query_by_label_contains("not saved in coating.ron")
+            .is_some()
+    );
+    assert!(h.query_by_label_contains("never been saved").is_none());
+}
+
+#[test]
+fn the_suggested_page_name_carries_the_chosen_format_as_its_extension() {
+    use twofold_app::app::{AppAction, FileAction};
+    let mut app = TwofoldApp::new_for_test(three_factor_project());
+    assert_eq!(
+        app.suggested_file_name(FileAction::ExportSummary),
+        "Coating-trial-summary.pdf"
+    );
+    app.act(AppAction::SetPageFormat("png"));
+    assert_eq!(
+        app.suggested_file_name(FileAction::ExportSummary),
+        "Coating-trial-summary.png"
+    );
+    assert_eq!(
+        app.suggested_file_name(FileAction::PrintRunSheet),
+        "Coating-trial-run-sheet.png"
+    );
+    // The menu offers the formats in words, not as a rule for names without an extension.
+    let mut h = harness(app);
+    h.run();
+    h.get_by_label("Project").click();
+    h.run();
+    assert!(h.query_by_label_contains("Without extension").is_none());
+    assert!(h.query_by_label("PNG picture").is_some());
+    assert!(h.query_by_label("PDF document").is_some());
+}
+
+#[test]
+fn an_export_chosen_with_the_keyboard_closes_the_project_menu() {
+    let mut app = TwofoldApp::new_for_test(three_factor_project());
+    // The fixed picker answers "cancelled" at once: nothing is written.
+    app.set_file_picker(twofold_app::app::FilePicker::Fixed(None));
+    let mut h = harness(app);
+    h.run();
+    h.get_by_label("Project").click();
+    h.run();
+    h.get_by_label("Export summary…").focus();
+    h.run();
+    h.key_press(egui::Key::Enter);
+    h.run();
+    h.run();
+    assert_eq!(
+        h.state().notice(),
+        Some("Nothing was written: no file was chosen.")
+    );
+    assert!(
+        h.query_by_label("Printable run sheet…").is_none(),
+        "the menu closed"
+    );
+}

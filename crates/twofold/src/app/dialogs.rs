@@ -164,9 +164,10 @@ impl TwofoldApp {
                     .as_ref()
                     .and_then(|p| p.parent())
                     .map(Path::to_path_buf);
+                let page_ext = self.page_ext;
                 let job = Job::start(
                     "file dialog",
-                    move |_: &Control| native_dialog(action, dir, suggested),
+                    move |_: &Control| native_dialog(action, dir, suggested, page_ext),
                     self.repaint_hook(),
                 );
                 self.pending_dialog = Some((action, job));
@@ -203,6 +204,14 @@ impl TwofoldApp {
             }
         }
     }
+    /// The file name a dialog for `action` suggests, with its extension (`Gloss-summary.pdf`).
+    pub fn suggested_file_name(&self, action: FileAction) -> String {
+        self.suggested_path_for(action)
+            .file_name()
+            .map(|f| f.to_string_lossy().into_owned())
+            .unwrap_or_default()
+    }
+
     /// Where a dialog suggests a file: Save as the current file, exports beside it (named after
     /// the project), else in the home folder.
     fn suggested_path_for(&self, action: FileAction) -> PathBuf {
@@ -304,16 +313,31 @@ impl TwofoldApp {
 }
 
 /// Shows the native dialog for `action` and waits for it (on a worker thread).
-fn native_dialog(action: FileAction, dir: Option<PathBuf>, suggested: String) -> DialogAnswer {
+/// The chosen page format (`page_ext`) is the first filter, matching the suggested name.
+fn native_dialog(
+    action: FileAction,
+    dir: Option<PathBuf>,
+    suggested: String,
+    page_ext: &str,
+) -> DialogAnswer {
     let started = std::time::Instant::now();
     let mut dialog = match action {
         FileAction::Open | FileAction::SaveAs => {
             rfd::FileDialog::new().add_filter("Twofold project", &["ron"])
         }
-        FileAction::ExportSummary | FileAction::PrintRunSheet => rfd::FileDialog::new()
-            .add_filter("PDF document", &["pdf"])
-            .add_filter("PNG image, 300 dpi", &["png"])
-            .add_filter("SVG drawing", &["svg"]),
+        FileAction::ExportSummary | FileAction::PrintRunSheet => {
+            let pdf = ("PDF document", "pdf");
+            let png = ("PNG picture, 300 dpi", "png");
+            let (first, second) = if page_ext == "png" {
+                (png, pdf)
+            } else {
+                (pdf, png)
+            };
+            rfd::FileDialog::new()
+                .add_filter(first.0, &[first.1])
+                .add_filter(second.0, &[second.1])
+                .add_filter("SVG drawing", &["svg"])
+        }
         FileAction::ExportCsv | FileAction::ImportCsv => {
             rfd::FileDialog::new().add_filter("CSV table", &["csv"])
         }

@@ -189,6 +189,8 @@ impl TwofoldApp {
     pub(super) fn reset_to(&mut self, history: History, path: Option<PathBuf>) {
         self.history = history;
         self.path = path;
+        // A notice ("Saved …", "Exported …") spoke of the project that is gone.
+        self.notice = None;
         self.coalesce = None;
         self.panes = Panes::default();
         if self.inline_compute {

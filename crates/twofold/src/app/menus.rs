@@ -123,6 +123,21 @@ impl TwofoldApp {
     /// The Project menu: files, exports and paper.
     fn project_menu(&self, ui: &mut Ui, out: &mut Vec<AppAction>) {
         ui.menu_button("Project", |ui| {
+            let before = out.len();
+            self.project_menu_items(ui, out);
+            // A button pressed with the keyboard (Enter or Space) does not close the menu by
+            // itself, unlike a click; the paper and page-format choices keep it open.
+            let chose = out[before..]
+                .iter()
+                .any(|a| !matches!(a, AppAction::SetPaper(_) | AppAction::SetPageFormat(_)));
+            if chose {
+                ui.close();
+            }
+        });
+    }
+
+    fn project_menu_items(&self, ui: &mut Ui, out: &mut Vec<AppAction>) {
+        {
             if ui
                 .add(egui::Button::new("New").shortcut_text("Ctrl+N"))
                 .clicked()
@@ -185,9 +200,11 @@ impl TwofoldApp {
             }
             let mut ext = self.page_ext;
             ui.horizontal(|ui| {
-                ui.label("Without extension:");
-                ui.selectable_value(&mut ext, "pdf", "PDF");
-                ui.selectable_value(&mut ext, "png", "PNG");
+                ui.label("Pages as:");
+                ui.selectable_value(&mut ext, "pdf", "PDF document")
+                    .on_hover_text("The suggested file name ends in .pdf");
+                ui.selectable_value(&mut ext, "png", "PNG picture")
+                    .on_hover_text("The suggested file name ends in .png (300 dpi)");
             });
             if ext != self.page_ext {
                 out.push(AppAction::SetPageFormat(ext));
@@ -203,7 +220,7 @@ impl TwofoldApp {
             {
                 out.push(AppAction::File(FileAction::ImportCsv));
             }
-        });
+        }
     }
 
     /// Problems, notices, the open dialog and the running export.

@@ -77,7 +77,7 @@ impl TwofoldApp {
                 }
                 Modal::Unsaved(_) => {
                     ui.heading("Save changes first?");
-                    ui.label("The project has changes that are not saved to its file.");
+                    ui.label(unsaved_question(self.path.as_deref()));
                     ui.horizontal(|ui| {
                         if ui.button("Save").clicked() {
                             answer(ModalAnswer::SaveFirst);
@@ -292,5 +292,17 @@ impl TwofoldApp {
             }
             (_, modal) => self.modal = Some(modal),
         }
+    }
+}
+
+/// The words of the "Save changes first?" question: a project that was never saved has no file
+/// to speak of, so Save there asks where to put it.
+pub fn unsaved_question(path: Option<&std::path::Path>) -> String {
+    match path.and_then(|p| p.file_name()) {
+        Some(name) => format!(
+            "The project has changes that are not saved in {}.",
+            name.to_string_lossy()
+        ),
+        None => "This project has never been saved. Save asks where to keep it; Discard changes loses it.".to_string(),
     }
 }
