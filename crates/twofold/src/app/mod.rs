@@ -94,7 +94,8 @@ pub enum AppAction {
     ShowSafety,
     /// Paper of exported pages.
     SetPaper(Paper),
-    /// Format of exported pages whose chosen name has no extension (`pdf` or `png`).
+    /// Format of exported pages (`pdf` or `png`): the extension of the suggested file name, the
+    /// first choice of the save dialog, and the extension of a typed name that has none.
     SetPageFormat(&'static str),
     /// Ask the running export to stop.
     CancelExport,
@@ -216,7 +217,7 @@ pub struct TwofoldApp {
     inline_compute: bool,
     /// Paper of exported pages.
     paper: Paper,
-    /// Format of exported pages when the chosen name has no extension.
+    /// Format of exported pages (see [`AppAction::SetPageFormat`]).
     page_ext: &'static str,
     /// The export running on a worker thread, and what it writes (for the status bar).
     export: Option<(String, ExportJob)>,
