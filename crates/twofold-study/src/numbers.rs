@@ -173,14 +173,6 @@ pub fn p_value(p: f64) -> String {
     }
 }
 
-/// A fraction as a percentage with one decimal (`0.9512` -> `95.1 %`).
-pub fn percent(x: f64) -> String {
-    if !x.is_finite() {
-        return not_finite(x, false);
-    }
-    format!("{} %", fixed(100.0 * x, 1))
-}
-
 /// A share of explained variation such as R² (at most 1): four significant digits, `1` only for
 /// a fit that is perfect to rounding error (`|1 − x| < 1e-12`), and `> 0.9999` for a value that
 /// would round to 1 without being 1 (`0.9512` -> `0.9512`, `0.99996` -> `> 0.9999`).
@@ -432,10 +424,9 @@ mod tests {
     }
 
     #[test]
-    fn p_values_and_percentages() {
+    fn p_values() {
         assert_eq!(p_value(0.00001), "< 0.0001");
         assert_eq!(p_value(0.04567), "0.0457");
-        assert_eq!(percent(0.95123), "95.1 %");
     }
 
     #[test]

@@ -60,23 +60,11 @@ pub fn project_hash(project: &Project) -> String {
     digest.iter().map(|b| format!("{b:02x}")).collect()
 }
 
-/// The name a transform has in the window.
+/// The name a transform has in the window; empty for none (the page then says nothing).
 pub fn transform_name(t: ResponseTransform) -> String {
     match t {
         ResponseTransform::None => String::new(),
-        ResponseTransform::Ln => "natural log".to_string(),
-        ResponseTransform::Log10 => "log10".to_string(),
-        ResponseTransform::Sqrt => "square root".to_string(),
-        ResponseTransform::Reciprocal => "1 / y".to_string(),
-        ResponseTransform::Power { lambda } => format!("power {}", numbers::fmt_num(lambda, 4)),
-    }
-}
-
-/// The left-hand side of the equation as the window writes it (`Yield`, `natural log(Yield)`).
-fn response_label(name: &str, t: ResponseTransform) -> String {
-    match t {
-        ResponseTransform::None => name.to_string(),
-        other => format!("{}({name})", transform_name(other)),
+        other => other.words(),
     }
 }
 
@@ -225,7 +213,7 @@ pub fn summary_input(project: &Project, results: &Report, options: &BuildOptions
         Equation {
             text: eq
                 .format_with_names(&names)
-                .replacen('y', &response_label(name, transform), 1),
+                .replacen('y', &transform.label(name), 1),
             note: if project.factors.iter().any(|f| !f.is_numeric()) {
                 "Factors with two labels enter as -1 (first label) and +1 (second).".to_string()
             } else {

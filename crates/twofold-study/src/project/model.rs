@@ -289,6 +289,39 @@ pub enum ResponseTransform {
     },
 }
 
+impl ResponseTransform {
+    /// The transforms offered by name, in the order a chooser lists them.
+    pub const NAMED: [ResponseTransform; 5] = [
+        ResponseTransform::None,
+        ResponseTransform::Ln,
+        ResponseTransform::Log10,
+        ResponseTransform::Sqrt,
+        ResponseTransform::Reciprocal,
+    ];
+
+    /// The transform in words, as the window and the page write it (`natural log`, `power 0.25`).
+    pub fn words(self) -> String {
+        match self {
+            ResponseTransform::None => "none".to_string(),
+            ResponseTransform::Ln => "natural log".to_string(),
+            ResponseTransform::Log10 => "log10".to_string(),
+            ResponseTransform::Sqrt => "square root".to_string(),
+            ResponseTransform::Reciprocal => "1 / y".to_string(),
+            ResponseTransform::Power { lambda } => {
+                format!("power {}", crate::numbers::fmt_num(lambda, 4))
+            }
+        }
+    }
+
+    /// The analysed response named after the measured one: `Yield`, or `natural log(Yield)`.
+    pub fn label(self, name: &str) -> String {
+        match self {
+            ResponseTransform::None => name.to_string(),
+            other => format!("{}({name})", other.words()),
+        }
+    }
+}
+
 /// One row of the run sheet.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct RunRecord {

@@ -9,7 +9,7 @@ use twofold_core::transform::Transform;
 use super::Report;
 
 /// The transform's key in JSON (`none`, `ln`, `log10`, `sqrt`, `inverse`, `power:λ`).
-pub fn transform_key(t: Transform) -> String {
+fn transform_key(t: Transform) -> String {
     match t {
         Transform::None => "none".into(),
         Transform::Ln => "ln".into(),

@@ -19,20 +19,8 @@ fn opt(v: Option<f64>, sig: usize) -> String {
 }
 
 fn p_text(p: Option<f64>) -> String {
-    match p {
-        Some(p) if p < 0.0001 => "< 0.0001".into(),
-        Some(p) => format!("{p:.4}"),
-        None => "—".into(),
-    }
+    p.map_or("—".to_string(), twofold_study::numbers::p_value)
 }
-
-const TRANSFORMS: [(ResponseTransform, &str); 5] = [
-    (ResponseTransform::None, "none"),
-    (ResponseTransform::Ln, "natural log"),
-    (ResponseTransform::Log10, "log10"),
-    (ResponseTransform::Sqrt, "square root"),
-    (ResponseTransform::Reciprocal, "1 / y"),
-];
 
 impl Pane for ModelPane {
     fn ui(&mut self, ui: &mut Ui, view: &View<'_>, out: &mut Vec<Command>) {
@@ -61,16 +49,12 @@ impl Pane for ModelPane {
             }
             ui.separator();
             ui.label("Transform:");
-            let current = TRANSFORMS
-                .iter()
-                .find(|(t, _)| *t == def.model.transform)
-                .map_or("power", |(_, n)| n);
             egui::ComboBox::from_id_salt("transform")
-                .selected_text(current)
+                .selected_text(def.model.transform.words())
                 .show_ui(ui, |ui| {
-                    for (t, name) in TRANSFORMS {
+                    for t in ResponseTransform::NAMED {
                         if ui
-                            .selectable_label(def.model.transform == t, name)
+                            .selectable_label(def.model.transform == t, t.words())
                             .clicked()
                         {
                             out.push(Command::Edit(Edit::SetTransform {
@@ -182,11 +166,7 @@ impl Pane for ModelPane {
                 ui.add_space(6.0);
                 ui.label(RichText::new("Equation").strong());
                 let names: Vec<&str> = view.project.factors.iter().map(|f| f.name.as_str()).collect();
-                let y = if def.model.transform == ResponseTransform::None {
-                    def.name.clone()
-                } else {
-                    format!("{}({})", TRANSFORMS.iter().find(|(t, _)| *t == def.model.transform).map_or("f", |(_, n)| n), def.name)
-                };
+                let y = def.model.transform.label(&def.name);
                 if let Some(eq) = &res.equation_coded {
                     ui.label("In coded units (−1 low, +1 high):");
                     ui.monospace(eq.text.replacen('y', &y, 1));
