@@ -2,19 +2,21 @@
 
 use std::fmt::Write as _;
 
-use twofold_core::anova::{SumsOfSquaresKind, format_number};
+use twofold_core::anova::SumsOfSquaresKind;
 use twofold_core::effects::EffectMethod;
 use twofold_core::lenth::Significance;
 
 use super::Report;
 use super::json::labels;
 
+/// Numbers of the text report: the shared rule, six significant digits, plain ASCII so the
+/// report can be read by scripts as well as people.
 fn num(x: f64) -> String {
-    format_number(x)
+    crate::numbers::plain(x, 6)
 }
 
 fn opt(x: Option<f64>) -> String {
-    x.map_or_else(|| "-".to_string(), format_number)
+    x.map_or_else(|| "-".to_string(), num)
 }
 
 /// The report as a readable text, or why it cannot be written (no effects or no fit).
