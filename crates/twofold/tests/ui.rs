@@ -368,7 +368,7 @@ fn every_step_of_the_demo_project_draws_with_real_glyphs_and_named_widgets() {
         ["A", "B", "C", "AB"]
     );
     // With a model chosen, every analysis pane draws its full content.
-    for step in [Step::Model, Step::Plots, Step::Residuals, Step::Predict] {
+    for step in [Step::Model, Step::Plots, Step::Predict] {
         h.state_mut().set_step(step);
         h.run();
     }
@@ -475,7 +475,7 @@ fn the_residuals_step_of_the_demo_shows_the_box_cox_profile_and_its_verdict() {
     let mut h = harness(TwofoldApp::new_for_test(
         twofold_study::project::demo_project(),
     ));
-    h.state_mut().set_step(Step::Residuals);
+    h.state_mut().set_step(Step::Model);
     h.run();
     assert!(
         h.query_by_label_contains("Box–Cox: which power").is_some(),
@@ -531,7 +531,7 @@ fn multiplicative_project() -> Project {
 fn the_box_cox_button_applies_the_log_and_undo_takes_it_back() {
     use twofold_study::project::ResponseTransform;
     let mut h = harness(TwofoldApp::new_for_test(multiplicative_project()));
-    h.state_mut().set_step(Step::Residuals);
+    h.state_mut().set_step(Step::Model);
     h.run();
     let transform =
         |h: &Harness<'static, TwofoldApp>| h.state().project().responses[0].model.transform;
@@ -541,6 +541,9 @@ fn the_box_cox_button_applies_the_log_and_undo_takes_it_back() {
             .is_some(),
         "the verdict points to the log"
     );
+    // The profile sits under the fit in "Can the model be trusted?": scroll down to it.
+    h.get_by_label("Use the natural log").scroll_to_me();
+    h.run();
     h.get_by_label("Use the natural log").click();
     h.run();
     assert_eq!(transform(&h), ResponseTransform::Ln);
@@ -603,8 +606,8 @@ fn typing_into_a_level_field_reached_by_tab_or_a_click_replaces_its_content() {
     let mut h = harness(TwofoldApp::new_for_test(p));
     h.state_mut().set_step(Step::Factors);
     h.run();
-    // By keyboard: from the kind box before it, Tab goes to the low level.
-    h.get_by_label("kind of factor A").focus();
+    // By keyboard: from the name before it, Tab goes to the low level.
+    h.get_by_label("name of factor A").focus();
     h.run();
     h.key_press(egui::Key::Tab);
     h.run();
@@ -821,7 +824,7 @@ fn an_export_chosen_with_the_keyboard_closes_the_project_menu() {
     h.run();
     h.get_by_label("Project").click();
     h.run();
-    h.get_by_label("Export summary…").focus();
+    h.get_by_label("Export summary… Ctrl+E").focus();
     h.run();
     h.key_press(egui::Key::Enter);
     h.run();

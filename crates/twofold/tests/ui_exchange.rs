@@ -18,7 +18,7 @@ fn menu(h: &mut Harness<'static, TwofoldApp>, item: &str) {
     h.get_by_label("Project").click();
     h.step();
     h.step();
-    h.get_by_label(item).click();
+    h.get_by_label_contains(item).click();
     h.step();
 }
 

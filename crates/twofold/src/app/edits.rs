@@ -201,5 +201,7 @@ impl TwofoldApp {
         self.debouncer.settled(self.history.revision());
         self.response = None;
         self.refresh();
+        // Another project: its first control takes the keyboard.
+        self.focus.step_changed();
     }
 }

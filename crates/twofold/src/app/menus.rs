@@ -18,6 +18,43 @@ impl TwofoldApp {
         let cmd = Modifiers::COMMAND;
         let shift = Modifiers::COMMAND | Modifiers::SHIFT;
         // Most specific first: Ctrl+Shift+Z would also match Ctrl+Z (extra Shift is ignored).
+        // Steps: Ctrl+1 … Ctrl+7, and Ctrl+Page Down / Page Up for the next and previous one.
+        let goto = ctx.input_mut(|i| {
+            let numbered = [
+                Key::Num1,
+                Key::Num2,
+                Key::Num3,
+                Key::Num4,
+                Key::Num5,
+                Key::Num6,
+                Key::Num7,
+                Key::Num8,
+                Key::Num9,
+            ]
+            .iter()
+            .zip(Step::ALL)
+            .find(|(k, _)| i.consume_shortcut(&KeyboardShortcut::new(cmd, **k)))
+            .map(|(_, s)| s);
+            numbered
+                .or_else(|| {
+                    i.consume_shortcut(&KeyboardShortcut::new(cmd, Key::PageDown))
+                        .then(|| self.step.moved(1))
+                })
+                .or_else(|| {
+                    i.consume_shortcut(&KeyboardShortcut::new(cmd, Key::PageUp))
+                        .then(|| self.step.moved(-1))
+                })
+        });
+        if let Some(step) = goto
+            && step != self.step
+        {
+            out.push(AppAction::Command(Command::Goto(step)));
+        }
+        let export = self.export.is_none()
+            && ctx.input_mut(|i| i.consume_shortcut(&KeyboardShortcut::new(cmd, Key::E)));
+        if export {
+            out.push(AppAction::File(FileAction::ExportSummary));
+        }
         let (redo, undo, save_as, save, open, new) = ctx.input_mut(|i| {
             let redo = i.consume_shortcut(&KeyboardShortcut::new(shift, Key::Z))
                 || i.consume_shortcut(&KeyboardShortcut::new(cmd, Key::Y));
@@ -176,7 +213,10 @@ impl TwofoldApp {
             ui.separator();
             let busy = self.export.is_some();
             if ui
-                .add_enabled(!busy, egui::Button::new("Export summary…"))
+                .add_enabled(
+                    !busy,
+                    egui::Button::new("Export summary…").shortcut_text("Ctrl+E"),
+                )
                 .on_hover_text("The one-page summary of the shown response: PDF, PNG (300 dpi) or SVG, by the file name")
                 .clicked()
             {
@@ -296,11 +336,12 @@ impl TwofoldApp {
             });
     }
 
-    /// The steps down the left side, with a hint under each.
+    /// The steps down the left side, with a hint under each: three to plan and run the
+    /// experiment, then the questions asked of its results.
     pub(super) fn step_rail(&self, ui: &mut Ui, pal: &Palette, out: &mut Vec<AppAction>) {
         egui::Panel::left("step_rail")
             .resizable(false)
-            .exact_size(170.0)
+            .exact_size(196.0)
             .frame(
                 egui::Frame::new()
                     .fill(ui.visuals().faint_bg_color)
@@ -309,40 +350,22 @@ impl TwofoldApp {
             .show(ui, |ui| {
                 let p = self.history.project();
                 for (i, step) in Step::ALL.iter().enumerate() {
-                    let hint = match step {
-                        Step::Factors => match p.factors.len() {
-                            1 => "1 factor".to_string(),
-                            n => format!("{n} factors"),
-                        },
-                        Step::Design => {
-                            if p.runs.is_empty() {
-                                "not chosen".into()
-                            } else {
-                                format!("{} runs", p.runs.len())
-                            }
-                        }
-                        Step::Runs => {
-                            let done = p
-                                .runs
-                                .iter()
-                                .filter(|r| r.status == twofold_study::project::RunStatus::Done)
-                                .count();
-                            if p.runs.is_empty() {
-                                "no runs yet".to_string()
-                            } else {
-                                format!("{done} of {} done", p.runs.len())
-                            }
-                        }
-                        _ => String::new(),
-                    };
+                    match step {
+                        Step::Factors => rail_group(ui, pal, "Plan and run"),
+                        Step::Effects => rail_group(ui, pal, "Ask the results"),
+                        _ => {}
+                    }
+                    let hint = rail_hint(p, *step);
                     let selected = self.step == *step;
                     let text = RichText::new(format!("{}  {}", i + 1, step.title()))
-                        .size(16.0)
+                        .size(15.0)
                         .color(if selected { pal.accent } else { pal.ink });
-                    let resp = ui.add_sized(
-                        [ui.available_width(), 30.0],
-                        egui::Button::selectable(selected, text),
-                    );
+                    let resp = ui
+                        .add_sized(
+                            [ui.available_width(), 28.0],
+                            egui::Button::selectable(selected, text).wrap(),
+                        )
+                        .on_hover_text(format!("Ctrl+{}", i + 1));
                     if resp.clicked() {
                         out.push(AppAction::Command(Command::Goto(*step)));
                     }
@@ -355,8 +378,61 @@ impl TwofoldApp {
                     }
                     ui.add_space(2.0);
                 }
+                ui.add_space(8.0);
+                ui.label(
+                    RichText::new("Ctrl+Page Down: next step")
+                        .small()
+                        .color(pal.muted),
+                );
             });
     }
+}
+
+/// A group heading on the step rail.
+fn rail_group(ui: &mut Ui, pal: &Palette, text: &str) {
+    ui.add_space(6.0);
+    ui.label(RichText::new(text).small().strong().color(pal.muted));
+}
+
+/// The line under a step on the rail: how far the project is with it.
+fn rail_hint(p: &twofold_study::project::Project, step: Step) -> String {
+    match step {
+        Step::Factors => match p.factors.len() {
+            1 => "1 factor".to_string(),
+            n => format!("{n} factors"),
+        },
+        Step::Design if p.runs.is_empty() => "not chosen".into(),
+        Step::Design => format!("{} runs", p.runs.len()),
+        Step::Runs if p.runs.is_empty() => "no runs yet".to_string(),
+        Step::Runs => {
+            let done = p
+                .runs
+                .iter()
+                .filter(|r| r.status == twofold_study::project::RunStatus::Done)
+                .count();
+            format!("{done} of {} done", p.runs.len())
+        }
+        _ => String::new(),
+    }
+}
+
+/// The heading of an analysis step: its question and the response it is asked of.
+pub(super) fn step_heading(ui: &mut Ui, step: Step, view: &View<'_>) {
+    ui.horizontal_wrapped(|ui| {
+        ui.heading(step.title());
+        if let Some(r) = view.response.and_then(|r| view.project.responses.get(r)) {
+            let unit = if r.unit.is_empty() {
+                String::new()
+            } else {
+                format!(" ({})", r.unit)
+            };
+            ui.label(
+                RichText::new(format!("of {}{unit}", r.name))
+                    .size(18.0)
+                    .color(view.pal.muted),
+            );
+        }
+    });
 }
 
 /// The response chooser above the analysis panes (when there are several).

@@ -21,6 +21,7 @@ use egui::Ui;
 
 mod dialogs;
 mod edits;
+mod focus;
 mod jobs;
 mod menus;
 mod modals;
@@ -36,10 +37,9 @@ use crate::panels::design::{Compute, DesignPane};
 use crate::panels::effects::EffectsPane;
 use crate::panels::factors::FactorsPane;
 use crate::panels::interactions::PlotsPane;
-use crate::panels::model::ModelPane;
 use crate::panels::prediction::PredictionPane;
-use crate::panels::residuals::ResidualsPane;
 use crate::panels::run_sheet::RunSheetPane;
+use crate::panels::trust::TrustPane;
 use crate::panels::{Command, Pane, Step, View};
 use crate::theme::{self, Palette, ThemeChoice};
 use twofold_study::export::{ExportJob, Paper};
@@ -163,9 +163,8 @@ pub(super) struct Panes {
     design: DesignPane,
     runs: RunSheetPane,
     effects: EffectsPane,
-    model: ModelPane,
+    model: TrustPane,
     plots: PlotsPane,
-    residuals: ResidualsPane,
     predict: PredictionPane,
 }
 
@@ -178,7 +177,6 @@ impl Panes {
             Step::Effects => &mut self.effects,
             Step::Model => &mut self.model,
             Step::Plots => &mut self.plots,
-            Step::Residuals => &mut self.residuals,
             Step::Predict => &mut self.predict,
         }
     }
@@ -197,6 +195,8 @@ pub struct TwofoldApp {
     analysis: AnalysisSlot,
     coalesce: Option<(CoalesceKey, u64)>,
     modal: Option<Modal>,
+    /// Where the keyboard goes after a step change or a click.
+    focus: focus::FocusKeeper,
     picker: FilePicker,
     pending_dialog: Option<(FileAction, Job<DialogAnswer>)>,
     recent: RecentFiles,
@@ -246,6 +246,7 @@ impl TwofoldApp {
             analysis: AnalysisSlot::default(),
             coalesce: None,
             modal: None,
+            focus: focus::FocusKeeper::default(),
             picker,
             pending_dialog: None,
             recent: RecentFiles::default(),
@@ -369,6 +370,14 @@ impl TwofoldApp {
     /// Applies one action of the menus, the shortcuts, the panes or a question, as the window
     /// does after drawing a frame: the one place where they change the window's state.
     pub fn act(&mut self, action: AppAction) {
+        let step = self.step;
+        self.act_inner(action);
+        if self.step != step {
+            self.focus.step_changed();
+        }
+    }
+
+    fn act_inner(&mut self, action: AppAction) {
         match action {
             AppAction::Command(cmd) => self.apply(cmd),
             AppAction::Undo => self.undo(),
@@ -409,8 +418,11 @@ impl TwofoldApp {
         self.step
     }
 
-    /// Shows another step.
+    /// Shows another step; its first control takes the keyboard.
     pub fn set_step(&mut self, step: Step) {
+        if self.step != step {
+            self.focus.step_changed();
+        }
         self.step = step;
     }
 
@@ -492,7 +504,7 @@ impl TwofoldApp {
         self.step_rail(ui, &pal, &mut actions);
         let now = (self.clock)();
         let mut cmds = Vec::new();
-        egui::CentralPanel::default().show(ui, |ui| {
+        let content = egui::CentralPanel::default().show(ui, |ui| {
             let Self {
                 history,
                 step,
@@ -516,6 +528,7 @@ impl TwofoldApp {
                 now: &now,
             };
             if step.is_analysis() {
+                menus::step_heading(ui, *step, &view);
                 menus::response_picker(ui, &view, &mut cmds);
                 if response.is_some() && !current {
                     ui.horizontal(|ui| {
@@ -528,14 +541,19 @@ impl TwofoldApp {
                         });
                     });
                     if view.results.is_none() {
-                        return;
+                        return ui.layer_id();
                     }
                 }
             }
             // The panes keep their own view state (drafts, scroll, searches); the project
             // changes only through the commands they return.
             panes.get(*step).ui(ui, &view, &mut cmds);
+            ui.layer_id()
         });
+        if self.modal.is_none() {
+            self.focus
+                .after_content(&ctx, content.inner, content.response.rect);
+        }
         actions.extend(cmds.into_iter().map(AppAction::Command));
         for action in actions.drain(..) {
             self.act(action);

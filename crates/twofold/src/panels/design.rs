@@ -48,6 +48,9 @@ pub struct DesignPane {
     pending: Option<(usize, Job<OptionsResult>)>,
     /// Alias report of the draft, cached for one (factor count, generators) key.
     preview: Option<(PreviewKey, Result<AliasReport, String>)>,
+    /// A run size was just picked: the button that makes the run sheet takes the keyboard, so
+    /// choosing and confirming are two key presses.
+    focus_make: bool,
 }
 
 type PreviewKey = (usize, Option<u32>, Vec<String>);
@@ -168,13 +171,14 @@ impl Pane for DesignPane {
                     } else {
                         "Apply and remake the run sheet"
                     };
-                    if ui
-                        .add_enabled(
-                            planable && !unchanged,
-                            egui::Button::new(RichText::new(label).strong()),
-                        )
-                        .clicked()
-                    {
+                    let make = ui.add_enabled(
+                        planable && !unchanged,
+                        egui::Button::new(RichText::new(label).strong()),
+                    );
+                    if std::mem::take(&mut self.focus_make) && make.enabled() {
+                        make.request_focus();
+                    }
+                    if make.clicked() {
                         out.push(Command::ChangeDesign(draft.clone()));
                     }
                     if draft != project.design && ui.button("Discard draft").clicked() {
@@ -252,6 +256,7 @@ fn options_table(
                         u32::try_from(o.runs).ok()
                     };
                     pane.generator_text = gens.join(", ");
+                    pane.focus_make = true;
                 }
                 ui.label(RichText::new(o.runs.to_string()).strong());
                 ui.label(match o.resolution {

@@ -185,11 +185,12 @@ impl Pane for EffectsPane {
                             .filter(|e| l.classify(e.effect) != Significance::WithinMe)
                             .map(|e| e.term.label())
                             .collect();
-                        if ui
+                        let choose = ui
                             .button("Choose the effects beyond ME")
-                            .on_hover_text(format!("Sets the model to: {}", beyond.join(", ")))
-                            .clicked()
-                        {
+                            .on_hover_text(format!("Sets the model to: {}", beyond.join(", ")));
+                        // Opening the step puts the keyboard on the usual first decision.
+                        super::widgets::prefer_first(ui, choose.id);
+                        if choose.clicked() {
                             out.push(Command::Edit(Edit::SetTerms {
                                 response: res.response,
                                 terms: beyond,

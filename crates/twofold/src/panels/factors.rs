@@ -3,7 +3,10 @@
 
 use egui::{Grid, RichText, Ui};
 
-use super::widgets::{number_field, plain_number, text_field, warning_box};
+use super::widgets::{
+    focus_all_selected, left_with_enter, mouse_button, number_field, plain_number, text_field,
+    warning_box,
+};
 use super::{Command, Pane, View};
 use crate::theme::Palette;
 use twofold_core::term::LETTERS;
@@ -61,21 +64,29 @@ impl Pane for FactorsPane {
                 ui.add_enabled_ui(next < MAX_FACTORS, |ui| {
                     if ui
                         .button("+ Add factor")
-                        .on_hover_text("Adds a numeric factor at the end of the list.")
+                        .on_hover_text(
+                            "Adds a numeric factor at the end of the list. Enter in the last \
+                             factor's High or Unit field does the same.",
+                        )
                         .clicked()
                     {
-                        let letter = LETTERS.get(next).copied().unwrap_or('?');
-                        *focus_name = Some(next);
-                        out.push(Command::Edit(Edit::AddFactor(Factor::numeric(
-                            &format!("Factor {letter}"),
-                            "",
-                            0.0,
-                            1.0,
-                        ))));
+                        add_factor(next, focus_name, out);
                     }
                 });
             });
     }
+}
+
+/// Appends factor number `next` (counted from 0) and gives its name field the keyboard.
+fn add_factor(next: usize, focus_name: &mut Option<usize>, out: &mut Vec<Command>) {
+    let letter = LETTERS.get(next).copied().unwrap_or('?');
+    *focus_name = Some(next);
+    out.push(Command::Edit(Edit::AddFactor(Factor::numeric(
+        &format!("Factor {letter}"),
+        "",
+        0.0,
+        1.0,
+    ))));
 }
 
 fn factor_grid(
@@ -96,13 +107,14 @@ fn factor_grid(
         .spacing([10.0, 6.0])
         .striped(true)
         .show(ui, |ui| {
+            // Name, Low, High first: the fields typed for every factor, in Tab order.
             for h in [
                 "",
                 "Name",
-                "Unit",
-                "Kind",
                 "Low (−1)",
                 "High (+1)",
+                "Unit",
+                "Kind",
                 "Safe range",
                 "",
                 "",
@@ -114,25 +126,39 @@ fn factor_grid(
                 let id = ui.scope_id().with(("factor", index));
                 let letter = LETTERS.get(index).copied().unwrap_or('?');
                 ui.label(RichText::new(letter.to_string()).strong().size(17.0));
-                if *focus_name == Some(index) {
-                    select_all_and_focus(ui, id.with("name"), &f.name);
+                if *focus_name == Some(index) && focus_all_selected(ui, id.with("name"), &f.name) {
                     *focus_name = None;
                 }
                 if let Some(name) = text_field(ui, id.with("name"), &f.name, 170.0, "name") {
                     out.push(Command::Edit(Edit::RenameFactor { index, name }));
                 }
+                if let Some(r) = ui.ctx().read_response(id.with("name")) {
+                    let _ = r.accessible_name(format!("name of factor {letter}"));
+                }
+                let mut entered = levels(ui, id, index, f, &pal, out);
                 let unit_enabled = f.is_numeric();
                 ui.add_enabled_ui(unit_enabled, |ui| {
-                    if let Some(unit) = text_field(ui, id.with("unit"), &f.unit, 60.0, "unit") {
+                    let unit_id = id.with("unit");
+                    if let Some(unit) = text_field(ui, unit_id, &f.unit, 60.0, "unit") {
                         out.push(Command::Edit(Edit::SetFactorUnit { index, unit }));
                     }
+                    if let Some(r) = ui.ctx().read_response(unit_id) {
+                        let _ = r.accessible_name(format!("unit of factor {letter}"));
+                    }
+                    entered |= ui
+                        .ctx()
+                        .read_response(unit_id)
+                        .is_some_and(|r| left_with_enter(ui, &r));
                 });
+                // Enter in the last row's High or Unit field goes on to the next factor.
+                if entered && index + 1 == n && n < MAX_FACTORS {
+                    add_factor(n, focus_name, out);
+                }
                 kind_picker(ui, id, index, f, out);
-                levels(ui, id, index, f, &pal, out);
                 safe_range(ui, id, index, f, out);
                 ui.horizontal(|ui| {
                     if ui
-                        .add_enabled(index > 0, egui::Button::new("↑"))
+                        .add_enabled(index > 0, mouse_button("↑"))
                         .on_hover_text("Move up (takes the previous letter)")
                         .clicked()
                     {
@@ -142,7 +168,7 @@ fn factor_grid(
                         }));
                     }
                     if ui
-                        .add_enabled(index + 1 < n, egui::Button::new("↓"))
+                        .add_enabled(index + 1 < n, mouse_button("↓"))
                         .on_hover_text("Move down (takes the next letter)")
                         .clicked()
                     {
@@ -152,7 +178,7 @@ fn factor_grid(
                         }));
                     }
                     if ui
-                        .button("✕")
+                        .add(mouse_button("✕"))
                         .on_hover_text(format!("Remove factor {letter} (undo brings it back)"))
                         .clicked()
                     {
@@ -207,6 +233,7 @@ fn kind_picker(ui: &mut Ui, id: egui::Id, index: usize, f: &Factor, out: &mut Ve
         .accessible_name(format!("kind of factor {letter}"));
 }
 
+/// Draws the two level fields; returns whether the High field was left with Enter.
 fn levels(
     ui: &mut Ui,
     id: egui::Id,
@@ -214,7 +241,7 @@ fn levels(
     f: &Factor,
     pal: &Palette,
     out: &mut Vec<Command>,
-) {
+) -> bool {
     match &f.kind {
         FactorKind::Numeric { low, high } => {
             let letter = LETTERS.get(index).copied().unwrap_or('?');
@@ -228,6 +255,7 @@ fn levels(
                 .accessible_name(format!("low level of factor {letter}"));
             let hi = number_field(ui, id.with("high"), Some(*high), 80.0, "high");
             let hi_rect = hi.response.rect;
+            let entered = left_with_enter(ui, &hi.response);
             let _ = hi
                 .response
                 .accessible_name(format!("high level of factor {letter}"));
@@ -250,13 +278,19 @@ fn levels(
                     },
                 }));
             }
+            entered
         }
         FactorKind::Categorical {
             low_label,
             high_label,
         } => {
             let lo = text_field(ui, id.with("low_label"), low_label, 80.0, "setting");
-            let hi = text_field(ui, id.with("high_label"), high_label, 80.0, "setting");
+            let hi_id = id.with("high_label");
+            let hi = text_field(ui, hi_id, high_label, 80.0, "setting");
+            let entered = ui
+                .ctx()
+                .read_response(hi_id)
+                .is_some_and(|r| left_with_enter(ui, &r));
             if lo.is_some() || hi.is_some() {
                 out.push(Command::Edit(Edit::SetFactorKind {
                     index,
@@ -266,6 +300,7 @@ fn levels(
                     },
                 }));
             }
+            entered
         }
     }
 }
@@ -335,14 +370,4 @@ fn problems_cell(ui: &mut Ui, view: &View<'_>, index: usize) {
             }
         }
     });
-}
-
-/// Gives the text field `id` the keyboard with all of `text` selected.
-fn select_all_and_focus(ui: &mut Ui, id: egui::Id, text: &str) {
-    let mut state = egui::TextEdit::load_state(ui.ctx(), id).unwrap_or_default();
-    state
-        .cursor
-        .set_char_range(Some(egui::text::CCursorRange::select_all_str(text)));
-    state.store(ui.ctx(), id);
-    ui.memory_mut(|m| m.request_focus(id));
 }

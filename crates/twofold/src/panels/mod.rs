@@ -17,12 +17,14 @@ pub mod plots;
 pub mod prediction;
 pub mod residuals;
 pub mod run_sheet;
+pub mod trust;
 pub mod widgets;
 
 use crate::theme::Palette;
 use twofold_study::project::{DesignSettings, Edit, Problem, Project};
 
-/// The steps of the bench loop, one pane each, in the order they are usually visited.
+/// The steps of the window: three to plan and run the experiment, then one per question the
+/// engineer asks of the results, in the order they are usually asked.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
 pub enum Step {
     /// Factors and their levels.
@@ -31,42 +33,40 @@ pub enum Step {
     Design,
     /// The run sheet.
     Runs,
-    /// Ranked effects and the half-normal plot.
+    /// Which effects are real: ranked effects, Lenth's margins, the half-normal plot, the terms of
+    /// the model.
     Effects,
-    /// Model summary: ANOVA, coefficients, equation.
+    /// Whether the model can be trusted: ANOVA, fit statistics, equation, residual checks and the
+    /// Box–Cox profile.
     Model,
-    /// Main-effect and interaction plots.
+    /// What the factors do: main-effect and interaction plots.
     Plots,
-    /// Residual plots.
-    Residuals,
-    /// Predicted response and best settings.
+    /// Which settings to run: predicted response and best settings.
     Predict,
 }
 
 impl Step {
     /// All steps in order.
-    pub const ALL: [Step; 8] = [
+    pub const ALL: [Step; 7] = [
         Step::Factors,
         Step::Design,
         Step::Runs,
         Step::Effects,
         Step::Model,
         Step::Plots,
-        Step::Residuals,
         Step::Predict,
     ];
 
-    /// The name shown on the step rail.
+    /// The name shown on the step rail and as the pane's heading.
     pub fn title(self) -> &'static str {
         match self {
             Step::Factors => "Factors",
             Step::Design => "Design",
             Step::Runs => "Run sheet",
-            Step::Effects => "Effects",
-            Step::Model => "Model",
-            Step::Plots => "Factor plots",
-            Step::Residuals => "Residuals",
-            Step::Predict => "Predict",
+            Step::Effects => "Which effects are real?",
+            Step::Model => "Can the model be trusted?",
+            Step::Plots => "What do the factors do?",
+            Step::Predict => "Which settings to run?",
         }
     }
 
@@ -74,8 +74,15 @@ impl Step {
     pub fn is_analysis(self) -> bool {
         matches!(
             self,
-            Step::Effects | Step::Model | Step::Plots | Step::Residuals | Step::Predict
+            Step::Effects | Step::Model | Step::Plots | Step::Predict
         )
+    }
+
+    /// The step `delta` places on, staying at the first or last.
+    pub fn moved(self, delta: isize) -> Step {
+        let at = Step::ALL.iter().position(|s| *s == self).unwrap_or(0);
+        let to = at.saturating_add_signed(delta).min(Step::ALL.len() - 1);
+        Step::ALL[to]
     }
 }
 

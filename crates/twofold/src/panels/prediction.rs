@@ -70,7 +70,6 @@ impl Pane for PredictionPane {
     fn ui(&mut self, ui: &mut Ui, view: &View<'_>, _out: &mut Vec<Command>) {
         let pal = view.pal;
         let project = view.project;
-        ui.heading("Predict");
         let Some(res) = view.results_or_explain(ui) else {
             return;
         };

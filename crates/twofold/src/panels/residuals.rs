@@ -69,8 +69,7 @@ impl Pane for ResidualsPane {
     fn ui(&mut self, ui: &mut Ui, view: &View<'_>, out: &mut Vec<Command>) {
         let Self { built } = self;
         let pal = view.pal;
-        ui.heading("Residuals");
-        let Some(res) = view.results_or_explain(ui) else {
+        let Some(res) = view.results else {
             return;
         };
         if let Err(why) = res.chosen_fit() {
@@ -94,41 +93,27 @@ impl Pane for ResidualsPane {
             return;
         }
         ui.weak("Look for a straight line in the normal plot, no funnel against fitted values, no trend against run order. ◆ marks residuals beyond 3 residual standard deviations.");
-        egui::ScrollArea::vertical()
-            .auto_shrink([false, false])
-            .show(ui, |ui| {
-                let w = ((ui.available_width() - 40.0) / 2.0).clamp(300.0, 560.0);
-                // The Box–Cox profile takes the tile after the three residual plots.
-                let current = view
-                    .project
-                    .responses
-                    .get(res.response)
-                    .map(|r| r.model.transform)
-                    .unwrap_or_default();
-                tiles(ui, plots.len() + 1, w, |ui, i| match plots.get(i) {
-                    Some(p) => p.show(ui, &pal, vec2(w, 260.0)),
-                    None => match box_cox_of(res) {
-                        Ok(bc) => super::boxcox::show(
-                            ui,
-                            &pal,
-                            bc,
-                            current,
-                            res.response,
-                            vec2(w, 220.0),
-                            out,
-                        ),
-                        Err(why) => {
-                            ui.vertical(|ui| {
-                                ui.set_width(w);
-                                not_available(
-                                    ui,
-                                    &pal,
-                                    &format!("Box–Cox profile not available: {why}."),
-                                );
-                            });
-                        }
-                    },
-                });
-            });
+        let w = ((ui.available_width() - 40.0) / 2.0).clamp(300.0, 560.0);
+        // The Box–Cox profile takes the tile after the three residual plots.
+        let current = view
+            .project
+            .responses
+            .get(res.response)
+            .map(|r| r.model.transform)
+            .unwrap_or_default();
+        tiles(ui, plots.len() + 1, w, |ui, i| match plots.get(i) {
+            Some(p) => p.show(ui, &pal, vec2(w, 260.0)),
+            None => match box_cox_of(res) {
+                Ok(bc) => {
+                    super::boxcox::show(ui, &pal, bc, current, res.response, vec2(w, 220.0), out)
+                }
+                Err(why) => {
+                    ui.vertical(|ui| {
+                        ui.set_width(w);
+                        not_available(ui, &pal, &format!("Box–Cox profile not available: {why}."));
+                    });
+                }
+            },
+        });
     }
 }

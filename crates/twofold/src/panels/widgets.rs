@@ -24,6 +24,53 @@ pub fn text_field(ui: &mut Ui, id: Id, current: &str, width: f32, hint: &str) ->
     (resp.changed() && text != current).then_some(text)
 }
 
+/// Where the window keeps the control a pane prefers to take the keyboard when its step opens.
+const PREFERRED_FIRST: &str = "twofold.preferred_first_control";
+
+/// Names `id` as the control that takes the keyboard when this step is opened, in place of the
+/// first control in drawing order (the run sheet's entry field rather than its view toggles).
+pub fn prefer_first(ui: &Ui, id: Id) {
+    ui.ctx()
+        .data_mut(|d| d.insert_temp(Id::unique(PREFERRED_FIRST), id));
+}
+
+/// The control named by [`prefer_first`] in this frame, if any (and forgets it).
+pub fn take_preferred_first(ctx: &egui::Context) -> Option<Id> {
+    ctx.data_mut(|d| {
+        let id = d.get_temp::<Id>(Id::unique(PREFERRED_FIRST));
+        d.remove::<Id>(Id::unique(PREFERRED_FIRST));
+        id
+    })
+}
+
+/// Gives the text field `id` the keyboard with all of `text` selected, so typing replaces it
+/// (a name just added, still holding its placeholder). Returns `false`, asking nothing, while
+/// `ui` is only measured and not shown (the first frame of a new grid): a field there is
+/// disabled, and egui takes the keyboard back from it. Call again in the next frame.
+pub fn focus_all_selected(ui: &mut Ui, id: Id, text: &str) -> bool {
+    if ui.is_sizing_pass() || !ui.is_visible() {
+        return false;
+    }
+    let mut state = TextEdit::load_state(ui.ctx(), id).unwrap_or_default();
+    state
+        .cursor
+        .set_char_range(Some(CCursorRange::select_all_str(text)));
+    state.store(ui.ctx(), id);
+    ui.memory_mut(|m| m.request_focus(id));
+    true
+}
+
+/// A small button for the mouse only: Tab passes it by. For actions the keyboard reaches another
+/// way (removing and moving rows, undo), so a row of fields is not interrupted by three stops.
+pub fn mouse_button(text: &str) -> egui::Button<'_> {
+    egui::Button::new(text).sense(egui::Sense::CLICK)
+}
+
+/// Whether `response` (a one-line field) was left with Enter in this frame.
+pub fn left_with_enter(ui: &Ui, response: &egui::Response) -> bool {
+    response.lost_focus() && ui.input(|i| i.key_pressed(egui::Key::Enter))
+}
+
 /// Shows a one-line field that holds a number, and selects its whole content whenever it takes
 /// the keyboard (Tab, a click, or a focus request), so what is typed replaces the old number
 /// instead of joining it: "200" typed over "1" must not read as 1200.

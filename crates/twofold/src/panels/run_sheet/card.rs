@@ -137,6 +137,10 @@ pub(super) fn next_run_card(
             ui.horizontal_wrapped(|ui| {
                 for (r, def) in project.responses.iter().enumerate() {
                     let id = Id::unique(("card_entry", r));
+                    if r == 0 {
+                        // Opening the run sheet puts the keyboard here, ready for a value.
+                        super::super::widgets::prefer_first(ui, id);
+                    }
                     ui.label(RichText::new(format!("{} =", def.name)).size(20.0));
                     let key = (run_idx, r);
                     let (stored, mut text) = pane.cell_texts(run, key);

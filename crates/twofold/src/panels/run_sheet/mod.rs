@@ -11,7 +11,10 @@ use std::rc::Rc;
 
 use egui::{Id, Key, Modifiers, RichText, Ui};
 
-use super::widgets::{plain_number, text_field, warning_box};
+use super::widgets::{
+    focus_all_selected, left_with_enter, mouse_button, plain_number, prefer_first, text_field,
+    warning_box,
+};
 use super::{Command, Pane, Step, View};
 use twofold_core::term::LETTERS;
 use twofold_study::project::{
@@ -41,6 +44,10 @@ pub struct RunSheetPane {
     focus_next: Option<(usize, usize)>,
     /// Entry field of the next-run card that should take the focus: `(run, response)`.
     focus_card: Option<(usize, usize)>,
+    /// A response just added: its name field takes the keyboard with the placeholder selected.
+    focus_response: Option<usize>,
+    /// A response named in the last frame: the next-run card's field for it takes the keyboard.
+    go_to_card: Option<usize>,
     /// Row order cached for one data revision and one [`SheetOrder`].
     rows: Option<(u64, SheetOrder, Rc<[usize]>)>,
 }
@@ -111,20 +118,30 @@ impl Pane for RunSheetPane {
                 "Factors or design settings changed after these runs were made. The sheet still shows the old runs; apply the design again to update it (typed values are kept where the runs match).",
             );
         }
-        responses_bar(ui, project, out);
+        let go_to_card = responses_bar(ui, project, &mut self.focus_response, out);
         if project.responses.is_empty() {
+            // The response named in this frame exists from the next frame on.
+            self.go_to_card = go_to_card;
             egui::Frame::new()
                 .fill(pal.card_bg)
                 .inner_margin(egui::Margin::same(10))
                 .show(ui, |ui| {
                     ui.label(
-                        RichText::new("Add a response: the quantity you will measure in each run.")
-                            .size(18.0),
+                        RichText::new(
+                            "Name the response above: the quantity you will measure in each run.",
+                        )
+                        .size(18.0),
                     );
                 });
         }
         if !project.responses.is_empty() {
             let rows = self.row_order(view);
+            // A response name left with Enter: on to the value of the next run.
+            if let Some(r) = self.go_to_card.take().or(go_to_card)
+                && let Some(p) = next_unfinished(&project.runs, &rows, None)
+            {
+                self.focus_card = Some((rows[p], r));
+            }
             card::next_run_card(self, ui, view, &rows, out);
         }
         ui.add_space(6.0);
@@ -212,19 +229,37 @@ pub fn copy_table(project: &Project, rows: &[usize], coded: bool) -> String {
     twofold_study::interchange::copy_grid(&grid)
 }
 
-fn responses_bar(ui: &mut Ui, project: &Project, out: &mut Vec<Command>) {
+/// The response names and units, with their remove buttons and "+ Add response". Returns the
+/// response whose name field was left with Enter (the next-run card takes over from there).
+fn responses_bar(
+    ui: &mut Ui,
+    project: &Project,
+    focus_response: &mut Option<usize>,
+    out: &mut Vec<Command>,
+) -> Option<usize> {
+    let mut entered = None;
     ui.horizontal_wrapped(|ui| {
         ui.label(RichText::new("Responses:").strong());
         for (index, r) in project.responses.iter().enumerate() {
             let id = Id::unique(("response_def", index));
+            if *focus_response == Some(index) && focus_all_selected(ui, id.with("name"), &r.name) {
+                *focus_response = None;
+            }
             if let Some(name) = text_field(ui, id.with("name"), &r.name, 110.0, "name") {
                 out.push(Command::Edit(Edit::RenameResponse { index, name }));
+            }
+            if ui
+                .ctx()
+                .read_response(id.with("name"))
+                .is_some_and(|resp| left_with_enter(ui, &resp))
+            {
+                entered = Some(index);
             }
             if let Some(unit) = text_field(ui, id.with("unit"), &r.unit, 45.0, "unit") {
                 out.push(Command::Edit(Edit::SetResponseUnit { index, unit }));
             }
             if ui
-                .small_button("✕")
+                .add(mouse_button("✕").small())
                 .on_hover_text("Remove this response and its column (undo brings it back)")
                 .clicked()
             {
@@ -232,14 +267,40 @@ fn responses_bar(ui: &mut Ui, project: &Project, out: &mut Vec<Command>) {
             }
             ui.separator();
         }
+        if project.responses.is_empty() {
+            // The first response is named right here: type its name, Enter, and the next-run
+            // card takes over.
+            let id = Id::unique("first_response_name");
+            let mut name = ui.data(|d| d.get_temp::<String>(id)).unwrap_or_default();
+            let resp = ui
+                .add(
+                    egui::TextEdit::singleline(&mut name)
+                        .id(id)
+                        .desired_width(200.0)
+                        .hint_text("what you measure, e.g. Yield"),
+                )
+                .accessible_name("name of the first response");
+            prefer_first(ui, id);
+            if left_with_enter(ui, &resp) && !name.trim().is_empty() {
+                out.push(Command::Edit(Edit::AddResponse(ResponseDef::new(
+                    name.trim(),
+                    "",
+                ))));
+                entered = Some(0);
+                name.clear();
+            }
+            ui.data_mut(|d| d.insert_temp(id, name));
+        }
         if ui.button("+ Add response").clicked() {
-            let n = project.responses.len() + 1;
+            let n = project.responses.len();
+            *focus_response = Some(n);
             out.push(Command::Edit(Edit::AddResponse(ResponseDef::new(
-                &format!("Response {n}"),
+                &format!("Response {}", n + 1),
                 "",
             ))));
         }
     });
+    entered
 }
 
 /// Whether a run still waits to be carried out.
