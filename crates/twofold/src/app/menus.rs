@@ -341,7 +341,7 @@ impl TwofoldApp {
     pub(super) fn step_rail(&self, ui: &mut Ui, pal: &Palette, out: &mut Vec<AppAction>) {
         egui::Panel::left("step_rail")
             .resizable(false)
-            .exact_size(196.0)
+            .exact_size(236.0)
             .frame(
                 egui::Frame::new()
                     .fill(ui.visuals().faint_bg_color)
@@ -361,10 +361,16 @@ impl TwofoldApp {
                         .size(15.0)
                         .color(if selected { pal.accent } else { pal.ink });
                     let resp = ui
-                        .add_sized(
-                            [ui.available_width(), 28.0],
-                            egui::Button::selectable(selected, text).wrap(),
+                        .with_layout(
+                            egui::Layout::top_down_justified(egui::Align::LEFT),
+                            |ui| {
+                                ui.add(
+                                    egui::Button::selectable(selected, text)
+                                        .min_size(egui::vec2(0.0, 28.0)),
+                                )
+                            },
                         )
+                        .inner
                         .on_hover_text(format!("Ctrl+{}", i + 1));
                     if resp.clicked() {
                         out.push(AppAction::Command(Command::Goto(*step)));

@@ -255,7 +255,7 @@ fn responses_bar(
             {
                 entered = Some(index);
             }
-            if let Some(unit) = text_field(ui, id.with("unit"), &r.unit, 45.0, "unit") {
+            if let Some(unit) = text_field(ui, id.with("unit"), &r.unit, 80.0, "unit") {
                 out.push(Command::Edit(Edit::SetResponseUnit { index, unit }));
             }
             if ui
