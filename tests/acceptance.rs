@@ -21,5 +21,7 @@ mod effects_examples;
 mod min_aberration;
 /// One report behind the window, the summary page and `analyze`; the default model choice.
 mod one_report;
+/// Text read back from exported PDF files (used by `cli_export`).
+mod pdf_read;
 /// Coefficients, sums of squares, PRESS, leverage and Cook's distance against statsmodels fixtures.
 mod statsmodels_fixtures;

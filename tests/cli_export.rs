@@ -9,6 +9,7 @@
 
 use std::path::{Path, PathBuf};
 
+use crate::pdf_read::pdf_text;
 use twofold_study::interchange;
 use twofold_study::project::{Edit, Project, demo_project, save_project};
 
@@ -73,226 +74,11 @@ fn export_ok(args: &[&str]) -> String {
     full.extend_from_slice(args);
     let (code, out, err) = run(&full);
     assert_eq!(code, 0, "stderr: {err}");
-    assert!(out.starts_with("wrote "), "{out}");
+    assert!(
+        out.starts_with("wrote ") || out.contains("one file per page:\nwrote "),
+        "{out}"
+    );
     out
-}
-
-/// The text on every page of a PDF, laid out as lines: an independent reader (the `lopdf` crate
-/// parses the file) that places every glyph by its text and transformation matrices, following
-/// the form objects the pages draw, then writes the glyphs of one baseline left to right with a
-/// space where a gap is wider than a fifth of the font size, lines from the top of the page down.
-/// It reads the fonts our writer embeds (Type 0, two-byte codes, widths in `/W`).
-fn pdf_text(pdf: &Path) -> String {
-    let doc = lopdf::Document::load(pdf).unwrap();
-    let pages = doc.get_pages();
-    assert!(!pages.is_empty(), "the PDF has no page");
-    let mut text = String::new();
-    for id in pages.values() {
-        let page = doc.get_dictionary(*id).unwrap();
-        let resources = resolve_dict(&doc, page.get(b"Resources").unwrap());
-        let mut glyphs = Vec::new();
-        let content = doc.get_page_content(*id);
-        place_glyphs(&doc, &content, resources, IDENTITY, &mut glyphs);
-        // Top of the page first (PDF y grows upwards), then left to right.
-        glyphs.sort_by(|a, b| b.y.total_cmp(&a.y).then(a.x0.total_cmp(&b.x0)));
-        let mut lines: Vec<Vec<&Glyph>> = Vec::new();
-        for g in &glyphs {
-            match lines.last_mut() {
-                Some(line) if (line[0].y - g.y).abs() < 0.3 * g.size => line.push(g),
-                _ => lines.push(vec![g]),
-            }
-        }
-        for mut line in lines {
-            line.sort_by(|a, b| a.x0.total_cmp(&b.x0));
-            let mut previous: Option<&Glyph> = None;
-            for g in line {
-                if previous.is_some_and(|p| g.x0 - p.x1 > 0.2 * g.size) {
-                    text.push(' ');
-                }
-                text.push_str(&g.text);
-                previous = Some(g);
-            }
-            text.push('\n');
-        }
-    }
-    text
-}
-
-/// One glyph on the page: baseline height, left and right ends, font size (page units).
-struct Glyph {
-    y: f64,
-    x0: f64,
-    x1: f64,
-    size: f64,
-    text: String,
-}
-
-type Matrix = [f64; 6];
-const IDENTITY: Matrix = [1.0, 0.0, 0.0, 1.0, 0.0, 0.0];
-
-/// `m` then `n`, in PDF's row-vector convention.
-fn concat(m: &Matrix, n: &Matrix) -> Matrix {
-    [
-        m[0] * n[0] + m[1] * n[2],
-        m[0] * n[1] + m[1] * n[3],
-        m[2] * n[0] + m[3] * n[2],
-        m[2] * n[1] + m[3] * n[3],
-        m[4] * n[0] + m[5] * n[2] + n[4],
-        m[4] * n[1] + m[5] * n[3] + n[5],
-    ]
-}
-
-fn numbers(operands: &[lopdf::Object]) -> Vec<f64> {
-    operands
-        .iter()
-        .map(|o| o.as_float().map(f64::from).unwrap())
-        .collect()
-}
-
-fn matrix(operands: &[lopdf::Object]) -> Matrix {
-    let v = numbers(operands);
-    [v[0], v[1], v[2], v[3], v[4], v[5]]
-}
-
-fn resolve_dict<'a>(doc: &'a lopdf::Document, object: &'a lopdf::Object) -> &'a lopdf::Dictionary {
-    let (_, object) = doc.dereference(object).unwrap();
-    match object {
-        lopdf::Object::Stream(stream) => &stream.dict,
-        other => other.as_dict().unwrap(),
-    }
-}
-
-/// The widths (thousandths of the font size) of a Type 0 font's glyphs, by code.
-fn glyph_widths(doc: &lopdf::Document, font: &lopdf::Dictionary) -> (f64, Vec<(i64, i64, f64)>) {
-    let descendants = doc
-        .dereference(font.get(b"DescendantFonts").unwrap())
-        .unwrap()
-        .1;
-    let cid_font = resolve_dict(doc, &descendants.as_array().unwrap()[0]);
-    let default = cid_font
-        .get(b"DW")
-        .ok()
-        .and_then(|w| w.as_float().ok())
-        .map_or(1000.0, f64::from);
-    let mut ranges = Vec::new();
-    if let Ok(w) = cid_font.get(b"W") {
-        let list = doc.dereference(w).unwrap().1.as_array().unwrap();
-        let mut i = 0;
-        while i < list.len() {
-            let first = list[i].as_i64().unwrap();
-            if let Ok(each) = list[i + 1].as_array() {
-                for (k, w) in each.iter().enumerate() {
-                    let c = first + k as i64;
-                    ranges.push((c, c, f64::from(w.as_float().unwrap())));
-                }
-                i += 2;
-            } else {
-                let last = list[i + 1].as_i64().unwrap();
-                ranges.push((first, last, f64::from(list[i + 2].as_float().unwrap())));
-                i += 3;
-            }
-        }
-    }
-    (default, ranges)
-}
-
-/// Places the glyphs a content stream shows (`Tj`, `TJ`), entering the forms it draws (`Do`).
-fn place_glyphs(
-    doc: &lopdf::Document,
-    content: &[u8],
-    resources: &lopdf::Dictionary,
-    ctm: Matrix,
-    glyphs: &mut Vec<Glyph>,
-) {
-    use lopdf::Object;
-    let operations = lopdf::content::Content::decode(content).unwrap().operations;
-    let mut stack = Vec::new();
-    let mut ctm = ctm;
-    let (mut tm, mut tlm) = (IDENTITY, IDENTITY);
-    let mut font = None;
-    let mut size = 0.0;
-    for op in &operations {
-        match op.operator.as_str() {
-            "q" => stack.push(ctm),
-            "Q" => ctm = stack.pop().unwrap(),
-            "cm" => ctm = concat(&matrix(&op.operands), &ctm),
-            "BT" => (tm, tlm) = (IDENTITY, IDENTITY),
-            "Tm" => (tm, tlm) = (matrix(&op.operands), matrix(&op.operands)),
-            "Td" => {
-                let v = numbers(&op.operands);
-                tlm = concat(&[1.0, 0.0, 0.0, 1.0, v[0], v[1]], &tlm);
-                tm = tlm;
-            }
-            "Tf" => {
-                let name = op.operands[0].as_name().unwrap();
-                let fonts = resolve_dict(doc, resources.get(b"Font").unwrap());
-                let dict = resolve_dict(doc, fonts.get(name).unwrap());
-                assert_eq!(dict.get(b"Subtype").unwrap().as_name().unwrap(), b"Type0");
-                let encoding = dict.get_font_encoding(doc).unwrap();
-                font = Some((encoding, glyph_widths(doc, dict)));
-                size = numbers(&op.operands[1..])[0];
-            }
-            "Tj" | "TJ" => {
-                let (encoding, (default, widths)) = font.as_ref().expect("a font is chosen");
-                let items: Vec<&Object> = match &op.operands[0] {
-                    Object::Array(items) => items.iter().collect(),
-                    single => vec![single],
-                };
-                for item in items {
-                    let bytes = match item {
-                        Object::String(bytes, _) => bytes,
-                        number => {
-                            let n = f64::from(number.as_float().unwrap());
-                            tm = concat(&[1.0, 0.0, 0.0, 1.0, -n / 1000.0 * size, 0.0], &tm);
-                            continue;
-                        }
-                    };
-                    for code in bytes.chunks(2) {
-                        let cid = code.iter().fold(0i64, |a, b| a * 256 + i64::from(*b));
-                        let w = widths
-                            .iter()
-                            .find(|(a, b, _)| (*a..=*b).contains(&cid))
-                            .map_or(*default, |r| r.2);
-                        let advance = w / 1000.0 * size;
-                        let start = concat(&tm, &ctm);
-                        let end = concat(&[1.0, 0.0, 0.0, 1.0, advance, 0.0], &start);
-                        let height = concat(&[1.0, 0.0, 0.0, 1.0, 0.0, size], &start);
-                        glyphs.push(Glyph {
-                            y: start[5],
-                            x0: start[4],
-                            x1: end[4],
-                            size: (height[5] - start[5]).abs().max((end[4] - start[4]).abs()),
-                            text: lopdf::Document::decode_text(encoding, code).unwrap(),
-                        });
-                        tm = concat(&[1.0, 0.0, 0.0, 1.0, advance, 0.0], &tm);
-                    }
-                }
-            }
-            "Do" => {
-                let name = op.operands[0].as_name().unwrap();
-                let forms = resolve_dict(doc, resources.get(b"XObject").unwrap());
-                let Object::Stream(form) = doc.dereference(forms.get(name).unwrap()).unwrap().1
-                else {
-                    continue;
-                };
-                if form.dict.get(b"Subtype").unwrap().as_name().unwrap() != b"Form" {
-                    continue;
-                }
-                let inner = form
-                    .dict
-                    .get(b"Resources")
-                    .map_or(resources, |r| resolve_dict(doc, r));
-                let form_matrix = form.dict.get(b"Matrix").map_or(IDENTITY, |m| {
-                    matrix(doc.dereference(m).unwrap().1.as_array().unwrap())
-                });
-                let content = form
-                    .decompressed_content()
-                    .unwrap_or_else(|_| form.content.clone());
-                place_glyphs(doc, &content, inner, concat(&form_matrix, &ctm), glyphs);
-            }
-            _ => {}
-        }
-    }
 }
 
 /// Width, height and the share of pixels that are not white.
@@ -315,14 +101,16 @@ fn png_facts(path: &Path) -> (u32, u32, f64) {
 fn summary_png_is_a4_or_letter_at_300_dpi_and_not_blank() {
     let dir = Scratch::new("png");
     let project = write_project(&dir, &demo_with_model());
-    export_ok(&[&project, "--out", &dir.s("a4.png")]);
+    export_ok(&[&project, "--out", &dir.s("a4.png"), "--response", "1"]);
     let (w, h, ink) = png_facts(&dir.path("a4.png"));
     assert_eq!((w, h), (2480, 3508));
     // A full page of text, tables and charts inks a few percent of the pixels; a page that lost
     // its text (empty font database) or its drawing would be far below that.
     assert!(ink > 0.03 && ink < 0.5, "ink coverage {ink}");
-    export_ok(&[&project, "--out", &dir.s("letter.png"), "--paper", "letter"]);
-    let (w, h, ink) = png_facts(&dir.path("letter.png"));
+    // Both responses: a page each, one file per page.
+    let out = export_ok(&[&project, "--out", &dir.s("letter.png"), "--paper", "letter"]);
+    assert!(out.contains("letter-2.png"), "{out}");
+    let (w, h, ink) = png_facts(&dir.path("letter-2.png"));
     assert_eq!((w, h), (2550, 3300));
     assert!(ink > 0.03, "ink coverage {ink}");
 }
@@ -331,8 +119,21 @@ fn summary_png_is_a4_or_letter_at_300_dpi_and_not_blank() {
 fn summary_svg_names_the_factors_and_terms_and_is_byte_identical() {
     let dir = Scratch::new("svg");
     let project = write_project(&dir, &demo_with_model());
-    export_ok(&[&project, "--out", &dir.s("one.svg"), "--date", "2025-03-04"]);
-    export_ok(&[&project, "--out", &dir.s("two.svg"), "--date", "2025-03-04"]);
+    let one_response = ["--response", "Solvent rubs", "--date", "2025-03-04"];
+    export_ok(
+        &[
+            &[project.as_str(), "--out", &dir.s("one.svg")][..],
+            &one_response,
+        ]
+        .concat(),
+    );
+    export_ok(
+        &[
+            &[project.as_str(), "--out", &dir.s("two.svg")][..],
+            &one_response,
+        ]
+        .concat(),
+    );
     let one = std::fs::read(dir.path("one.svg")).unwrap();
     let two = std::fs::read(dir.path("two.svg")).unwrap();
     assert_eq!(one, two, "same project, same options: byte-identical SVG");
@@ -357,7 +158,9 @@ fn summary_pdf_is_vector_with_the_text_on_the_page() {
     let dir = Scratch::new("pdf");
     let p = demo_with_model();
     let project = write_project(&dir, &p);
-    export_ok(&[&project, "--out", &dir.s("s.pdf"), "--date", "2025-03-04"]);
+    // --response keeps the summary to one response.
+    let one = ["--response", "1", "--date", "2025-03-04"];
+    export_ok(&[&[project.as_str(), "--out", &dir.s("s.pdf")][..], &one].concat());
     let bytes = std::fs::read(dir.path("s.pdf")).unwrap();
     assert!(bytes.starts_with(b"%PDF-"));
     let raw = String::from_utf8_lossy(&bytes);
@@ -365,6 +168,11 @@ fn summary_pdf_is_vector_with_the_text_on_the_page() {
     let pages = raw.matches("/Type /Page").count() - raw.matches("/Type /Pages").count();
     assert_eq!(pages, 1, "one page");
     let text = pdf_text(&dir.path("s.pdf"));
+    assert!(text.contains("Response: Solvent rubs"), "{text}");
+    assert!(
+        !text.contains("Response 2 of 2"),
+        "only the response asked for"
+    );
     let hash = twofold_study::export::build::project_hash(&p);
     for needle in [
         "Powder-coating cure (demo)",
@@ -388,13 +196,7 @@ fn summary_pdf_is_vector_with_the_text_on_the_page() {
         );
     }
     // The same project gives the same PDF bytes too (no dates or random ids inside).
-    export_ok(&[
-        &project,
-        "--out",
-        &dir.s("again.pdf"),
-        "--date",
-        "2025-03-04",
-    ]);
+    export_ok(&[&[project.as_str(), "--out", &dir.s("again.pdf")][..], &one].concat());
     assert_eq!(std::fs::read(dir.path("again.pdf")).unwrap(), bytes);
 }
 
@@ -595,4 +397,247 @@ fn bad_input_exits_2_and_failures_exit_1_with_one_line() {
     let (c, out, _) = run(&["export", "--help"]);
     assert_eq!(c, 0);
     assert!(out.contains("--run-sheet"));
+}
+
+/// An invented two-response project on eight factors in sixteen runs, the 2^(8-4) fraction of
+/// resolution IV with generators E = BCD, F = ACD, G = ABC, H = ABD (a standard choice; every
+/// main effect shares its estimate with seven three-factor interactions and the two-factor
+/// interactions come in chains of four). The factor names are long on purpose. ILLUSTRATIVE
+/// DATA: the values come from the formulas below, nothing was measured.
+fn eight_factor_project() -> Project {
+    use twofold_study::project::{Cell, DesignSettings, Factor, ResponseDef, RunStatus};
+    let mut p = Project::new("Laminating adhesive screening, eight factors (illustrative)");
+    p.description = "ILLUSTRATIVE DATA, invented for a test: nothing here was measured.".into();
+    let numeric = [
+        ("Accelerator concentration in the premix", "phr", 0.5, 1.5),
+        ("Cure temperature", "°C", 140.0, 160.0),
+        ("Relative humidity during conditioning", "%", 30.0, 70.0),
+        ("Primer coat weight", "g/m²", 5.0, 10.0),
+    ];
+    for (name, unit, low, high) in numeric {
+        p.factors.push(Factor::numeric(name, unit, low, high));
+    }
+    p.factors.push(Factor::categorical(
+        "Surface treatment",
+        "solvent wipe",
+        "corona discharge",
+    ));
+    p.factors.push(Factor::numeric(
+        "Laminating press dwell time",
+        "s",
+        10.0,
+        30.0,
+    ));
+    p.factors.push(Factor::categorical(
+        "Substrate supplier",
+        "Northern Mills",
+        "Eastbrook Polymers",
+    ));
+    p.factors
+        .push(Factor::numeric("Adhesive lot age", "days", 1.0, 28.0));
+    p.responses.push(ResponseDef::new(
+        "Peel strength after humid ageing",
+        "N/25 mm",
+    ));
+    p.responses.push(ResponseDef::new("Haze", "%"));
+    p.responses[0].model.terms = ["A", "B", "C", "AB"].map(String::from).to_vec();
+    p.design = DesignSettings {
+        generators: ["E=BCD", "F=ACD", "G=ABC", "H=ABD"]
+            .map(String::from)
+            .to_vec(),
+        base_runs: Some(16),
+        seed: 2024,
+        ..DesignSettings::default()
+    };
+    p.apply(Edit::RegenerateRuns).unwrap();
+    for run in &mut p.runs {
+        let s = i64::from(run.std_order);
+        let l: Vec<f64> = run.levels.iter().map(|v| f64::from(*v)).collect();
+        let e = (((37 * s + 11) % 17) - 8) as f64 / 8.0;
+        let peel = 40.0 + 6.0 * l[0] + 4.0 * l[1] - 3.0 * l[2] + 2.5 * l[0] * l[1] + e;
+        let haze = 12.0 - 2.0 * l[3] + 1.5 * l[4] + e / 2.0;
+        run.values = vec![
+            Cell::new(format!("{peel:.1}")),
+            Cell::new(format!("{haze:.2}")),
+        ];
+        run.status = RunStatus::Done;
+    }
+    p
+}
+
+/// The words of `text` as the page prints them: split at spaces, outer punctuation removed.
+fn tokens(text: &str) -> Vec<&str> {
+    text.split_whitespace()
+        .map(|t| t.trim_matches(|c: char| "(),;:.“”'".contains(c)))
+        .filter(|t| !t.is_empty())
+        .collect()
+}
+
+#[test]
+fn summary_of_two_responses_has_every_section_every_alias_chain_and_no_split_word() {
+    use twofold_core::alias::{alias_report, chain_label};
+    use twofold_core::design::FractionalDesign;
+    use twofold_study::export::{BuildOptions, Paper, summary_input, summary_pages};
+    use twofold_study::report::Report;
+
+    let dir = Scratch::new("two-responses");
+    let p = eight_factor_project();
+    let project = write_project(&dir, &p);
+    let out = export_ok(&[&project, "--out", &dir.s("s.pdf"), "--date", "2025-03-04"]);
+    assert!(
+        out.contains("summary of Peel strength after humid ageing, Haze"),
+        "{out}"
+    );
+    let pages = crate::pdf_read::pdf_page_texts(&dir.path("s.pdf"));
+    let text = pages.concat();
+
+    // The page count is the layout's: a page per response, then the pages of more detail.
+    let reports: Vec<Report> = (0..2).map(|i| Report::for_response(&p, 0, i)).collect();
+    let refs: Vec<&Report> = reports.iter().collect();
+    let options = BuildOptions {
+        date: Some("2025-03-04".into()),
+        ..BuildOptions::default()
+    };
+    for r in &reports {
+        assert!(
+            r.fit.is_ok(),
+            "{}: {:?}",
+            r.response_name,
+            r.fit.as_ref().err()
+        );
+    }
+    let input = summary_input(&p, &refs, &options);
+    let layout = summary_pages(&input, Paper::A4);
+    assert_eq!(pages.len(), layout.len(), "{text}");
+    assert!(
+        pages.len() >= 3,
+        "two response pages and the alias chains: {text}"
+    );
+    for (i, page) in pages.iter().enumerate() {
+        assert!(
+            page.contains(&format!("page {} of {}", i + 1, pages.len())),
+            "page {}:\n{page}",
+            i + 1
+        );
+        assert!(
+            page.contains("safe operating limits"),
+            "page {}: the caution",
+            i + 1
+        );
+        assert!(!page.contains("in the app"), "page {}:\n{page}", i + 1);
+    }
+
+    // Each response on its own page with every section.
+    for (i, name) in ["Peel strength after humid ageing", "Haze"]
+        .iter()
+        .enumerate()
+    {
+        let page = &pages[i];
+        assert!(
+            page.contains(&format!("Response {} of 2: {name}", i + 1)),
+            "{page}"
+        );
+        for section in [
+            "Effect ranking",
+            "Half-normal plot of effects",
+            "ANOVA of the chosen model",
+            "Best settings found",
+            // Two factors have labels, not numbers: the equation is in coded units.
+            "Model equation in coded units",
+            "R² =",
+        ] {
+            assert!(
+                page.contains(section),
+                "{name}: `{section}` missing:\n{page}"
+            );
+        }
+        assert!(
+            page.contains(&format!("{name} = ")),
+            "{name}: its equation:\n{page}"
+        );
+    }
+
+    // Every alias chain of the main effects and two-factor interactions, whole, from the core.
+    let design = FractionalDesign::from_text(8, Some(16), "E=BCD, F=ACD, G=ABC, H=ABD").unwrap();
+    let report = alias_report(&design);
+    let chains: Vec<String> = report
+        .chains()
+        .iter()
+        .filter(|(_, a)| !a.is_empty())
+        .map(|(t, a)| chain_label(*t, a))
+        .collect();
+    assert_eq!(
+        chains.len(),
+        15,
+        "8 main-effect chains and 7 two-factor chains"
+    );
+    for chain in &chains {
+        assert_eq!(
+            text.matches(chain.as_str()).count(),
+            1,
+            "chain `{chain}` whole and once:\n{text}"
+        );
+    }
+
+    // No word is split: every word of the factor names, levels, responses and effect labels is
+    // printed whole somewhere, no printed word is the cut-off start of one of them (with or
+    // without a hyphen), and text shortened with an ellipsis was shortened by whole words.
+    let mut vocabulary: Vec<String> = Vec::new();
+    for f in &input.factors {
+        for t in [f.name.clone(), f.low.text(), f.high.text()] {
+            vocabulary.extend(t.split_whitespace().map(String::from));
+        }
+    }
+    for section in &input.responses {
+        vocabulary.extend(section.response.name.split_whitespace().map(String::from));
+        for e in &section.effects {
+            vocabulary.push(e.label());
+        }
+    }
+    let printed = tokens(&text);
+    for word in &vocabulary {
+        assert!(
+            printed.contains(&word.as_str()),
+            "`{word}` never printed whole:\n{text}"
+        );
+    }
+    for token in &printed {
+        let stem = token.trim_end_matches('…').trim_end_matches('-');
+        if stem.chars().count() < 3 || vocabulary.iter().any(|w| w == stem) {
+            continue;
+        }
+        // A word cut at a line's end leaves its first part as a printed word.
+        for word in vocabulary.iter().filter(|w| w.chars().count() > 3) {
+            assert!(
+                !word.starts_with(stem),
+                "`{token}` is the start of `{word}`:\n{text}"
+            );
+        }
+    }
+    // Effect labels and their signs are whole on one line.
+    for section in &input.responses {
+        for e in section.effects.iter().take(8) {
+            assert!(
+                text.contains(&e.label_with_sign()),
+                "effect `{}`:\n{text}",
+                e.label_with_sign()
+            );
+        }
+    }
+
+    // The same document as PNG: one file per page.
+    let out = export_ok(&[&project, "--out", &dir.s("s.png"), "--date", "2025-03-04"]);
+    for i in 1..=layout.len() {
+        let file = dir.path(&format!("s-{i}.png"));
+        assert!(file.exists(), "{out}");
+        let (w, h, _) = png_facts(&file);
+        assert_eq!((w, h), (2480, 3508));
+    }
+    if let Some(keep) = std::env::var_os("TWOFOLD_KEEP_PAGES") {
+        // For looking at the pages by eye: copies them to the folder named.
+        for i in 1..=layout.len() {
+            let name = format!("s-{i}.png");
+            std::fs::copy(dir.path(&name), Path::new(&keep).join(name)).unwrap();
+        }
+    }
 }

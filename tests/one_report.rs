@@ -66,7 +66,9 @@ fn demo_is_the_same_report_in_window_page_and_command() {
         let window = cache.get(&project, 7, 0);
         // 2. The summary page: its input, built from the report the export builds.
         let page_report = Report::for_response(&project, 0, 0);
-        let page = summary_input(&project, &page_report, &BuildOptions::default());
+        let page_input = summary_input(&project, &[&page_report], &BuildOptions::default());
+        assert_eq!(page_input.responses.len(), 1);
+        let page = &page_input.responses[0];
         // 3. The command.
         let json = analyze(&[file.0.to_str().unwrap(), "--json"]);
 

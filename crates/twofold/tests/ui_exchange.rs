@@ -49,6 +49,10 @@ fn export_summary_writes_the_page_through_the_file_picker_without_blocking() {
     wait_for_export(&mut h);
     let bytes = std::fs::read(&file).unwrap();
     assert!(bytes.starts_with(b"%PDF"), "a PDF document was written");
+    // The demo has two responses: the summary gives each its page.
+    let raw = String::from_utf8_lossy(&bytes);
+    let pages = raw.matches("/Type /Page").count() - raw.matches("/Type /Pages").count();
+    assert!(pages >= 2, "a page per response, {pages} pages");
     assert!(
         bytes.len() > 10_000,
         "the page has content: {} bytes",

@@ -1,28 +1,22 @@
-//! From the project and the window's analysis results to a [`SummaryInput`].
+//! From the project and the reports of its responses to a [`SummaryInput`].
 //!
-//! The numbers come from the response's [`Report`], the same value the analysis panes draw and
-//! `twofold analyze` writes, so the page and the window cannot disagree: this module only
-//! selects, orders and labels. With no terms chosen the page shows the report's default model
-//! choice and says how it was made and which error the tests use. The best
-//! settings are computed by the core's `best_settings` exactly as the prediction pane does.
+//! This module gathers what the summary says about the project as a whole (factors, design,
+//! every alias chain of the main effects and two-factor interactions, the run counts) and asks
+//! [`super::section`] for one section per response, each filled from that response's
+//! [`Report`] (the same value the analysis panes draw and `twofold analyze` writes).
 
 use std::path::Path;
 
 use sha2::{Digest, Sha256};
-use twofold_core::alias::alias_report;
-use twofold_core::anova::Source;
+use twofold_core::alias::{alias_report, chain_label};
 use twofold_core::design::FractionalDesign;
 use twofold_core::ofat;
 use twofold_core::predict::Goal;
-use twofold_core::term::{LETTERS, Term};
+use twofold_core::term::LETTERS;
 
-use super::input::{
-    AnovaRow, AnovaTable, BestSettings, DesignFacts, EffectRow, Equation, FactorRow, Footer,
-    HalfNormalPoint, InteractionPanel, LenthFacts, LevelValue, OfatFacts, ResponseFacts,
-    SummaryInput,
-};
+use super::input::{DesignFacts, FactorRow, Footer, LevelValue, OfatFacts, SummaryInput};
+use super::section::response_summary;
 use super::{ExportError, ExportReport, Paper};
-use crate::numbers;
 use crate::project::{BlockChoice, Factor, FactorKind, Project, ResponseTransform, Severity};
 use crate::report::Report;
 
@@ -34,14 +28,17 @@ pub struct BuildOptions {
     pub date: Option<String>,
     /// What the best settings should achieve.
     pub goal: Goal,
+    /// The response `goal` is for (the others are maximised); `None`: every response.
+    pub goal_response: Option<usize>,
 }
 
 impl Default for BuildOptions {
-    /// No date given, maximise the response.
+    /// No date given, maximise every response.
     fn default() -> Self {
         BuildOptions {
             date: None,
             goal: Goal::Maximise,
+            goal_response: None,
         }
     }
 }
@@ -100,12 +97,13 @@ fn latest_entry_date(project: &Project) -> Option<String> {
         .max()
 }
 
-/// Fills the summary of response `results.response` of `project` from the window's results.
-pub fn summary_input(project: &Project, results: &Report, options: &BuildOptions) -> SummaryInput {
-    let response = project.responses.get(results.response);
-    let transform = response.map_or(ResponseTransform::None, |r| r.model.transform);
-    let mut warnings = Vec::new();
-
+/// Fills the summary of `project` with one section per report in `reports` (in the order
+/// given: one response, or every response). Each section's numbers come from its report only.
+pub fn summary_input(
+    project: &Project,
+    reports: &[&Report],
+    options: &BuildOptions,
+) -> SummaryInput {
     let date = match &options.date {
         Some(d) => d.clone(),
         None => latest_entry_date(project)
@@ -126,160 +124,8 @@ pub fn summary_input(project: &Project, results: &Report, options: &BuildOptions
         })
         .collect();
 
-    let design = design_facts(project, results, &mut warnings);
-
-    // Effects, largest first, each labelled with its short aliases as the window lists chains.
-    let mut effects = Vec::new();
-    let mut half = Vec::new();
-    if let Ok(table) = &results.effects {
-        let in_model = |term: Term| {
-            results.in_model(term) || results.fit.as_ref().is_ok_and(|f| f.terms.contains(&term))
-        };
-        for e in &table.effects {
-            let chain_in_model = std::iter::once(e.term)
-                .chain(e.aliases.iter().map(|a| a.term))
-                .any(in_model);
-            let mut label = e.term.label();
-            for a in e.aliases.iter().filter(|a| a.term.order() <= 3) {
-                label.push('=');
-                label.push_str(&a.to_string());
-            }
-            effects.push(EffectRow {
-                term: label,
-                effect: e.effect,
-                in_model: chain_in_model,
-            });
-        }
-        effects.sort_by(|a, b| b.effect.abs().total_cmp(&a.effect.abs()));
-        for p in &results.half_normal {
-            let chain = table.get(p.term);
-            let model = chain.is_some_and(|e| {
-                std::iter::once(e.term)
-                    .chain(e.aliases.iter().map(|a| a.term))
-                    .any(in_model)
-            });
-            half.push(HalfNormalPoint {
-                term: p.term.label(),
-                abs_effect: p.abs_effect,
-                quantile: p.quantile,
-                in_model: model,
-            });
-        }
-    }
-    let lenth = results.lenth.as_ref().ok().map(|l| LenthFacts {
-        pse: l.pse,
-        me: l.me,
-        sme: l.sme,
-        alpha: 0.05,
-        df: l.df,
-    });
-
-    let (interactions, interaction_note) = interaction_panels(project, results);
-
-    let fit = results.fit.as_ref().ok();
-    let anova = fit.map(|fit| AnovaTable {
-        rows: results
-            .anova_rows()
-            .iter()
-            .map(|r| AnovaRow {
-                source: r.source.to_string(),
-                df: u32::try_from(r.df).unwrap_or(u32::MAX),
-                ss: r.ss,
-                ms: r.ms,
-                f: r.f,
-                p: r.p,
-                emphasis: matches!(r.source, Source::Model | Source::Residual | Source::Total),
-            })
-            .collect(),
-        r_squared: fit.r2,
-        adj_r_squared: fit.adj_r2,
-        pred_r_squared: fit.pred_r2,
-        std_dev: fit.sigma,
-        tests_note: tests_note(results),
-    });
-    if let Some(fit) = fit
-        && !fit.added_for_hierarchy.is_empty()
-    {
-        let added: Vec<String> = fit.added_for_hierarchy.iter().map(|t| t.label()).collect();
-        warnings.push(format!(
-            "Added to keep the model hierarchical: {}.",
-            added.join(", ")
-        ));
-    }
-
-    let name = response.map_or("y", |r| r.name.as_str());
-    let equation = results.equation_natural.as_ref().ok().map(|eq| {
-        let names: Vec<&str> = project.factors.iter().map(|f| f.name.as_str()).collect();
-        Equation {
-            text: eq
-                .format_with_names(&names)
-                .replacen('y', &transform.label(name), 1),
-            note: if project.factors.iter().any(|f| !f.is_numeric()) {
-                "Factors with two labels enter as -1 (first label) and +1 (second).".to_string()
-            } else {
-                String::new()
-            },
-        }
-    });
-
-    let best = fit.and_then(|_| {
-        let o = results.best_settings(options.goal).ok()?;
-        let settings = o
-            .settings
-            .iter()
-            .enumerate()
-            .filter_map(|(i, s)| {
-                let f = project.factors.get(i)?;
-                let text = match (s, &f.kind) {
-                    (None, _) => "does not matter".to_string(),
-                    (Some(c), FactorKind::Numeric { low, high }) => {
-                        let v = 0.5 * (low + high) + c * 0.5 * (high - low);
-                        if let Some((lo, hi)) = f.safe_range
-                            && (v < lo || v > hi)
-                        {
-                            warnings.push(format!(
-                                "{} at {} is outside its safe range {} to {}.",
-                                f.name,
-                                numbers::fmt_num(v, 5),
-                                numbers::fmt_num(lo, 5),
-                                numbers::fmt_num(hi, 5)
-                            ));
-                        }
-                        if f.unit.is_empty() {
-                            numbers::fmt_num(v, 5)
-                        } else {
-                            format!("{} {}", numbers::fmt_num(v, 5), f.unit)
-                        }
-                    }
-                    (Some(c), FactorKind::Categorical { .. }) => setting_text(f, if *c < 0.0 { -1 } else { 1 }),
-                };
-                Some((f.name.clone(), text))
-            })
-            .collect();
-        if o.equally_good > 1 {
-            warnings.push(format!("{} settings are equally good for the best setting; the page shows one of them.", o.equally_good));
-        }
-        if o.target_reached == Some(false) {
-            warnings.push("The target cannot be reached inside the tested levels; the best settings are the closest.".to_string());
-        }
-        if o.curvature_warning {
-            warnings.push("The centre points show curvature: the true best setting may lie inside the box, which this model cannot see.".to_string());
-        }
-        let back = o.prediction.back_transformed(&results.transform);
-        let goal = match options.goal {
-            Goal::Maximise => format!("maximise {name}"),
-            Goal::Minimise => format!("minimise {name}"),
-            Goal::Target(t) => format!("{name} as close as possible to {}", numbers::fmt_num(t, 6)),
-        };
-        Some(BestSettings {
-            goal,
-            settings,
-            predicted: o.value,
-            interval: back.prediction_interval.map(|(a, b)| {
-                (a, b, format!("{} % prediction interval for one run", numbers::fmt_num(100.0 * o.prediction.confidence, 3)))
-            }),
-        })
-    });
+    let mut warnings = Vec::new();
+    let design = design_facts(project, &mut warnings);
 
     let k = project.factors.len();
     let ofat = (design.base_runs > 0 && k > 0).then(|| {
@@ -293,41 +139,41 @@ pub fn summary_input(project: &Project, results: &Report, options: &BuildOptions
         }
     });
 
-    // The window's own warnings first, then the project's checks, in the order shown there.
-    let mut all_warnings: Vec<String> = results.warnings.iter().map(|w| w.text.clone()).collect();
-    all_warnings.extend(warnings);
     if project.runs_outdated {
-        all_warnings.push("The run sheet no longer matches the factors or design settings: regenerate it before carrying out more runs.".to_string());
+        warnings.push("The run sheet no longer matches the factors or design settings: regenerate it before carrying out more runs.".to_string());
     }
     for p in project.validate() {
-        if p.severity == Severity::Warning && !all_warnings.contains(&p.message) {
-            all_warnings.push(capitalised(&p.message));
+        let text = capitalised(&p.message);
+        if p.severity == Severity::Warning && !warnings.contains(&text) {
+            warnings.push(text);
         }
+    }
+
+    let mut responses = Vec::with_capacity(reports.len());
+    for report in reports {
+        let goal = match options.goal_response {
+            Some(r) if r != report.response => Goal::Maximise,
+            _ => options.goal,
+        };
+        let mut section = response_summary(project, report, goal);
+        // A warning about the whole project is printed once, on the first page.
+        section.warnings.retain(|w| {
+            !warnings
+                .iter()
+                .any(|p| p.trim_end_matches('.') == w.trim_end_matches('.'))
+        });
+        responses.push(section);
     }
 
     SummaryInput {
         title: project.name.clone(),
         date,
         description: project.description.clone(),
-        response: ResponseFacts {
-            name: name.to_string(),
-            unit: response.map(|r| r.unit.clone()).unwrap_or_default(),
-            transform: transform_name(transform),
-            runs_used: results.used_runs,
-            runs_total: results.total_runs,
-        },
         factors,
         design,
-        effects,
-        lenth,
-        half_normal: half,
-        interactions,
-        interaction_note,
-        anova,
-        equation,
-        best,
         ofat,
-        warnings: all_warnings,
+        responses,
+        warnings,
         footer: Footer {
             tool: tool_version(),
             seed: project.design.randomize.then_some(project.design.seed),
@@ -347,7 +193,7 @@ fn capitalised(s: &str) -> String {
     }
 }
 
-fn design_facts(project: &Project, results: &Report, warnings: &mut Vec<String>) -> DesignFacts {
+fn design_facts(project: &Project, warnings: &mut Vec<String>) -> DesignFacts {
     let d = &project.design;
     let k = project.factors.len();
     let generators: Vec<String> = d
@@ -379,7 +225,9 @@ fn design_facts(project: &Project, results: &Report, warnings: &mut Vec<String>)
             BlockChoice::Count(_) => Vec::new(),
         },
         resolution: None,
-        aliases: Vec::new(),
+        main_effect_chains: Vec::new(),
+        interaction_chains: Vec::new(),
+        tangled_chains: 0,
         seed: d.randomize.then_some(d.seed),
     };
     if k == 0 || generators.is_empty() {
@@ -394,116 +242,28 @@ fn design_facts(project: &Project, results: &Report, warnings: &mut Vec<String>)
     };
     let report = alias_report(&design);
     facts.resolution = report.resolution;
-    // The terms that matter: those in the model when there is one, else the main effects.
-    let mut wanted: Vec<Term> = results.chosen_terms.clone();
-    if let Ok(fit) = &results.fit {
-        for t in &fit.terms {
-            if !wanted.contains(t) {
-                wanted.push(*t);
-            }
-        }
-    }
-    if wanted.is_empty() {
-        wanted = (0..k).map(Term::main).collect();
-    }
-    wanted.sort();
-    for (term, aliases) in &report.aliases {
-        if !wanted.contains(term) || aliases.is_empty() {
+    // Every chain of the main effects and two-factor interactions, each once, as the core
+    // writes it.
+    for (term, aliases) in report.chains() {
+        if aliases.is_empty() {
             continue;
         }
-        let list: Vec<String> = aliases.iter().map(ToString::to_string).collect();
-        facts
-            .aliases
-            .push(format!("{} = {}", term.label(), list.join(" = ")));
+        let label = chain_label(term, &aliases);
+        match term.order() {
+            1 => facts.main_effect_chains.push(label),
+            _ => facts.interaction_chains.push(label),
+        }
     }
+    facts.tangled_chains = report.two_factor_chains().len();
     let mixed = report.main_effects_aliased_with_interactions();
     if !mixed.is_empty() {
-        let names: Vec<String> = mixed
-            .iter()
-            .take(8)
-            .map(|(t, a)| {
-                let list: Vec<String> = a.iter().take(3).map(ToString::to_string).collect();
-                format!("{} with {}", t.label(), list.join(", "))
-            })
-            .collect();
+        let names: Vec<String> = mixed.iter().map(|(t, _)| t.label()).collect();
         warnings.push(format!(
-            "Main effects are mixed up with two-factor interactions: {}. If one of those interactions is real, the main effect seen is not the factor's own effect.",
-            names.join("; ")
+            "Main effects {} are aliased with two-factor interactions (see the alias chains). If one of those interactions is real, the main effect seen is not the factor's own effect.",
+            names.join(", ")
         ));
     }
     facts
-}
-
-/// One sentence under the ANOVA: how the terms were chosen and which error the tests use.
-fn tests_note(results: &Report) -> String {
-    let how = match &results.choice {
-        Ok(c) if !results.terms_given() => {
-            let list: Vec<String> = c.terms.iter().map(|t| t.label()).collect();
-            format!(
-                "No terms chosen in the project: the model shown is {} ({}). ",
-                if list.is_empty() {
-                    "the mean only".to_string()
-                } else {
-                    list.join(" + ")
-                },
-                c.selection.words()
-            )
-        }
-        _ => String::new(),
-    };
-    format!("{how}{}", results.error_basis.sentence())
-}
-
-/// The interactions to plot: those in the fitted model, else every pair; strongest first.
-fn interaction_panels(project: &Project, results: &Report) -> (Vec<InteractionPanel>, String) {
-    let strength = |t: Term| {
-        results
-            .effects
-            .as_ref()
-            .ok()
-            .and_then(|table| table.effect_of(t))
-            .map_or(0.0, f64::abs)
-    };
-    let in_model: Vec<Term> = results
-        .fit
-        .as_ref()
-        .map(|f| f.terms.iter().copied().filter(|t| t.order() == 2).collect())
-        .unwrap_or_default();
-    let from_model = !in_model.is_empty();
-    let mut panels: Vec<(f64, InteractionPanel)> = results
-        .pairs
-        .iter()
-        .filter_map(|pm| {
-            let (a, b) = pm.factors;
-            let term = Term::main(a).times(Term::main(b));
-            if from_model && !in_model.contains(&term) {
-                return None;
-            }
-            let fa = project.factors.get(a)?;
-            let fb = project.factors.get(b)?;
-            Some((
-                strength(term),
-                InteractionPanel {
-                    term: term.label(),
-                    x_factor: fa.name.clone(),
-                    x_levels: [setting_text(fa, -1), setting_text(fa, 1)],
-                    trace_factor: fb.name.clone(),
-                    trace_levels: [setting_text(fb, -1), setting_text(fb, 1)],
-                    means: pm.means,
-                },
-            ))
-        })
-        .collect();
-    // Strongest first; ties keep the order of the trade.
-    panels.sort_by(|x, y| y.0.total_cmp(&x.0));
-    let note = if from_model {
-        "Two-factor interactions in the model, observed cell means.".to_string()
-    } else if panels.is_empty() {
-        String::new()
-    } else {
-        "No interaction is in the model; the strongest are shown, observed cell means.".to_string()
-    };
-    (panels.into_iter().map(|(_, p)| p).collect(), note)
 }
 
 /// The printable blank run sheet of `project`: every run in run order with its settings in
@@ -554,17 +314,17 @@ pub fn run_sheet_input(project: &Project, date: Option<String>) -> super::run_sh
     }
 }
 
-/// Lays out the summary of response `results.response` and writes it to `path` in the format of
-/// its extension (the window calls this after the engineer confirmed the file in the save
-/// dialog; for a worker thread use [`super::ExportJob::summary`] with [`summary_input`]).
+/// Lays out the summary of the responses of `reports` and writes it to `path` in the format of
+/// its extension: one PDF with every page, or one PNG or SVG file per page (for a worker thread
+/// use [`super::ExportJob::summary_of`] with [`summary_input`]).
 pub fn export_summary(
     project: &Project,
-    results: &Report,
+    reports: &[&Report],
     path: &Path,
     paper: Paper,
     options: &BuildOptions,
 ) -> Result<ExportReport, ExportError> {
-    let input = summary_input(project, results, options);
+    let input = summary_input(project, reports, options);
     super::write_summary(&input, path, paper)
 }
 
@@ -572,6 +332,7 @@ pub fn export_summary(
 mod tests {
     use super::*;
     use crate::project::{Edit, demo_project};
+    use twofold_core::term::Term;
 
     fn demo_with_model() -> Project {
         let mut p = demo_project();
@@ -587,35 +348,33 @@ mod tests {
     fn numbers_are_the_windows_numbers() {
         let p = demo_with_model();
         let r = Report::for_response(&p, 0, 0);
-        let input = summary_input(&p, &r, &BuildOptions::default());
+        let input = summary_input(&p, &[&r], &BuildOptions::default());
+        let sec = &input.responses[0];
         let table = r.effects.as_ref().unwrap();
         // Every effect of the window's table appears once, largest first.
-        assert_eq!(input.effects.len(), table.effects.len());
+        assert_eq!(sec.effects.len(), table.effects.len());
         assert!(
-            input
-                .effects
+            sec.effects
                 .windows(2)
                 .all(|w| w[0].effect.abs() >= w[1].effect.abs())
         );
         let a = table.effect_of(Term::main(0)).unwrap();
         assert!(
-            input
-                .effects
+            sec.effects
                 .iter()
                 .any(|e| e.term == "A" && e.effect == a && e.in_model)
         );
         let lenth = r.lenth.as_ref().unwrap();
-        assert_eq!(input.lenth.unwrap().me, lenth.me);
+        assert_eq!(sec.lenth.unwrap().me, lenth.me);
         let fit = r.fit.as_ref().unwrap();
-        let anova = input.anova.as_ref().unwrap();
+        let anova = sec.anova.as_ref().unwrap();
         assert_eq!(anova.rows.len(), fit.anova.len());
         assert_eq!(anova.r_squared, fit.r2);
-        assert_eq!(input.interactions.len(), 1, "only AB is in the model");
-        assert_eq!(input.interactions[0].term, "AB");
-        assert_eq!(input.response.runs_used, r.used_runs);
+        assert_eq!(sec.interactions.len(), 1, "only AB is in the model");
+        assert_eq!(sec.interactions[0].term, "AB");
+        assert_eq!(sec.response.runs_used, r.used_runs);
         assert!(
-            input
-                .equation
+            sec.equation
                 .as_ref()
                 .unwrap()
                 .text
@@ -627,7 +386,7 @@ mod tests {
             "(4 + 1) × 16 / 2"
         );
         assert_eq!(input.footer.data_hash.len(), 64);
-        let best = input.best.as_ref().unwrap();
+        let best = sec.best.as_ref().unwrap();
         assert_eq!(best.settings.len(), 4);
         assert_eq!(
             best.settings[3].1, "does not matter",
@@ -640,10 +399,11 @@ mod tests {
         let mut p = demo_project();
         p.responses[0].model.terms.clear();
         let r = Report::for_response(&p, 0, 0);
-        let input = summary_input(&p, &r, &BuildOptions::default());
+        let input = summary_input(&p, &[&r], &BuildOptions::default());
+        let sec = &input.responses[0];
         // With no terms chosen the page shows the default choice (tested against the demo's
         // pure error from its two centre points: A, B and AB) and says so.
-        let anova = input.anova.as_ref().unwrap();
+        let anova = sec.anova.as_ref().unwrap();
         assert!(
             anova.tests_note.starts_with("No terms chosen"),
             "{}",
@@ -660,7 +420,7 @@ mod tests {
             anova.tests_note
         );
         assert_eq!(
-            input.interactions[0].term, "AB",
+            sec.interactions[0].term, "AB",
             "the demo's one real interaction"
         );
         // Without any interaction in the data's default model, every pair is offered.
@@ -671,11 +431,13 @@ mod tests {
         }
         q.runs[16].values[0].text = "50.5".into();
         let rq = Report::for_response(&q, 0, 0);
-        let iq = summary_input(&q, &rq, &BuildOptions::default());
-        assert_eq!(iq.interactions.len(), 6);
+        let iq = summary_input(&q, &[&rq], &BuildOptions::default());
+        // Of the six pairs, the four strongest are plotted.
+        assert_eq!(iq.responses[0].interactions.len(), 4);
         assert!(
-            iq.interaction_note
-                .contains("No interaction is in the model")
+            iq.responses[0]
+                .interaction_note
+                .contains("No interaction is in the model; the 4 strongest of the 6 pairs")
         );
     }
 
@@ -694,7 +456,7 @@ mod tests {
         let r = Report::for_response(&p, 0, 0);
         let given = summary_input(
             &p,
-            &r,
+            &[&r],
             &BuildOptions {
                 date: Some("2025-03-04".into()),
                 ..BuildOptions::default()
@@ -709,7 +471,7 @@ mod tests {
         q.runs[5].entered_at = Some("2025-03-09T08:00:00".into());
         let derived = summary_input(
             &q,
-            &Report::for_response(&q, 0, 0),
+            &[&Report::for_response(&q, 0, 0)],
             &BuildOptions::default(),
         );
         assert_eq!(derived.date, "values entered up to 2025-03-09");
@@ -731,9 +493,14 @@ mod tests {
         let p = demo_with_model();
         let make = || {
             let r = Report::for_response(&p, 0, 0);
-            super::super::summary_svg(&summary_input(&p, &r, &BuildOptions::default()), Paper::A4)
+            page1(&summary_input(&p, &[&r], &BuildOptions::default()))
         };
         assert_eq!(make(), make());
+    }
+
+    /// The first page of a summary, as SVG.
+    fn page1(input: &SummaryInput) -> String {
+        super::super::summary_pages(input, Paper::A4).remove(0)
     }
 
     /// The text of the SVG group that starts with `<title>{title}</title>`, up to its end.
@@ -751,8 +518,7 @@ mod tests {
         // drawn in the plot. The demo's model holds AB, so its page has the AB panel.
         let p = demo_with_model();
         let r = Report::for_response(&p, 0, 0);
-        let svg =
-            super::super::summary_svg(&summary_input(&p, &r, &BuildOptions::default()), Paper::A4);
+        let svg = page1(&summary_input(&p, &[&r], &BuildOptions::default()));
         let name = &p.responses[0].name;
         let unit = &p.responses[0].unit;
         let panel = &svg[svg.find("<g><title>interaction plot AB</title>").unwrap()..];
@@ -770,10 +536,10 @@ mod tests {
     fn a_perfect_fit_reads_one_and_no_fit_prints_as_a_rounded_percentage() {
         let p = demo_with_model();
         let r = Report::for_response(&p, 0, 0);
-        let mut input = summary_input(&p, &r, &BuildOptions::default());
-        let svg = super::super::summary_svg(&input, Paper::A4);
+        let mut input = summary_input(&p, &[&r], &BuildOptions::default());
+        let svg = page1(&input);
         assert!(!svg.contains(" %,"), "no R² as a percentage");
-        let anova = input.anova.as_mut().unwrap();
+        let anova = input.responses[0].anova.as_mut().unwrap();
         let r2 = anova.r_squared.unwrap();
         assert!(
             svg.contains(&format!("R² = {}", crate::numbers::fraction_of_one(r2))),
@@ -781,7 +547,7 @@ mod tests {
         );
         anova.r_squared = Some(1.0);
         anova.adj_r_squared = Some(0.99996);
-        let svg = super::super::summary_svg(&input, Paper::A4);
+        let svg = page1(&input);
         assert!(svg.contains("R² = 1,"), "perfect fit");
         assert!(
             svg.contains("adjusted R² = &gt; 0.9999"),
@@ -794,16 +560,77 @@ mod tests {
     fn without_centre_points_the_page_says_curvature_was_not_checked() {
         let p = demo_with_model();
         let r = Report::for_response(&p, 0, 0);
-        let mut input = summary_input(&p, &r, &BuildOptions::default());
+        let mut input = summary_input(&p, &[&r], &BuildOptions::default());
         assert_eq!(
             input.design.centre_points, 2,
             "the demo has two centre points"
         );
         let line = "not checked: no centre points";
-        assert!(!super::super::summary_svg(&input, Paper::A4).contains(line));
+        assert!(!page1(&input).contains(line));
         input.design.centre_points = 0;
-        let svg = super::super::summary_svg(&input, Paper::A4);
+        let svg = page1(&input);
         assert_eq!(svg.matches(line).count(), 1);
         assert!(svg.contains(">Curvature<"));
+    }
+
+    #[test]
+    fn every_response_gets_a_section_from_its_own_report() {
+        let p = demo_with_model();
+        let r0 = Report::for_response(&p, 0, 0);
+        let r1 = Report::for_response(&p, 0, 1);
+        let input = summary_input(&p, &[&r0, &r1], &BuildOptions::default());
+        assert_eq!(input.responses.len(), 2);
+        assert_eq!(input.responses[0].response.name, "Solvent rubs");
+        assert_eq!(input.responses[1].response.name, "Gloss 60°");
+        let a1 = r1
+            .effects
+            .as_ref()
+            .unwrap()
+            .effect_of(Term::main(0))
+            .unwrap();
+        assert!(
+            input.responses[1]
+                .effects
+                .iter()
+                .any(|e| e.term == "A" && e.effect.to_bits() == a1.to_bits())
+        );
+        assert_eq!(
+            input.responses[1].anova.as_ref().unwrap().r_squared,
+            r1.fit.as_ref().unwrap().r2
+        );
+        // The goal chosen for one response leaves the others maximised.
+        let options = BuildOptions {
+            goal: Goal::Minimise,
+            goal_response: Some(1),
+            ..BuildOptions::default()
+        };
+        let input = summary_input(&p, &[&r0, &r1], &options);
+        let goal = |i: usize| input.responses[i].best.as_ref().unwrap().goal.clone();
+        assert_eq!(goal(0), "maximise Solvent rubs");
+        assert_eq!(goal(1), "minimise Gloss 60°");
+    }
+
+    #[test]
+    fn alias_chains_are_every_chain_once_as_the_core_writes_them() {
+        // Montgomery, Design and Analysis of Experiments, 8th ed., section 8.2: the 2^(4-1)
+        // with I = ABCD has A = BCD, B = ACD, C = ABD, D = ABC, AB = CD, AC = BD, AD = BC.
+        let mut p = demo_project();
+        p.apply(Edit::SetDesign(crate::project::DesignSettings {
+            generators: vec!["D=ABC".into()],
+            base_runs: Some(8),
+            ..p.design.clone()
+        }))
+        .unwrap();
+        p.apply(Edit::RegenerateRuns).unwrap();
+        let r = Report::for_response(&p, 0, 0);
+        let input = summary_input(&p, &[&r], &BuildOptions::default());
+        let d = &input.design;
+        assert_eq!(d.resolution, Some(4));
+        assert_eq!(
+            d.main_effect_chains,
+            ["A = BCD", "B = ACD", "C = ABD", "D = ABC"]
+        );
+        assert_eq!(d.interaction_chains, ["AB = CD", "AC = BD", "AD = BC"]);
+        assert_eq!(d.tangled_chains, 3);
     }
 }

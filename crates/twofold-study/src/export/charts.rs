@@ -1,7 +1,9 @@
 //! Charts drawn into a page: the half-normal plot and interaction plots.
 //!
-//! Both draw only the numbers they are handed. Two series are told apart by marker shape and
-//! line style as well as colour, so a black-and-white copy still reads.
+//! Both draw only the numbers they are handed. An effect's sign is its marker's shape (▲ raises
+//! the response, ▼ lowers it) and the `+`/`−` after its label; colour says only whether the term
+//! is in the model (accent, filled) or not (grey, hollow). The two lines of an interaction plot
+//! are told apart by marker shape and line style, never by colour.
 
 use super::input::{HalfNormalPoint, InteractionPanel, LenthFacts};
 use super::page::{Rect, sizes};
@@ -104,8 +106,9 @@ fn plot_area(area: Rect, y_label_chars: usize) -> Rect {
 }
 
 /// Draws the half-normal plot of effects into `area`: |effect| across, half-normal quantile up,
-/// terms in the model filled, others hollow, the largest effects labelled; with Lenth's facts, the
-/// line |effect| = PSE × quantile and the ME and SME limits.
+/// each effect a ▲ (positive) or ▼ (negative), filled in the accent colour when its term is in the
+/// model and hollow grey when not, the largest effects labelled with their sign (`AB −`); with
+/// Lenth's facts, the line |effect| = PSE × quantile and the ME and SME limits.
 pub fn half_normal(
     svg: &mut Svg,
     area: Rect,
@@ -200,7 +203,7 @@ pub fn half_normal(
     // Draw the small effects first so the labelled large ones sit on top.
     let mut order: Vec<&HalfNormalPoint> = finite.clone();
     order.sort_by(|a, b| a.abs_effect.total_cmp(&b.abs_effect));
-    let r = 11.0;
+    let r = 13.0;
     for p in &order {
         let c = (sx.at(p.abs_effect), sy.at(p.quantile));
         placed.0.push(Rect {
@@ -210,9 +213,9 @@ pub fn half_normal(
             h: 2.0 * r,
         });
         if p.in_model {
-            svg.circle(c, r, Some(ACCENT), Some((ACCENT, 2.0)));
+            svg.triangle(c, r, p.positive, Some(ACCENT), Some((ACCENT, 2.0)));
         } else {
-            svg.circle(c, r, Some("#ffffff"), Some((QUIET, 3.0)));
+            svg.triangle(c, r, p.positive, Some("#ffffff"), Some((QUIET, 3.0)));
         }
     }
     // Labels: the model terms and the largest effects, largest first, where there is room.
@@ -228,7 +231,8 @@ pub fn half_normal(
         } else {
             label_style.fill(INK)
         };
-        let w = style.width(&p.term);
+        let label = format!("{} {}", p.term, if p.positive { "+" } else { "\u{2212}" });
+        let w = style.width(&label);
         let h = style.size;
         let candidates = [
             Rect {
@@ -263,7 +267,7 @@ pub fn half_normal(
                 && q.y + q.h <= plot.y + plot.h
         };
         if let Some(spot) = candidates.iter().find(|q| inside(q) && placed.free(q)) {
-            svg.text(spot.x, spot.y + h * 0.82, &p.term, style);
+            svg.text(spot.x, spot.y + h * 0.82, &label, style);
             placed.0.push(*spot);
             labelled += 1;
         }
@@ -348,41 +352,33 @@ pub fn interaction(
             })
             .collect();
         let (colour, dash) = if t == 1 {
-            (ACCENT, None)
+            (INK, None)
         } else {
-            (QUIET, Some(12.0))
+            (INK, Some(12.0))
         };
         svg.polyline(&pts, colour, 4.0, dash);
         for p in &pts {
             if t == 1 {
-                svg.circle(*p, 10.0, Some(ACCENT), None);
+                svg.circle(*p, 10.0, Some(INK), None);
             } else {
-                svg.square(*p, 9.0, Some("#ffffff"), Some((QUIET, 3.0)));
+                svg.square(*p, 9.0, Some("#ffffff"), Some((INK, 3.0)));
             }
         }
     }
     // Legend under the plot, one line per level of the trace factor with the marker of its
-    // points; the level is never cut, only the factor name.
+    // points; the level is never cut, only the factor name (by whole words: it is in full in
+    // the factor table on the same page).
     svg.begin_group(&format!("legend of {}", panel.term));
     for t in 0..2 {
         let ly =
             area.y + area.h - legend.size * 0.3 - (1 - t) as f64 * legend.size * sizes::LEADING;
-        let (colour, dash) = if t == 1 {
-            (ACCENT, None)
-        } else {
-            (QUIET, Some(12.0))
-        };
+        let dash = if t == 1 { None } else { Some(12.0) };
         let mid = ly - legend.size * 0.35;
-        svg.line((area.x, mid), (area.x + 50.0, mid), colour, 4.0, dash);
+        svg.line((area.x, mid), (area.x + 50.0, mid), INK, 4.0, dash);
         if t == 1 {
-            svg.circle((area.x + 25.0, mid), 10.0, Some(ACCENT), None);
+            svg.circle((area.x + 25.0, mid), 10.0, Some(INK), None);
         } else {
-            svg.square(
-                (area.x + 25.0, mid),
-                9.0,
-                Some("#ffffff"),
-                Some((QUIET, 3.0)),
-            );
+            svg.square((area.x + 25.0, mid), 9.0, Some("#ffffff"), Some((INK, 3.0)));
         }
         let level = format!(" = {}", panel.trace_levels[t]);
         let name_w = (area.w - 60.0 - legend.width(&level)).max(legend.size);
@@ -435,6 +431,7 @@ mod tests {
             .map(|(i, t)| HalfNormalPoint {
                 term: t.to_string(),
                 abs_effect: (i + 1) as f64 * 3.0,
+                positive: i % 2 == 0,
                 quantile: 0.3 + i as f64 * 0.5,
                 in_model: *t == "AB",
             })
@@ -458,7 +455,18 @@ mod tests {
             Some(&lenth),
         );
         let doc = svg.finish("t");
-        assert!(doc.contains(">AB</text>"));
+        // AB (third, positive, in the model) is labelled with its sign and drawn as a filled ▲;
+        // C (fourth, negative, not in the model) as a hollow ▼.
+        assert!(doc.contains(">AB +</text>"), "{doc}");
+        assert!(doc.contains(">C \u{2212}</text>"), "{doc}");
+        let markers: Vec<&str> = doc.lines().filter(|l| l.starts_with("<polygon")).collect();
+        assert_eq!(markers.len(), 4);
+        let filled = markers
+            .iter()
+            .filter(|l| l.contains(&format!("fill=\"{ACCENT}\"")))
+            .count();
+        assert_eq!(filled, 1, "only AB is in the model: {markers:?}");
+        assert!(!doc.contains("<circle"), "no round markers for effects");
         assert!(doc.contains(">SME</text>"));
         assert!(doc.contains(">ME</text>"));
     }

@@ -7,7 +7,7 @@
 
 use serde::{Deserialize, Serialize};
 
-/// Everything on the one-page summary.
+/// Everything on the summary: the project's facts once, then one section per response.
 #[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
 pub struct SummaryInput {
     /// Project title.
@@ -17,19 +17,32 @@ pub struct SummaryInput {
     pub date: String,
     /// The engineer's description of the experiment.
     pub description: String,
-    /// The response this page analyses.
-    pub response: ResponseFacts,
     /// Factors in letter order.
     pub factors: Vec<FactorRow>,
     /// The design as run.
     pub design: DesignFacts,
+    /// The one-factor-at-a-time comparison.
+    pub ofat: Option<OfatFacts>,
+    /// The responses summarised, in project order (one, or all of them); each gets its page.
+    pub responses: Vec<ResponseSummary>,
+    /// Warnings about the project and its design (not about one response), one sentence each.
+    pub warnings: Vec<String>,
+    /// Reproducibility facts for the footer.
+    pub footer: Footer,
+}
+
+/// What the summary shows of one response: every number comes from that response's report.
+#[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
+pub struct ResponseSummary {
+    /// The response this section analyses.
+    pub response: ResponseFacts,
     /// Effects, largest magnitude first.
     pub effects: Vec<EffectRow>,
     /// Lenth's pseudo standard error and decision limits, when the effects allow them.
     pub lenth: Option<LenthFacts>,
     /// Points of the half-normal plot.
     pub half_normal: Vec<HalfNormalPoint>,
-    /// Interaction plots, strongest first (at most four are drawn).
+    /// Interaction plots, strongest first.
     pub interactions: Vec<InteractionPanel>,
     /// Sentence under the interaction plots saying which were chosen; empty for the default.
     pub interaction_note: String,
@@ -39,12 +52,12 @@ pub struct SummaryInput {
     pub equation: Option<Equation>,
     /// The best settings found within the design's range.
     pub best: Option<BestSettings>,
-    /// The one-factor-at-a-time comparison.
-    pub ofat: Option<OfatFacts>,
-    /// Warnings as the app shows them, one sentence each.
+    /// Warnings about this response's analysis as the app shows them, one sentence each.
     pub warnings: Vec<String>,
-    /// Reproducibility facts for the footer.
-    pub footer: Footer,
+}
+
+fn default_true() -> bool {
+    true
 }
 
 /// The analysed response.
@@ -119,8 +132,13 @@ pub struct DesignFacts {
     pub block_generators: Vec<String>,
     /// Resolution (None for a full factorial, where no main effect or interaction is aliased).
     pub resolution: Option<u32>,
-    /// Alias chains of the terms that matter (`AB = CE`), strongest first.
-    pub aliases: Vec<String>,
+    /// Alias chains led by a main effect (`A = BCE = BDF`), each chain once, in letter order;
+    /// empty when no main effect has an alias of up to three letters.
+    pub main_effect_chains: Vec<String>,
+    /// Alias chains led by a two-factor interaction (`AB = CE = DF = GH`), each once.
+    pub interaction_chains: Vec<String>,
+    /// How many of those chains hold two or more two-factor interactions.
+    pub tangled_chains: usize,
     /// Seed of the run-order randomisation; `None` when runs are in standard order.
     pub seed: Option<u64>,
 }
@@ -128,8 +146,12 @@ pub struct DesignFacts {
 /// One effect.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct EffectRow {
-    /// Term label (`A`, `BD`), with its aliases when the design has any (`AB+CE`).
+    /// Label of the estimated term (`A`, `BD`).
     pub term: String,
+    /// Its aliases of one or two letters, signed (`CE`, `-DF`); the longer ones are in the alias
+    /// chains of the design.
+    #[serde(default)]
+    pub aliases: Vec<String>,
     /// Effect (high minus low average) in response units.
     pub effect: f64,
     /// Whether the term is in the chosen model.
@@ -158,6 +180,9 @@ pub struct HalfNormalPoint {
     pub term: String,
     /// |effect|.
     pub abs_effect: f64,
+    /// Whether the effect is positive (raises the response); drawn as the marker's shape.
+    #[serde(default = "default_true")]
+    pub positive: bool,
     /// Half-normal quantile of the point's rank.
     pub quantile: f64,
     /// Whether the term is in the chosen model.
@@ -219,7 +244,7 @@ pub struct AnovaTable {
     pub tests_note: String,
 }
 
-/// The fitted equation in natural units.
+/// The fitted equation, in natural units where every factor is numeric, else in coded units.
 #[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
 pub struct Equation {
     /// The equation written out exactly as the app shows it
@@ -227,6 +252,9 @@ pub struct Equation {
     pub text: String,
     /// Note printed under the equation (e.g. how categorical factors are coded); may be empty.
     pub note: String,
+    /// Whether the equation is in coded units (−1 to +1) because it has none in natural units.
+    #[serde(default)]
+    pub coded: bool,
 }
 
 /// The best settings found.
@@ -264,4 +292,35 @@ pub struct Footer {
     pub seed: Option<u64>,
     /// SHA-256 of the project's data, as lowercase hex.
     pub data_hash: String,
+}
+
+impl EffectRow {
+    /// The term with its short aliases, as the effect table prints it (`AB=CE=-DF`).
+    pub fn label(&self) -> String {
+        std::iter::once(self.term.as_str())
+            .chain(self.aliases.iter().map(String::as_str))
+            .collect::<Vec<_>>()
+            .join("=")
+    }
+
+    /// The label followed by the effect's sign, `+` or `−` (`AB=CE −`, `C +`): with the
+    /// marker's shape, the one way the page shows a sign.
+    pub fn label_with_sign(&self) -> String {
+        match sign_word(self.effect) {
+            "" => self.label(),
+            s => format!("{} {s}", self.label()),
+        }
+    }
+}
+
+/// `+` for an effect that raises the response, `−` (minus sign) for one that lowers it, nothing
+/// for a value that is not a number.
+pub fn sign_word(effect: f64) -> &'static str {
+    if !effect.is_finite() {
+        ""
+    } else if effect >= 0.0 {
+        "+"
+    } else {
+        "\u{2212}"
+    }
 }

@@ -101,7 +101,7 @@ impl ExportJob {
         ExportJob { job }
     }
 
-    /// Starts exporting the summary page of `input` to `path`.
+    /// Starts exporting the summary of `input` (every page) to `path`.
     pub fn summary(
         input: SummaryInput,
         path: PathBuf,
@@ -111,8 +111,9 @@ impl ExportJob {
         ExportJob::summary_of(move || input, path, paper, notify)
     }
 
-    /// Starts exporting the summary page whose input `make_input` gathers on the job's thread
-    /// (the window computes the analysis there, so it never waits for it).
+    /// Starts exporting the summary whose input `make_input` gathers on the job's thread (the
+    /// window computes the reports there, so it never waits for them): one PDF with all pages,
+    /// or one PNG or SVG file per page.
     pub fn summary_of(
         make_input: impl FnOnce() -> SummaryInput + Send + 'static,
         path: PathBuf,
@@ -123,7 +124,7 @@ impl ExportJob {
             move || {
                 let input = make_input();
                 (
-                    vec![super::summary_svg(&input, paper)],
+                    super::summary_pages(&input, paper),
                     super::summary_title(&input),
                 )
             },
@@ -247,8 +248,8 @@ mod tests {
             // Hold until the test has cancelled, so the order is certain.
             let _ = gate_rx.recv();
             progress(Stage::LayingOut);
-            let page = super::super::summary_svg(&SummaryInput::default(), Paper::A4);
-            super::super::write_pages(&[page], Paper::A4, &target, "t", progress, cancelled)
+            let pages = super::super::summary_pages(&SummaryInput::default(), Paper::A4);
+            super::super::write_pages(&pages, Paper::A4, &target, "t", progress, cancelled)
         });
         let job = ExportJob::spawn(work, || {});
         job.cancel();

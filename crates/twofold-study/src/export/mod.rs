@@ -1,4 +1,4 @@
-//! Print-ready pages: the one-page summary of an analysis and the blank run sheet for the bench.
+//! Print-ready pages: the summary of an analysis (a page per response) and the blank run sheet.
 //!
 //! Every page is first laid out as SVG by our own writer ([`svg`], [`page`], [`charts`]); PNG
 //! (300 dpi) and PDF (vector, font embedded) are rendered from that SVG ([`render`]). The same
@@ -6,8 +6,10 @@
 //! and the date printed is the one the caller passes in.
 //!
 //! The summary shows what the app shows: [`build`] fills a [`SummaryInput`] from the project and
-//! the analysis cache, and [`summary`] only draws it. Long exports run on a worker thread with
-//! progress ([`job::ExportJob`]) so the window never freezes.
+//! one [`crate::report::Report`] per response ([`section`] makes each response's part), and
+//! [`summary`] only draws it: a page per response, then pages of more detail for whatever did
+//! not fit. Long exports run on a worker thread with progress ([`job::ExportJob`]) so the window
+//! never freezes.
 
 use std::path::{Path, PathBuf};
 
@@ -19,6 +21,7 @@ pub mod job;
 pub mod page;
 pub mod render;
 pub mod run_sheet;
+pub mod section;
 pub mod summary;
 pub mod svg;
 
@@ -70,9 +73,10 @@ pub struct ExportReport {
     pub bytes: usize,
 }
 
-/// The summary page as SVG.
-pub fn summary_svg(input: &SummaryInput, paper: Paper) -> String {
-    summary::render_svg(input, paper)
+/// The pages of the summary as SVG documents, in order: one per response, then the pages of
+/// more detail (if any).
+pub fn summary_pages(input: &SummaryInput, paper: Paper) -> Vec<String> {
+    summary::render_pages(input, paper)
 }
 
 /// Pages in the given format: PDF gives one document; SVG and PNG give one file per page.
@@ -150,21 +154,17 @@ pub fn write_pages(
     })
 }
 
-/// Lays out the summary and writes it to `path` (format from the extension).
+/// Lays out the summary and writes it to `path` (format from the extension): one PDF with all
+/// pages, or one PNG or SVG file per page ([`page_paths`]).
 pub fn write_summary(
     input: &SummaryInput,
     path: &Path,
     paper: Paper,
 ) -> Result<ExportReport, ExportError> {
-    let page = summary_svg(input, paper);
-    write_pages(
-        &[page],
-        paper,
-        path,
-        &summary_title(input),
-        &|_| {},
-        &|| false,
-    )
+    let pages = summary_pages(input, paper);
+    write_pages(&pages, paper, path, &summary_title(input), &|_| {}, &|| {
+        false
+    })
 }
 
 /// The document title of a summary.

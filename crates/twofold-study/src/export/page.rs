@@ -87,36 +87,55 @@ pub mod sizes {
     pub const LEADING: f64 = 1.28;
 }
 
-/// Splits `text` into lines no wider than `width` in `style`, breaking at spaces (and inside a
-/// word only when the word alone is too wide). Explicit line breaks in `text` are kept.
+/// Characters after which a word wider than a whole line may be broken: the joints of alias
+/// chains (`AB=CE`), products (`A*B`), lists and compound words, so each piece stays a whole term
+/// or word.
+const JOINTS: [char; 8] = ['=', '*', '/', '-', ',', ';', '·', '_'];
+
+/// Splits `text` into lines no wider than `width` in `style`.
+///
+/// The rule: lines break at spaces (not at a no-break space), never inside a word. A word wider than a whole line (which
+/// only a long alias chain, product or compound word is in practice) starts a line of its own and
+/// breaks after its joints (`=`, `*`, `/`, `-`, `,`, `;`, `·`, `_`), each piece whole. Only a
+/// piece with no joint that is itself wider than the line is split by characters, with a hyphen
+/// at the break. Explicit line breaks in `text` are kept.
 pub fn wrap(text: &str, style: TextStyle, width: f64) -> Vec<String> {
+    let fits = |s: &str| style.width(s) <= width;
     let mut lines = Vec::new();
     for paragraph in text.split('\n') {
         let mut line = String::new();
-        for word in paragraph.split_whitespace() {
+        for word in words(paragraph) {
             let candidate = if line.is_empty() {
                 word.to_string()
             } else {
                 format!("{line} {word}")
             };
-            if style.width(&candidate) <= width {
+            if fits(&candidate) {
                 line = candidate;
                 continue;
             }
             if !line.is_empty() {
                 lines.push(std::mem::take(&mut line));
             }
-            // A word wider than the line is broken by characters.
-            let mut piece = String::new();
-            for c in word.chars() {
-                piece.push(c);
-                if style.width(&piece) > width && piece.chars().count() > 1 {
-                    piece.pop();
-                    lines.push(std::mem::take(&mut piece));
-                    piece.push(c);
+            if fits(word) {
+                line = word.to_string();
+                continue;
+            }
+            for piece in split_after_joints(word) {
+                let candidate = format!("{line}{piece}");
+                if fits(&candidate) {
+                    line = candidate;
+                    continue;
+                }
+                if !line.is_empty() {
+                    lines.push(std::mem::take(&mut line));
+                }
+                if fits(piece) {
+                    line = piece.to_string();
+                } else {
+                    line = hyphenate(piece, style, width, &mut lines);
                 }
             }
-            line = piece;
         }
         lines.push(line);
     }
@@ -127,16 +146,76 @@ pub fn wrap(text: &str, style: TextStyle, width: f64) -> Vec<String> {
     lines
 }
 
-/// Shortens `text` with a trailing ellipsis until it fits `width`.
+/// The words of `text`: split at spaces, except a no-break space (U+00A0), which holds its
+/// neighbours together as one word.
+fn words(text: &str) -> impl Iterator<Item = &str> {
+    text.split(|c: char| c.is_whitespace() && c != '\u{a0}')
+        .filter(|w| !w.is_empty())
+}
+
+/// `AB=CE=DF` as `AB=`, `CE=`, `DF`: the pieces of a word after each joint.
+fn split_after_joints(word: &str) -> Vec<&str> {
+    let mut pieces = Vec::new();
+    let mut start = 0;
+    for (i, c) in word.char_indices() {
+        if JOINTS.contains(&c) {
+            let end = i + c.len_utf8();
+            pieces.push(&word[start..end]);
+            start = end;
+        }
+    }
+    if start < word.len() {
+        pieces.push(&word[start..]);
+    }
+    pieces
+}
+
+/// The last resort for a piece wider than a whole line: full lines of its characters, each
+/// ending in a hyphen, pushed to `lines`; returns the rest.
+fn hyphenate(piece: &str, style: TextStyle, width: f64, lines: &mut Vec<String>) -> String {
+    let mut part = String::new();
+    for c in piece.chars() {
+        part.push(c);
+        if style.width(&format!("{part}-")) > width && part.chars().count() > 1 {
+            part.pop();
+            lines.push(format!("{part}-"));
+            part = c.to_string();
+        }
+    }
+    part
+}
+
+/// Shortens `text` to fit `width` by leaving out whole words from its end and adding an
+/// ellipsis (`Concentration of the…`); a word is never cut. The caller prints the full text
+/// elsewhere on the page. When not even the first word fits, the ellipsis alone is returned.
 pub fn ellipsize(text: &str, style: TextStyle, width: f64) -> String {
     if style.width(text) <= width {
         return text.to_string();
     }
-    let mut chars: Vec<char> = text.chars().collect();
-    while !chars.is_empty() {
-        chars.pop();
-        let candidate: String = chars.iter().collect::<String>().trim_end().to_string() + "…";
+    let words: Vec<&str> = words(text).collect();
+    for n in (1..words.len()).rev() {
+        let candidate = format!(
+            "{}…",
+            words[..n].join(" ").trim_end_matches([',', ';', ':'])
+        );
         if style.width(&candidate) <= width {
+            return candidate;
+        }
+    }
+    "…".to_string()
+}
+
+/// `line` with ` …` after it, leaving out whole words from its end until it fits `width`: the
+/// last line shown of a text that goes on elsewhere.
+pub fn with_ellipsis(line: &str, style: TextStyle, width: f64) -> String {
+    let words: Vec<&str> = words(line).collect();
+    for n in (0..=words.len()).rev() {
+        let candidate = if n == 0 {
+            "…".to_string()
+        } else {
+            format!("{} …", words[..n].join(" "))
+        };
+        if style.width(&candidate) <= width || n == 0 {
             return candidate;
         }
     }
@@ -203,7 +282,7 @@ impl Column {
 /// One table cell.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Cell {
-    /// Text (shortened with an ellipsis if wider than the column).
+    /// Text (wrapped at word boundaries if wider than the column).
     pub text: String,
     /// Bold weight.
     pub bold: bool,
@@ -327,7 +406,7 @@ impl Flow {
         let shown = lines.len().min(max_lines).min(fit_by_height);
         for (i, line) in lines.iter().take(shown).enumerate() {
             let text = if i + 1 == shown && shown < lines.len() {
-                ellipsize(&format!("{line} …"), style, width)
+                with_ellipsis(line, style, width)
             } else {
                 line.clone()
             };
@@ -360,25 +439,107 @@ impl Flow {
     }
 
     /// A table of at most as many rows as fit (and at most `max_rows`); returns the number of
-    /// rows drawn. Every other row is shaded for reading across.
+    /// rows drawn. Every other row is shaded for reading across. A cell wider than its column
+    /// wraps at word boundaries and its row grows. When rows are left out, the line under the
+    /// table is `more(n)` for the `n` rows not shown.
     pub fn table(
         &mut self,
         svg: &mut Svg,
         columns: &[Column],
         rows: &[Vec<Cell>],
         max_rows: usize,
+        more: &dyn Fn(usize) -> String,
     ) -> usize {
         let rh = row_height();
         let size = sizes::BODY;
         if self.remaining() < 2.0 * rh || columns.is_empty() {
             return 0;
         }
+        let edges = self.column_edges(columns);
+        let pad = size * 0.35;
+        let advance = size * sizes::LEADING;
+        let baseline = |top: f64| top + rh * 0.5 + size * 0.36;
+        let layout = |cells: &[Cell], bold_all: bool| -> (Vec<Vec<String>>, f64) {
+            let wrapped: Vec<Vec<String>> = columns
+                .iter()
+                .zip(cells)
+                .enumerate()
+                .map(|(i, (_, cell))| {
+                    let mut style = TextStyle::new(size);
+                    style.bold = cell.bold || bold_all;
+                    wrap(&cell.text, style, edges[i + 1] - edges[i] - 2.0 * pad)
+                })
+                .collect();
+            let lines = wrapped.iter().map(Vec::len).max().unwrap_or(1).max(1);
+            (wrapped, rh + (lines - 1) as f64 * advance)
+        };
+        let draw_row =
+            |svg: &mut Svg, top: f64, cells: &[Cell], wrapped: &[Vec<String>], bold_all: bool| {
+                for (i, ((c, cell), lines)) in columns.iter().zip(cells).zip(wrapped).enumerate() {
+                    let mut style = TextStyle::new(size).fill(cell.fill);
+                    style.bold = cell.bold || bold_all;
+                    let (x, style) = cell_x(c.align, edges[i], edges[i + 1], pad, style);
+                    for (j, line) in lines.iter().enumerate() {
+                        svg.text(x, baseline(top) + j as f64 * advance, line, style);
+                    }
+                }
+            };
+        // Header row.
+        let header: Vec<Cell> = columns
+            .iter()
+            .map(|c| Cell::plain(c.header.clone()))
+            .collect();
+        let (head_lines, head_h) = layout(&header, true);
+        svg.rect(self.x, self.y, self.w, head_h, Some(SHADE), None);
+        draw_row(svg, self.y, &header, &head_lines, true);
+        self.y += head_h;
+        let note_h = sizes::SMALL * sizes::LEADING;
+        let laid: Vec<(Vec<Vec<String>>, f64)> = rows
+            .iter()
+            .take(max_rows)
+            .map(|r| layout(r, false))
+            .collect();
+        // As many rows as fit; a cut table keeps room for the line that says so.
+        let mut shown = 0;
+        let mut used = 0.0;
+        for (i, (_, h)) in laid.iter().enumerate() {
+            let last = i + 1 == rows.len();
+            let need = used + h + if last { 0.0 } else { note_h };
+            if need > self.remaining() + 0.01 {
+                break;
+            }
+            used += h;
+            shown += 1;
+        }
+        if shown < rows.len() && self.remaining() - used < note_h {
+            shown = shown.saturating_sub(1);
+        }
+        for (r, (row, (lines, h))) in rows.iter().zip(&laid).take(shown).enumerate() {
+            if r % 2 == 1 {
+                svg.rect(self.x, self.y, self.w, *h, Some("#f7f7f7"), None);
+            }
+            draw_row(svg, self.y, row, lines, false);
+            self.y += h;
+        }
+        svg.line((self.x, self.y), (self.x + self.w, self.y), RULE, 2.0, None);
+        if shown < rows.len() {
+            let style = TextStyle::new(sizes::SMALL).fill(MUTED);
+            for line in wrap(&more(rows.len() - shown), style, self.w) {
+                svg.text(self.x, self.y + style.size * 1.1, &line, style);
+                self.y += note_h;
+            }
+        }
+        self.y += size * 0.3;
+        shown
+    }
+
+    /// The x of every column edge of a table across this column, from the columns' shares.
+    pub fn column_edges(&self, columns: &[Column]) -> Vec<f64> {
         let total: f64 = columns
             .iter()
             .map(|c| c.share)
             .sum::<f64>()
             .max(f64::MIN_POSITIVE);
-        let pad = size * 0.35;
         let mut edges = Vec::with_capacity(columns.len() + 1);
         let mut acc = self.x;
         edges.push(acc);
@@ -386,47 +547,7 @@ impl Flow {
             acc += self.w * c.share / total;
             edges.push(acc);
         }
-        let baseline = |top: f64| top + rh * 0.5 + size * 0.36;
-        // Header row.
-        svg.rect(self.x, self.y, self.w, rh, Some(SHADE), None);
-        for (i, c) in columns.iter().enumerate() {
-            let style = TextStyle::new(size).bold();
-            let width = edges[i + 1] - edges[i] - 2.0 * pad;
-            let text = ellipsize(&c.header, style, width);
-            let (x, style) = cell_x(c.align, edges[i], edges[i + 1], pad, style);
-            svg.text(x, baseline(self.y), &text, style);
-        }
-        self.y += rh;
-        let fit = (self.remaining() / rh).floor() as usize;
-        let mut shown = rows.len().min(max_rows).min(fit);
-        let note_h = sizes::SMALL * sizes::LEADING;
-        // A cut table must keep room for the line that says so.
-        if shown < rows.len() && self.remaining() - shown as f64 * rh < note_h {
-            shown = shown.saturating_sub(1);
-        }
-        for (r, row) in rows.iter().take(shown).enumerate() {
-            if r % 2 == 1 {
-                svg.rect(self.x, self.y, self.w, rh, Some("#f7f7f7"), None);
-            }
-            for (i, (c, cell)) in columns.iter().zip(row).enumerate() {
-                let mut style = TextStyle::new(size).fill(cell.fill);
-                style.bold = cell.bold;
-                let width = edges[i + 1] - edges[i] - 2.0 * pad;
-                let text = ellipsize(&cell.text, style, width);
-                let (x, style) = cell_x(c.align, edges[i], edges[i + 1], pad, style);
-                svg.text(x, baseline(self.y), &text, style);
-            }
-            self.y += rh;
-        }
-        svg.line((self.x, self.y), (self.x + self.w, self.y), RULE, 2.0, None);
-        if shown < rows.len() {
-            let note = format!("{} more rows not shown", rows.len() - shown);
-            let style = TextStyle::new(sizes::SMALL).fill(MUTED);
-            svg.text(self.x, self.y + style.size * 1.1, &note, style);
-            self.y += note_h;
-        }
-        self.y += size * 0.3;
-        shown
+        edges
     }
 }
 
@@ -466,22 +587,96 @@ mod tests {
         );
     }
 
+    /// Every word of `text` (split at spaces) is whole on some line of `lines`.
+    fn words_whole(text: &str, lines: &[String]) -> bool {
+        text.split_whitespace()
+            .all(|w| lines.iter().any(|l| l.split_whitespace().any(|x| x == w)))
+    }
+
     #[test]
-    fn long_words_are_broken_not_overflowing() {
+    fn lines_break_between_words_never_inside_one() {
+        // Common practice, no source: a label wraps at its spaces; each line stays inside the
+        // width and every word comes out whole, in order.
+        let style = TextStyle::new(sizes::BODY);
+        let text = "Concentration of the secondary accelerator in the premix";
+        for width in [250.0, 400.0, 700.0, 5000.0] {
+            let lines = wrap(text, style, width);
+            assert!(lines.iter().all(|l| style.width(l) <= width), "{lines:?}");
+            assert!(words_whole(text, &lines), "{width}: {lines:?}");
+            assert_eq!(lines.join(" "), text);
+        }
+    }
+
+    #[test]
+    fn an_alias_chain_wider_than_a_line_breaks_after_its_equals_signs() {
+        let style = TextStyle::new(sizes::BODY);
+        let chain = "A=BCE=BDF=BGH=CDG=CFH=DEH=EFG";
+        let width = style.width("A=BCE=BDF=") + 1.0;
+        let lines = wrap(chain, style, width);
+        assert!(lines.len() >= 3, "{lines:?}");
+        assert!(lines.iter().all(|l| style.width(l) <= width), "{lines:?}");
+        // Each line holds whole terms: it ends at a joint, or is the chain's end.
+        for l in &lines[..lines.len() - 1] {
+            assert!(l.ends_with('='), "{l}");
+        }
+        assert_eq!(lines.concat(), chain);
+        // With spaces (as the core writes chains) the spaces are the breaks.
+        let spaced = "A = BCE = BDF = BGH = CDG = CFH = DEH = EFG";
+        let lines = wrap(spaced, style, width);
+        assert!(words_whole(spaced, &lines), "{lines:?}");
+    }
+
+    #[test]
+    fn a_no_break_space_keeps_a_label_with_its_value() {
+        let style = TextStyle::new(sizes::BODY);
+        let text = "Smaller effects: AD\u{a0}+2.50, ABC\u{a0}−2.50, AC\u{a0}−2.25, ABD\u{a0}+2.25.";
+        for width in [200.0, 300.0, 450.0] {
+            let lines = wrap(text, style, width);
+            for pair in ["AD\u{a0}+2.50,", "ABC\u{a0}−2.50,", "ABD\u{a0}+2.25."] {
+                assert!(
+                    lines.iter().any(|l| l.contains(pair)),
+                    "{width}: {pair} split in {lines:?}"
+                );
+            }
+        }
+    }
+
+    #[test]
+    fn only_a_piece_wider_than_the_whole_line_is_split_with_a_hyphen() {
         let style = TextStyle::new(sizes::BODY);
         let lines = wrap(&"x".repeat(200), style, 300.0);
         assert!(lines.len() > 1);
         assert!(lines.iter().all(|l| style.width(l) <= 300.0));
-        assert_eq!(lines.concat().len(), 200);
+        assert!(lines[..lines.len() - 1].iter().all(|l| l.ends_with('-')));
+        assert_eq!(lines.concat().replace('-', "").len(), 200);
+        // A short word before it stays whole on its own line.
+        let lines = wrap(&format!("Gloss {}", "x".repeat(200)), style, 300.0);
+        assert_eq!(lines[0], "Gloss");
     }
 
     #[test]
-    fn ellipsis_fits() {
+    fn shortening_leaves_out_whole_words() {
         let style = TextStyle::new(sizes::BODY);
-        let s = ellipsize("A very long factor name indeed", style, 200.0);
+        let text = "A very long factor name indeed";
+        let s = ellipsize(text, style, 300.0);
         assert!(s.ends_with('…'));
-        assert!(style.width(&s) <= 200.0);
+        assert!(style.width(&s) <= 300.0);
+        let kept = s.trim_end_matches('…');
+        assert!(text.starts_with(kept), "{s}");
+        assert!(
+            kept.split_whitespace()
+                .all(|w| text.split_whitespace().any(|x| x == w)),
+            "{s}"
+        );
         assert_eq!(ellipsize("short", style, 500.0), "short");
+        assert_eq!(ellipsize("Unbreakable", style, 20.0), "…");
+        let last = with_ellipsis("the equation goes on", style, 250.0);
+        assert!(
+            last.ends_with(" …") && style.width(&last) <= 250.0,
+            "{last}"
+        );
+        let kept = last.trim_end_matches(" …");
+        assert!("the equation goes on".starts_with(kept), "{last}");
     }
 
     #[test]
@@ -496,7 +691,9 @@ mod tests {
         let rows: Vec<Vec<Cell>> = (0..20)
             .map(|i| vec![Cell::plain(format!("T{i}")), Cell::plain(format!("{i}.0"))])
             .collect();
-        let shown = flow.table(&mut svg, &cols, &rows, 100);
+        let shown = flow.table(&mut svg, &cols, &rows, 100, &|n| {
+            format!("{n} more rows not shown")
+        });
         assert_eq!(shown, 4, "five rows fit, one gives way to the note");
         let doc = svg.finish("t");
         assert!(doc.contains("16 more rows not shown"));

@@ -226,7 +226,7 @@ mod tests {
             title: "Bold title".into(),
             ..Default::default()
         };
-        let svg = crate::export::summary_svg(&input, crate::export::Paper::A4);
+        let svg = crate::export::summary_pages(&input, crate::export::Paper::A4).remove(0);
         let layers = font_layers(&svg);
         assert_eq!(layers.len(), 2);
         assert!(
@@ -245,7 +245,8 @@ mod tests {
     #[test]
     fn png_has_the_paper_size_and_says_300_dpi() {
         let svg =
-            crate::export::summary_svg(&crate::export::SummaryInput::default(), Paper::Letter);
+            crate::export::summary_pages(&crate::export::SummaryInput::default(), Paper::Letter)
+                .remove(0);
         let bytes = png(&svg, Paper::Letter).unwrap();
         let be = |at: usize| {
             u32::from_be_bytes([bytes[at], bytes[at + 1], bytes[at + 2], bytes[at + 3]])

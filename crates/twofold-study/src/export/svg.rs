@@ -252,6 +252,37 @@ impl Svg {
         self.rect(cx - half, cy - half, 2.0 * half, 2.0 * half, fill, stroke);
     }
 
+    /// A triangle marker centred on a point: pointing up (`▲`, a positive effect) or down (`▼`,
+    /// a negative one), `half` from the centre to each side.
+    pub fn triangle(
+        &mut self,
+        (cx, cy): (f64, f64),
+        half: f64,
+        up: bool,
+        fill: Option<Colour>,
+        stroke: Option<(Colour, f64)>,
+    ) {
+        // An equilateral triangle whose centroid is the point.
+        let h = half * 3f64.sqrt();
+        let (apex, base) = if up {
+            (cy - h * 2.0 / 3.0, cy + h / 3.0)
+        } else {
+            (cy + h * 2.0 / 3.0, cy - h / 3.0)
+        };
+        let _ = write!(
+            self.body,
+            "<polygon points=\"{},{} {},{} {},{}\"",
+            num(cx),
+            num(apex),
+            num(cx + half),
+            num(base),
+            num(cx - half),
+            num(base)
+        );
+        self.paint(fill, stroke);
+        self.body.push_str("/>\n");
+    }
+
     /// One line of text with its baseline at `y`.
     pub fn text(&mut self, x: f64, y: f64, text: &str, style: TextStyle) {
         if text.is_empty() {

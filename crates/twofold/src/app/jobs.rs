@@ -100,8 +100,8 @@ impl AnalysisSlot {
 }
 
 impl TwofoldApp {
-    /// Where the window keeps the shown response's analysis, and which goal the prediction pane
-    /// has chosen for the best settings.
+    /// Options of the summary: the goal the prediction pane has chosen is for the shown response
+    /// (the others are maximised).
     fn build_options(&self) -> BuildOptions {
         use crate::panels::prediction::Aim;
         use twofold_core::predict::Goal;
@@ -111,7 +111,11 @@ impl TwofoldApp {
             (Aim::Target, Some(t)) => Goal::Target(t),
             _ => Goal::Maximise,
         };
-        BuildOptions { date: None, goal }
+        BuildOptions {
+            date: None,
+            goal,
+            goal_response: self.response,
+        }
     }
 
     /// A closure for export threads that wakes the window when progress changes.
@@ -124,20 +128,21 @@ impl TwofoldApp {
         }
     }
 
-    /// Starts writing the summary page of the shown response on a worker thread: the analysis
-    /// comes from the shared cache (computed there if needed), so the window never waits.
+    /// Starts writing the summary (a page per response, then any pages of more detail) on a
+    /// worker thread: each response's report comes from the shared cache (computed there if
+    /// needed), so the window never waits.
     pub(super) fn export_summary(&mut self, path: PathBuf) {
         if self.export.is_some() {
             self.notice = Some("An export is still running; wait for it or cancel it.".into());
             return;
         }
-        let Some(response) = self.response else {
+        if self.response.is_none() || self.project().responses.is_empty() {
             self.modal = Some(Modal::Error(
                 "There is no response to summarise yet. Add a response and enter values first."
                     .into(),
             ));
             return;
-        };
+        }
         let project = self.project().clone();
         let revision = self.history.revision();
         let cache = Arc::clone(&self.analysis.cache);
@@ -145,8 +150,11 @@ impl TwofoldApp {
         let paper = self.paper;
         // A panic in the analysis is caught by the job and reported as the export's error.
         let input = move || {
-            let results = cached_results(&cache, &project, revision, response);
-            twofold_study::export::summary_input(&project, &results, &options)
+            let reports: Vec<Arc<Report>> = (0..project.responses.len())
+                .map(|response| cached_results(&cache, &project, revision, response))
+                .collect();
+            let refs: Vec<&Report> = reports.iter().map(AsRef::as_ref).collect();
+            twofold_study::export::summary_input(&project, &refs, &options)
         };
         let job = ExportJob::summary_of(input, path.clone(), paper, self.repaint_hook());
         self.export = Some((format!("summary to {}", path.display()), job));

@@ -61,7 +61,7 @@ pub enum Command {
         after_help = super::analyze::AFTER_HELP
     )]
     Analyze(AnalyzeCommand),
-    /// Write the one-page summary, the blank run sheet or the run sheet as CSV.
+    /// Write the summary (a page per response), the blank run sheet or the run sheet as CSV.
     #[command(long_about = super::export::LONG_ABOUT)]
     Export(ExportArgs),
 }

@@ -1,5 +1,5 @@
-//! `twofold export`: the one-page summary, the printable blank run sheet, or the run sheet as CSV,
-//! from a project file, without a window.
+//! `twofold export`: the summary (a page per response), the printable blank run sheet, or the
+//! run sheet as CSV, from a project file, without a window.
 //!
 //! ```text
 //! twofold export PROJECT.ron --out FILE [--paper a4|letter] [--response NAME|N]
@@ -23,12 +23,14 @@ use twofold_study::report::Report;
 
 /// The long description shown by `--help`.
 pub(crate) const LONG_ABOUT: &str = "\
-Write, from a project file, the one-page summary of one response (FILE ending in .png, .svg or
-.pdf), the printable blank run sheet to carry to the bench (--run-sheet), or the run sheet as
-data (FILE ending in .csv).
+Write, from a project file, the summary of the experiment (FILE ending in .png, .svg or .pdf):
+a page per response (every response, or the one named by --response) and, where a page has no
+room for everything, pages of more detail at the end. Or write the printable blank run sheet to
+carry to the bench (--run-sheet), or the run sheet as data (FILE ending in .csv).
 
-PNG pages are drawn at 300 dpi: 2480 x 3508 pixels on A4, 2550 x 3300 on letter. A run sheet
-longer than a page gives one PNG or SVG file per page, or one PDF with all pages. An existing
+PNG pages are drawn at 300 dpi: 2480 x 3508 pixels on A4, 2550 x 3300 on letter. A document of
+several pages gives one PNG or SVG file per page (FILE-1.png, FILE-2.png, ...), or one PDF with
+all pages. An existing
 file is never replaced unless --overwrite is given. The page never reads the clock: its date is
 --date, or the date of the latest value entered.";
 
@@ -44,10 +46,10 @@ pub struct ExportArgs {
     /// Paper size: a4 or letter [default: a4]
     #[arg(long, value_name = "a4|letter")]
     pub paper: Option<String>,
-    /// The response to summarise, by name or by number counted from 1 [default: the first]
+    /// The one response to summarise, by name or by number counted from 1 [default: every response]
     #[arg(long, value_name = "NAME|N")]
     pub response: Option<String>,
-    /// What the best settings aim at: max, min or target:VALUE [default: max]
+    /// What the best settings aim at: max, min, or target:VALUE with --response [default: max]
     #[arg(long, value_name = "GOAL", allow_hyphen_values = true)]
     pub goal: Option<String>,
     /// Date printed on the page [default: the date of the latest value entered, if recorded]
@@ -251,7 +253,6 @@ fn check_targets(paths: &[PathBuf], overwrite: bool) -> Result<(), (i32, String)
 
 fn execute(request: &Request, project: &Project) -> Result<Vec<String>, (i32, String)> {
     let bad = |e: InputError| (EXIT_BAD_INPUT, e.to_string());
-    let failed = |e: export::ExportError| (EXIT_FAILURE, e.to_string());
     match request.kind {
         Kind::Csv => {
             check_targets(std::slice::from_ref(&request.out), request.overwrite)?;
@@ -274,40 +275,69 @@ fn execute(request: &Request, project: &Project) -> Result<Vec<String>, (i32, St
             }
             let sheet = export::run_sheet_input(project, request.date.clone());
             let pages = export::run_sheet::render_pages(&sheet, request.paper);
-            let format = Format::from_path(&request.out).map_err(failed)?;
-            let files = if format == Format::Pdf {
-                1
-            } else {
-                pages.len()
-            };
-            check_targets(&export::page_paths(&request.out, files), request.overwrite)?;
             let title = export::run_sheet::document_title(&sheet);
-            let report = export::write_pages(
-                &pages,
-                request.paper,
-                &request.out,
-                &title,
-                &|_| {},
-                &|| false,
-            )
-            .map_err(failed)?;
+            let report = write_document(request, &pages, &title)?;
             Ok(report_lines(&report, "blank run sheet", request.paper))
         }
         Kind::Summary => {
-            let response = response_index(project, request.response.as_deref()).map_err(bad)?;
-            check_targets(std::slice::from_ref(&request.out), request.overwrite)?;
-            let results = Report::for_response(project, 0, response);
+            let chosen = match request.response.as_deref() {
+                Some(wanted) => vec![response_index(project, Some(wanted)).map_err(bad)?],
+                None => {
+                    response_index(project, None).map_err(bad)?;
+                    (0..project.responses.len()).collect()
+                }
+            };
+            if chosen.len() > 1 && matches!(request.goal, Goal::Target(_)) {
+                return Err((
+                    EXIT_BAD_INPUT,
+                    "option `--goal target:VALUE` is for one response: add --response NAME|N"
+                        .into(),
+                ));
+            }
+            // One report per response, each built once; every number on the pages comes from it.
+            let reports: Vec<Report> = chosen
+                .iter()
+                .map(|&i| Report::for_response(project, 0, i))
+                .collect();
+            let refs: Vec<&Report> = reports.iter().collect();
             let options = BuildOptions {
                 date: request.date.clone(),
                 goal: request.goal,
+                goal_response: None,
             };
-            let report =
-                export::export_summary(project, &results, &request.out, request.paper, &options)
-                    .map_err(failed)?;
-            let what = format!("summary of {}", project.responses[response].name);
-            Ok(report_lines(&report, &what, request.paper))
+            let input = export::summary_input(project, &refs, &options);
+            let pages = export::summary_pages(&input, request.paper);
+            write_document(request, &pages, &export::summary_title(&input)).map(|report| {
+                let names: Vec<&str> = chosen
+                    .iter()
+                    .filter_map(|&i| project.responses.get(i).map(|r| r.name.as_str()))
+                    .collect();
+                let what = format!("summary of {}", names.join(", "));
+                report_lines(&report, &what, request.paper)
+            })
         }
     }
+}
+
+/// Writes `pages` to the request's file (PDF: one document; PNG or SVG: one file per page),
+/// refusing to replace any existing file unless asked to.
+fn write_document(
+    request: &Request,
+    pages: &[String],
+    title: &str,
+) -> Result<export::ExportReport, (i32, String)> {
+    let failed = |e: export::ExportError| (EXIT_FAILURE, e.to_string());
+    let format = Format::from_path(&request.out).map_err(failed)?;
+    let files = if format == Format::Pdf {
+        1
+    } else {
+        pages.len()
+    };
+    check_targets(&export::page_paths(&request.out, files), request.overwrite)?;
+    export::write_pages(pages, request.paper, &request.out, title, &|_| {}, &|| {
+        false
+    })
+    .map_err(failed)
 }
 
 fn report_lines(report: &export::ExportReport, what: &str, paper: Paper) -> Vec<String> {
