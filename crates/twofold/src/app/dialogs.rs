@@ -31,7 +31,7 @@ impl FileAction {
         match self {
             FileAction::Open => ("Open a project", "Open"),
             FileAction::SaveAs => ("Save the project", "Save"),
-            FileAction::ExportSummary => ("Export the summary page", "Export"),
+            FileAction::ExportSummary => ("Export the summary", "Export"),
             FileAction::PrintRunSheet => ("Write the printable run sheet", "Write"),
             FileAction::ExportCsv => ("Export the run sheet as CSV", "Export"),
             FileAction::ImportCsv => ("Import values from a CSV file", "Read"),

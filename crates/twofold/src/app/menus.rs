@@ -217,7 +217,7 @@ impl TwofoldApp {
                     !busy,
                     egui::Button::new("Export summary…").shortcut_text("Ctrl+E"),
                 )
-                .on_hover_text("The one-page summary of the shown response: PDF, PNG (300 dpi) or SVG, by the file name")
+                .on_hover_text("The summary: a page for each response, then any alias chains and details that did not fit. PDF, PNG (300 dpi, a file per page) or SVG, by the file name")
                 .clicked()
             {
                 out.push(AppAction::File(FileAction::ExportSummary));
