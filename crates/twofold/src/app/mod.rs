@@ -37,6 +37,7 @@ use crate::panels::effects::EffectsPane;
 use crate::panels::factors::FactorsPane;
 use crate::panels::interactions::PlotsPane;
 use crate::panels::model::ModelPane;
+use crate::panels::next_runs::NextRunsPane;
 use crate::panels::prediction::PredictionPane;
 use crate::panels::residuals::ResidualsPane;
 use crate::panels::run_sheet::RunSheetPane;
@@ -167,6 +168,7 @@ pub(super) struct Panes {
     plots: PlotsPane,
     residuals: ResidualsPane,
     predict: PredictionPane,
+    next_runs: NextRunsPane,
 }
 
 impl Panes {
@@ -180,6 +182,7 @@ impl Panes {
             Step::Plots => &mut self.plots,
             Step::Residuals => &mut self.residuals,
             Step::Predict => &mut self.predict,
+            Step::NextRuns => &mut self.next_runs,
         }
     }
 }

@@ -13,6 +13,7 @@ pub mod factors;
 pub mod interactions;
 pub mod model;
 pub mod model_cells;
+pub mod next_runs;
 pub mod plots;
 pub mod prediction;
 pub mod residuals;
@@ -41,11 +42,13 @@ pub enum Step {
     Residuals,
     /// Predicted response and best settings.
     Predict,
+    /// Follow-up runs: fold-overs, centre points, a replicate.
+    NextRuns,
 }
 
 impl Step {
     /// All steps in order.
-    pub const ALL: [Step; 8] = [
+    pub const ALL: [Step; 9] = [
         Step::Factors,
         Step::Design,
         Step::Runs,
@@ -54,6 +57,7 @@ impl Step {
         Step::Plots,
         Step::Residuals,
         Step::Predict,
+        Step::NextRuns,
     ];
 
     /// The name shown on the step rail.
@@ -67,6 +71,7 @@ impl Step {
             Step::Plots => "Factor plots",
             Step::Residuals => "Residuals",
             Step::Predict => "Predict",
+            Step::NextRuns => "What to run next",
         }
     }
 
@@ -75,7 +80,7 @@ impl Step {
         matches!(
             self,
             Step::Effects | Step::Model | Step::Plots | Step::Residuals | Step::Predict
-        )
+        ) || self == Step::NextRuns
     }
 }
 
