@@ -513,3 +513,65 @@ fn project_file_gives_the_same_numbers_as_the_window() {
         same(c["ss"].as_f64().unwrap(), r.ss);
     }
 }
+
+/// `analyze PROJECT.ron --json` carries the window's follow-up options, the suggested first,
+/// and the text report ends with them. The rule (fold on the factor in doubt, or fully) is
+/// Montgomery's, Design and Analysis of Experiments, fold-over sections; the numbers of runs
+/// follow from the eight-run design.
+#[test]
+fn a_project_analysis_lists_the_follow_up_runs_with_the_suggested_first() {
+    use twofold_study::project::{Cell, Edit, Factor, Project, ResponseDef, project_to_string};
+    let mut p = Project::new("Screening");
+    for name in ["Temp", "Time", "Speed", "Load", "Feed"] {
+        p.factors.push(Factor::numeric(name, "", 0.0, 1.0));
+    }
+    p.responses.push(ResponseDef::new("Yield", ""));
+    p.design.base_runs = Some(8);
+    p.design.generators = vec!["D=AB".into(), "E=AC".into()];
+    p.apply(Edit::RegenerateRuns).unwrap();
+    let wobble = [0.3, -0.2, 0.1, -0.4, 0.2, 0.0, -0.1, 0.25];
+    for r in &mut p.runs {
+        let y = 60.0 + 7.0 * f64::from(r.levels[0]) + wobble[r.std_order as usize - 1];
+        r.values[0] = Cell::new(format!("{y}"));
+    }
+    let file = TempCsv::new(&project_to_string(&p).unwrap());
+    let ron = file.0.with_extension("ron");
+    std::fs::rename(&file.0, &ron).unwrap();
+    let path = ron.display().to_string();
+    let (code, out, err) = analyze(&[&path, "--json"]);
+    let (tcode, text, _) = analyze(&[&path]);
+    let _ = std::fs::remove_file(&ron);
+    assert_eq!(code, 0, "{err}");
+    let j: Value = serde_json::from_str(&out).unwrap();
+    let list = j["follow_up"].as_array().unwrap();
+    let kinds: Vec<&str> = list.iter().map(|o| o["kind"].as_str().unwrap()).collect();
+    assert_eq!(
+        kinds,
+        [
+            "fold_full",
+            "fold_A",
+            "fold_B",
+            "fold_C",
+            "fold_D",
+            "fold_E",
+            "centre_points",
+            "replicate"
+        ]
+    );
+    assert_eq!(list[0]["suggested"], true);
+    assert_eq!(list[0]["runs_added"], 8);
+    assert!(
+        list[0]["reason"]
+            .as_str()
+            .unwrap()
+            .contains("A cannot be told from BD, CE")
+    );
+    assert_eq!(list[2]["suggested"], false);
+    assert!(list[2]["reason"].is_null());
+    assert_eq!(list[6]["runs_added"], 4);
+    assert_eq!(tcode, 0);
+    assert!(
+        text.contains("What to run next:\n* Full fold-over"),
+        "{text}"
+    );
+}

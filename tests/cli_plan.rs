@@ -263,3 +263,87 @@ fn bad_input_gives_one_line_and_exit_code_two() {
         assert!(err.contains(needle), "{args:?}: {err}");
     }
 }
+
+/// The window's follow-up fold-over adds exactly the runs `twofold plan --fold` prints for the
+/// same design and seed: same blocks, standard order, run order, centre points and levels.
+#[test]
+fn the_windows_fold_over_runs_are_the_runs_plan_prints() {
+    use twofold_core::foldover::FoldKind;
+    use twofold_study::project::{Cell, Edit, Factor, FollowUp, Project, ResponseDef};
+    for (fold, kind) in [("full", FoldKind::Full), ("B", FoldKind::Factor(1))] {
+        let mut p = Project::new("fold");
+        for name in ["A", "B", "C", "D", "E", "F", "G"] {
+            p.factors.push(Factor::numeric(name, "", 0.0, 1.0));
+        }
+        p.responses.push(ResponseDef::new("y", ""));
+        p.design.base_runs = Some(8);
+        p.design.generators = ["D=AB", "E=AC", "F=BC", "G=ABC"].map(String::from).to_vec();
+        p.design.centre_points_per_block = 1;
+        p.design.seed = 42;
+        p.apply(Edit::RegenerateRuns).unwrap();
+        for (i, r) in p.runs.iter_mut().enumerate() {
+            r.values[0] = Cell::new(format!("{}", 30 + i));
+        }
+        let before = p.clone();
+        p.apply(Edit::AddFollowUp(FollowUp::FoldOver(kind)))
+            .unwrap();
+        let j = plan_json(&[
+            "--factors",
+            "7",
+            "--runs",
+            "8",
+            "--generators",
+            "D=AB,E=AC,F=BC,G=ABC",
+            "--centre-points",
+            "1",
+            "--seed",
+            "42",
+            "--fold",
+            fold,
+        ]);
+        let printed: Vec<(u64, u64, u64, bool, Vec<i64>)> = j["runs"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(|r| {
+                (
+                    r["run_order"].as_u64().unwrap(),
+                    r["std_order"].as_u64().unwrap(),
+                    r["block"].as_u64().unwrap(),
+                    r["centre"].as_bool().unwrap(),
+                    r["levels"]
+                        .as_array()
+                        .unwrap()
+                        .iter()
+                        .map(|v| v.as_i64().unwrap())
+                        .collect(),
+                )
+            })
+            .collect();
+        let mut sheet: Vec<(u64, u64, u64, bool, Vec<i64>)> = p
+            .runs
+            .iter()
+            .map(|r| {
+                (
+                    u64::from(r.run_order),
+                    u64::from(r.std_order),
+                    u64::from(r.block),
+                    r.centre,
+                    r.levels.iter().map(|&v| i64::from(v)).collect(),
+                )
+            })
+            .collect();
+        sheet.sort();
+        assert_eq!(sheet, printed, "--fold {fold}");
+        assert_eq!(printed.len(), 18);
+        // The runs in the sheet before keep their values and run order.
+        for r in &before.runs {
+            let now = p
+                .runs
+                .iter()
+                .find(|n| n.block == 1 && n.levels == r.levels)
+                .unwrap();
+            assert_eq!((now.run_order, &now.values), (r.run_order, &r.values));
+        }
+    }
+}

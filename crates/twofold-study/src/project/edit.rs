@@ -12,11 +12,13 @@
 //! [`History`]: super::history::History
 
 use super::cell::Cell;
+use super::follow_up::{FollowUp, FollowUpError};
 use super::model::{
     DesignSettings, Factor, FactorKind, MAX_FACTORS, Project, ResponseDef, ResponseTransform,
     RunStatus,
 };
 use super::regenerate::{PlanError, regenerate_runs};
+use twofold_core::foldover::FoldKind;
 use twofold_core::term::Term;
 
 /// One change to a project. Run indices are positions in [`Project::runs`] (standard order of
@@ -78,6 +80,9 @@ pub enum Edit {
     /// Generate the run sheet from the factors and design settings. Typed values, status, notes
     /// and entry times of runs that survive (same coded settings and replicate) are kept.
     RegenerateRuns,
+    /// Add follow-up runs (a fold-over, centre points, a replicate) to the run sheet, keeping
+    /// every typed value, status and note (see [`super::follow_up`]).
+    AddFollowUp(FollowUp),
     /// Append a response (every run gets an empty cell for it).
     AddResponse(ResponseDef),
     /// Rename a response.
@@ -176,6 +181,9 @@ pub enum EditError {
     /// The run sheet could not be generated from the design.
     #[error("cannot generate the runs: {0}")]
     Plan(#[from] PlanError),
+    /// The follow-up runs could not be added.
+    #[error("cannot add the follow-up runs: {0}")]
+    FollowUp(#[from] FollowUpError),
 }
 
 impl Project {
@@ -204,6 +212,12 @@ impl Project {
                     }
                 }
                 self.mark_outdated();
+                // A fold on the removed factor goes with it; later factors move down one.
+                self.design.fold = match self.design.fold {
+                    Some(FoldKind::Factor(f)) if f == index => None,
+                    Some(FoldKind::Factor(f)) if f > index => Some(FoldKind::Factor(f - 1)),
+                    other => other,
+                };
                 // Letters after the removed factor shift down by one; terms using it are dropped.
                 self.remap_terms(|i| match i.cmp(&index) {
                     std::cmp::Ordering::Less => Some(i),
@@ -237,6 +251,9 @@ impl Project {
                         }
                     };
                     self.remap_terms(|i| Some(moved(i)));
+                    if let Some(FoldKind::Factor(f)) = self.design.fold {
+                        self.design.fold = Some(FoldKind::Factor(moved(f)));
+                    }
                 }
             }
             Edit::SetFactorUnit { index, unit } => self.factor_mut(index)?.unit = unit,
@@ -265,6 +282,7 @@ impl Project {
                 self.design = used;
                 self.runs_outdated = false;
             }
+            Edit::AddFollowUp(follow_up) => self.add_follow_up(follow_up)?,
             Edit::AddResponse(def) => {
                 self.responses.push(def);
                 for run in &mut self.runs {
@@ -465,9 +483,10 @@ mod tests {
             Edit::SetTerms { .. } => 19,
             Edit::SetHierarchical { .. } => 20,
             Edit::SetTransform { .. } => 21,
+            Edit::AddFollowUp(_) => 22,
         }
     }
-    const KINDS: usize = 22;
+    const KINDS: usize = 23;
 
     #[test]
     fn every_edit_kind_changes_and_undoes_and_redoes() {
@@ -518,6 +537,10 @@ mod tests {
             ),
             (planned(), Edit::SetDesign(more_runs)),
             (outdated, Edit::RegenerateRuns),
+            (
+                planned(),
+                Edit::AddFollowUp(crate::project::FollowUp::Replicate),
+            ),
             (
                 planned(),
                 Edit::AddResponse(ResponseDef::new("Hardness", "H")),

@@ -10,10 +10,12 @@
 //! - [`recovery`]: recovery copies a second after each edit, offered on start.
 //! - [`recent`], [`places`]: the recent-files list and the per-user folders.
 //! - [`regenerate`]: the run sheet from the design, keeping typed values that survive.
+//! - [`follow_up`]: follow-up runs (fold-over, centre points, a replicate) added as one edit.
 
 pub mod cell;
 pub mod demo;
 pub mod edit;
+pub mod follow_up;
 pub mod history;
 pub mod io;
 pub mod migrate;
@@ -27,6 +29,7 @@ pub mod validate;
 pub use cell::{Cell, CellValue};
 pub use demo::demo_project;
 pub use edit::{Edit, EditError};
+pub use follow_up::{CENTRE_POINTS_ADDED, FollowUp, FollowUpError, FollowUpPreview, pure_error_df};
 pub use history::History;
 pub use io::{FileError, load_project, project_from_str, project_to_string, save_project};
 pub use model::{

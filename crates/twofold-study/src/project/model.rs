@@ -179,6 +179,11 @@ pub struct DesignSettings {
     pub randomize: bool,
     /// Seed of the run-order randomisation, kept so the same sheet can be regenerated.
     pub seed: u64,
+    /// A fold-over added as a follow-up: the fraction's runs are block 1 and the folded runs
+    /// block 2 (see [`twofold_core::plan::build_fold_over_plan`]). `None` in files written before
+    /// follow-ups existed.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub fold: Option<twofold_core::foldover::FoldKind>,
 }
 
 fn default_true() -> bool {
@@ -197,6 +202,7 @@ impl Default for DesignSettings {
             replicates_as_blocks: false,
             randomize: true,
             seed: 1,
+            fold: None,
         }
     }
 }

@@ -32,6 +32,9 @@ pub enum PlanError {
     /// Replicates, blocks or centre points could not be laid out.
     #[error(transparent)]
     Layout(#[from] twofold_core::plan::PlanError),
+    /// The fold-over could not be made.
+    #[error(transparent)]
+    Fold(#[from] twofold_core::foldover::FoldError),
 }
 
 /// The run sheet the project's factors and design settings give, with typed data carried over
@@ -46,18 +49,18 @@ pub(crate) fn regenerate_runs(
 }
 
 /// Fresh, empty runs for `design` over the project's factors and responses, and the settings as
-/// used (see [`regenerate_runs`]).
+/// used (see [`regenerate_runs`]). The generators as used are those of the fraction, also when
+/// a fold-over is added to it.
 ///
 /// Empty generators with `base_runs` below 2^k call the minimum-aberration search with its
 /// default time budget (proven optimal within it up to 64 runs), so this may take up to about two
 /// seconds for large designs.
-fn plan_runs(
+pub(crate) fn plan_runs(
     project: &Project,
     design: &DesignSettings,
 ) -> Result<(Vec<RunRecord>, DesignSettings), PlanError> {
-    use twofold_core::design::FractionalDesign;
-    use twofold_core::plan::{Blocking, PlanSpec, build_plan};
-    use twofold_core::search::{SearchBudget, minimum_aberration};
+    use twofold_core::foldover::fold_over;
+    use twofold_core::plan::{Blocking, PlanSpec, build_fold_over_plan, build_plan};
 
     let mut check = project.clone();
     check.design = design.clone();
@@ -71,16 +74,7 @@ fn plan_runs(
         return Err(PlanError::Invalid(p.message));
     }
     let k = project.factors.len();
-    let runs = design.base_runs.map(|r| r as usize);
-    let full = 1usize.checked_shl(k as u32).unwrap_or(usize::MAX);
-    let fraction = if design.generators.iter().all(|g| g.trim().is_empty()) {
-        match runs {
-            Some(n) if n != full => minimum_aberration(k, n, &SearchBudget::default())?.design,
-            _ => FractionalDesign::full(k)?,
-        }
-    } else {
-        FractionalDesign::from_text(k, runs, &design.generators.join(","))?
-    };
+    let fraction = fraction_of(k, design)?;
     let blocking = match &design.blocks {
         BlockChoice::Count(n) if *n <= 1 => Blocking::None,
         BlockChoice::Count(n) => Blocking::Count(*n as usize),
@@ -102,7 +96,12 @@ fn plan_runs(
         seed: design.seed,
         randomise: design.randomize,
     };
-    let plan = build_plan(&spec)?;
+    // With a fold-over the fraction's runs are block 1 and the folded runs block 2, laid out by
+    // the same function `twofold plan --fold` uses, so both give the same sheet for one seed.
+    let plan = match design.fold {
+        None => build_plan(&spec)?,
+        Some(kind) => build_fold_over_plan(&spec, &fold_over(&spec.design, kind)?)?,
+    };
     let responses = project.responses.len();
     let mut out: Vec<RunRecord> = plan
         .runs
@@ -125,12 +124,33 @@ fn plan_runs(
     Ok((out, used))
 }
 
+/// The fraction `design` names for `k` factors (without its fold-over): from the generators,
+/// or the full factorial, or, with only a run size, the fraction found by the minimum-aberration
+/// search.
+pub(crate) fn fraction_of(
+    k: usize,
+    design: &DesignSettings,
+) -> Result<twofold_core::design::FractionalDesign, PlanError> {
+    use twofold_core::design::FractionalDesign;
+    use twofold_core::search::{SearchBudget, minimum_aberration};
+    let runs = design.base_runs.map(|r| r as usize);
+    let full = 1usize.checked_shl(k as u32).unwrap_or(usize::MAX);
+    Ok(if design.generators.iter().all(|g| g.trim().is_empty()) {
+        match runs {
+            Some(n) if n != full => minimum_aberration(k, n, &SearchBudget::default())?.design,
+            _ => FractionalDesign::full(k)?,
+        }
+    } else {
+        FractionalDesign::from_text(k, runs, &design.generators.join(","))?
+    })
+}
+
 /// Key matching an old run to a new one.
 type MatchKey = (Vec<i8>, u32);
 
-/// Moves typed data from `old` runs into their partners in `new` (same coded settings and
-/// replicate, k-th to k-th). Returns how many typed cells found no partner.
-pub(crate) fn carry_over(old: &[RunRecord], new: &mut [RunRecord]) -> usize {
+/// The partner in `new` of each run of `old` (same coded settings and replicate, k-th to k-th in
+/// standard order), or `None` when it has none.
+pub(crate) fn partners(old: &[RunRecord], new: &[RunRecord]) -> Vec<Option<usize>> {
     let mut slots: HashMap<MatchKey, Vec<usize>> = HashMap::new();
     for (i, run) in new.iter().enumerate() {
         slots
@@ -142,13 +162,21 @@ pub(crate) fn carry_over(old: &[RunRecord], new: &mut [RunRecord]) -> usize {
     for list in slots.values_mut() {
         list.reverse();
     }
+    old.iter()
+        .map(|run| {
+            slots
+                .get_mut(&(run.levels.clone(), run.replicate))
+                .and_then(Vec::pop)
+        })
+        .collect()
+}
+
+/// Moves typed data from `old` runs into their partners in `new` (see [`partners`]). Returns how
+/// many typed cells found no partner.
+pub(crate) fn carry_over(old: &[RunRecord], new: &mut [RunRecord]) -> usize {
     let mut lost = 0;
-    for run in old {
-        let typed = run.values.iter().filter(|c| c.is_typed()).count();
-        match slots
-            .get_mut(&(run.levels.clone(), run.replicate))
-            .and_then(Vec::pop)
-        {
+    for (run, partner) in old.iter().zip(partners(old, new)) {
+        match partner {
             Some(j) => {
                 let target = &mut new[j];
                 // Response columns are the same on both sides: they come from the same project.
@@ -159,7 +187,7 @@ pub(crate) fn carry_over(old: &[RunRecord], new: &mut [RunRecord]) -> usize {
                 target.note.clone_from(&run.note);
                 target.entered_at.clone_from(&run.entered_at);
             }
-            None => lost += typed,
+            None => lost += run.values.iter().filter(|c| c.is_typed()).count(),
         }
     }
     lost

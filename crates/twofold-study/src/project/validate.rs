@@ -1,7 +1,8 @@
 //! Per-field problems of a project: errors that stop planning or analysis, and warnings the
 //! engineer should see but may override.
 
-use super::model::{FactorKind, MAX_FACTORS, MIN_FACTORS, Project};
+use super::model::{BlockChoice, FactorKind, MAX_FACTORS, MIN_FACTORS, Project};
+use twofold_core::foldover::FoldKind;
 
 /// How serious a problem is.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord)]
@@ -197,6 +198,11 @@ impl Project {
                 "centre points need every factor to be numeric".into(),
             );
         }
+        if let Some(fold) = self.design.fold {
+            for message in fold_problems(self, fold) {
+                push(Severity::Error, Field::Design, message);
+            }
+        }
         if self.design.replicates == 0 {
             push(
                 Severity::Error,
@@ -221,6 +227,40 @@ impl Project {
         }
         out
     }
+}
+
+/// What stops a fold-over from being laid out: a full factorial has no aliases to break
+/// (checked when the design names no fraction), the two halves are blocks of their own so other
+/// blocking cannot be added, and a single-factor fold needs the factor.
+fn fold_problems(project: &Project, fold: FoldKind) -> Vec<String> {
+    let d = &project.design;
+    let k = project.factors.len();
+    let mut out = Vec::new();
+    let no_generators = d.generators.iter().all(|g| g.trim().is_empty());
+    let full = k < usize::BITS as usize
+        && d.base_runs.is_none_or(|n| n as usize == 1usize << k)
+        && no_generators;
+    if full {
+        out.push("a full factorial has no aliases to break; there is nothing to fold over".into());
+    }
+    let blocked = match &d.blocks {
+        BlockChoice::Count(n) => *n > 1,
+        BlockChoice::Generators(g) => g.iter().any(|t| !t.trim().is_empty()),
+    };
+    if blocked || d.replicates_as_blocks {
+        out.push(
+            "a fold-over runs as its own block; it cannot be combined with other blocking".into(),
+        );
+    }
+    if let FoldKind::Factor(f) = fold
+        && f >= k
+    {
+        out.push(format!(
+            "the fold-over switches factor {} and the project has {k} factors",
+            f + 1
+        ));
+    }
+    out
 }
 
 fn unit_space(unit: &str) -> String {

@@ -166,3 +166,28 @@ pub fn report_json(r: &Report) -> Result<Value, String> {
     }
     Ok(obj)
 }
+
+/// The follow-up options as the `follow_up` array of `twofold analyze --json`, suggested first:
+/// `kind` (`fold_full`, `fold_A`, ..., `centre_points`, `replicate`), `title`, `runs_added`,
+/// `resolves` (sentences), `resolution_after` (fold-overs; null otherwise or for a full
+/// factorial), `suggested`, `reason` (null unless suggested) and `unavailable` (why it cannot be
+/// added, or null).
+pub fn follow_up_json(options: &[super::NextRun]) -> Value {
+    Value::Array(
+        options
+            .iter()
+            .map(|n| {
+                json!({
+                    "kind": n.key(),
+                    "title": n.title,
+                    "runs_added": n.runs_added(),
+                    "resolves": n.resolves,
+                    "resolution_after": n.resolution_after,
+                    "suggested": n.suggested,
+                    "reason": n.reason,
+                    "unavailable": n.preview.as_ref().err(),
+                })
+            })
+            .collect(),
+    )
+}

@@ -10,7 +10,8 @@
 //!   choice: pure-error tests when the data carry pure error, Lenth's margins otherwise);
 //! - `build`: [`Report::build`], the counts, corner means and warnings in words;
 //! - `cache`: [`ReportCache`], a few reports keyed on (revision, response, model settings);
-//! - `json`, `text`: the renderers of `twofold analyze`.
+//! - `json`, `text`: the renderers of `twofold analyze`;
+//! - `next_runs`: the follow-up runs a project can add, and the one the report points to.
 //!
 //! # What a report holds
 //! Data counts (used, missing, excluded, bad cells), the transform, effects with Lenth's margins
@@ -32,6 +33,7 @@ mod cache;
 mod choice;
 mod data;
 pub mod json;
+pub mod next_runs;
 pub mod text;
 
 use twofold_core::anova::{Equation, FitError, ModelFit, RangeError};
@@ -59,6 +61,7 @@ pub use data::{
     ResponseData, core_transform, natural_ranges, plot_ranges, project_from_coded,
     project_transform, response_data,
 };
+pub use next_runs::{NextRun, next_runs};
 
 /// Why (part of) a report could not be made.
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]

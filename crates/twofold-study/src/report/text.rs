@@ -247,3 +247,31 @@ pub fn report_text(r: &Report) -> Result<String, String> {
     }
     Ok(s)
 }
+
+/// The follow-up options as a short section of the text report, suggested first; empty when
+/// there are none.
+pub fn follow_up_text(options: &[super::NextRun]) -> String {
+    let mut s = String::new();
+    if options.is_empty() {
+        return s;
+    }
+    let _ = writeln!(s, "What to run next:");
+    for n in options {
+        let mark = if n.suggested { "* " } else { "  " };
+        match &n.preview {
+            Ok(_) => {
+                let _ = writeln!(s, "{mark}{} (+{} runs)", n.title, n.runs_added());
+            }
+            Err(why) => {
+                let _ = writeln!(s, "{mark}{} (cannot be added: {why})", n.title);
+            }
+        }
+        if let Some(r) = &n.reason {
+            let _ = writeln!(s, "    suggested: {r}");
+        }
+        for line in &n.resolves {
+            let _ = writeln!(s, "    {line}");
+        }
+    }
+    s
+}

@@ -18,7 +18,7 @@ impl TwofoldApp {
         let cmd = Modifiers::COMMAND;
         let shift = Modifiers::COMMAND | Modifiers::SHIFT;
         // Most specific first: Ctrl+Shift+Z would also match Ctrl+Z (extra Shift is ignored).
-        // Steps: Ctrl+1 … Ctrl+7, and Ctrl+Page Down / Page Up for the next and previous one.
+        // Steps: Ctrl+1 … Ctrl+8, and Ctrl+Page Down / Page Up for the next and previous one.
         let goto = ctx.input_mut(|i| {
             let numbered = [
                 Key::Num1,
@@ -361,15 +361,12 @@ impl TwofoldApp {
                         .size(15.0)
                         .color(if selected { pal.accent } else { pal.ink });
                     let resp = ui
-                        .with_layout(
-                            egui::Layout::top_down_justified(egui::Align::LEFT),
-                            |ui| {
-                                ui.add(
-                                    egui::Button::selectable(selected, text)
-                                        .min_size(egui::vec2(0.0, 28.0)),
-                                )
-                            },
-                        )
+                        .with_layout(egui::Layout::top_down_justified(egui::Align::LEFT), |ui| {
+                            ui.add(
+                                egui::Button::selectable(selected, text)
+                                    .min_size(egui::vec2(0.0, 28.0)),
+                            )
+                        })
                         .inner
                         .on_hover_text(format!("Ctrl+{}", i + 1));
                     if resp.clicked() {

@@ -37,6 +37,7 @@ use crate::panels::design::{Compute, DesignPane};
 use crate::panels::effects::EffectsPane;
 use crate::panels::factors::FactorsPane;
 use crate::panels::interactions::PlotsPane;
+use crate::panels::next_runs::NextRunsPane;
 use crate::panels::prediction::PredictionPane;
 use crate::panels::run_sheet::RunSheetPane;
 use crate::panels::trust::TrustPane;
@@ -166,6 +167,7 @@ pub(super) struct Panes {
     model: TrustPane,
     plots: PlotsPane,
     predict: PredictionPane,
+    next_runs: NextRunsPane,
 }
 
 impl Panes {
@@ -178,6 +180,7 @@ impl Panes {
             Step::Model => &mut self.model,
             Step::Plots => &mut self.plots,
             Step::Predict => &mut self.predict,
+            Step::NextRuns => &mut self.next_runs,
         }
     }
 }

@@ -161,6 +161,7 @@ impl Pane for DesignPane {
                 extras(ui, project, &mut draft, &pal, k, &mut self.block_text);
                 ui.add_space(8.0);
                 let total = summary(ui, &draft, k, project, &pal);
+                fold_row(ui, &mut draft);
                 ui.add_space(4.0);
                 let unchanged =
                     draft == project.design && !project.runs.is_empty() && !project.runs_outdated;
@@ -198,8 +199,35 @@ impl Pane for DesignPane {
 }
 
 fn has_design_errors(project: &Project, draft: &DesignSettings) -> bool {
+    let blocked = draft.replicates_as_blocks
+        || match &draft.blocks {
+            BlockChoice::Count(n) => *n > 1,
+            BlockChoice::Generators(g) => g.iter().any(|t| !t.trim().is_empty()),
+        };
     (draft.centre_points_per_block > 0 && project.factors.iter().any(|f| !f.is_numeric()))
         || draft.replicates == 0
+        || (draft.fold.is_some() && blocked)
+}
+
+/// The fold-over added on the "What to run next" step, if any, with a way to leave it out.
+fn fold_row(ui: &mut Ui, draft: &mut DesignSettings) {
+    let Some(fold) = draft.fold else {
+        return;
+    };
+    ui.horizontal_wrapped(|ui| {
+        ui.label(match fold {
+            twofold_core::foldover::FoldKind::Full => {
+                "Follow-up: the full fold-over runs as block 2 (it doubles the factorial runs; it cannot be combined with other blocking).".to_string()
+            }
+            twofold_core::foldover::FoldKind::Factor(f) => format!(
+                "Follow-up: the fold-over on {} runs as block 2 (it doubles the factorial runs; it cannot be combined with other blocking).",
+                twofold_core::term::LETTERS.get(f).copied().unwrap_or('?')
+            ),
+        });
+        if ui.button("Leave out the fold-over").clicked() {
+            draft.fold = None;
+        }
+    });
 }
 
 fn options_table(
@@ -249,6 +277,10 @@ fn options_table(
                 let resp = ui.radio(selected, "");
                 let resp = resp.accessible_name(pick_label(o.runs));
                 if resp.clicked() {
+                    if draft.generators != gens {
+                        // A fold-over belongs to the fraction it folds.
+                        draft.fold = None;
+                    }
                     draft.generators = gens.clone();
                     draft.base_runs = if o.generators.is_empty() {
                         None
@@ -315,7 +347,11 @@ fn generators_row(
         if resp.changed() {
             // Half-typed text keeps the last good generators; the error shows beside the field.
             if let Ok(gens) = Generator::parse_list(&pane.generator_text, k) {
-                draft.generators = gens.iter().map(Generator::to_string).collect();
+                let labels: Vec<String> = gens.iter().map(Generator::to_string).collect();
+                if draft.generators != labels {
+                    draft.fold = None;
+                }
+                draft.generators = labels;
                 draft.base_runs = if gens.is_empty() {
                     None
                 } else {

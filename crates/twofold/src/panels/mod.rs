@@ -13,6 +13,7 @@ pub mod factors;
 pub mod interactions;
 pub mod model;
 pub mod model_cells;
+pub mod next_runs;
 pub mod plots;
 pub mod prediction;
 pub mod residuals;
@@ -43,11 +44,13 @@ pub enum Step {
     Plots,
     /// Which settings to run: predicted response and best settings.
     Predict,
+    /// Follow-up runs: fold-overs, centre points, a replicate.
+    NextRuns,
 }
 
 impl Step {
     /// All steps in order.
-    pub const ALL: [Step; 7] = [
+    pub const ALL: [Step; 8] = [
         Step::Factors,
         Step::Design,
         Step::Runs,
@@ -55,6 +58,7 @@ impl Step {
         Step::Model,
         Step::Plots,
         Step::Predict,
+        Step::NextRuns,
     ];
 
     /// The name shown on the step rail and as the pane's heading.
@@ -67,6 +71,7 @@ impl Step {
             Step::Model => "Can the model be trusted?",
             Step::Plots => "What do the factors do?",
             Step::Predict => "Which settings to run?",
+            Step::NextRuns => "What to run next?",
         }
     }
 
@@ -74,7 +79,7 @@ impl Step {
     pub fn is_analysis(self) -> bool {
         matches!(
             self,
-            Step::Effects | Step::Model | Step::Plots | Step::Predict
+            Step::Effects | Step::Model | Step::Plots | Step::Predict | Step::NextRuns
         )
     }
 

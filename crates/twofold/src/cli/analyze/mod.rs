@@ -27,7 +27,9 @@ use twofold_core::effects::EffectsError;
 use twofold_core::term::Term;
 use twofold_core::transform::TransformError;
 use twofold_study::project::{ModelSettings, Project};
-use twofold_study::report::{Report, ReportError, json::report_json, text::report_text};
+use twofold_study::report::json::{follow_up_json, report_json};
+use twofold_study::report::text::{follow_up_text, report_text};
+use twofold_study::report::{NextRun, Report, ReportError, next_runs};
 
 use super::{EXIT_BAD_INPUT, EXIT_FAILURE};
 
@@ -79,15 +81,18 @@ pub fn run(a: AnalyzeArgs, out: &mut dyn Write, err: &mut dyn Write) -> i32 {
         Input::Csv(path) => report_csv(path, &a),
         Input::Project(path) => report_project(path, &a),
     };
-    let report = match report {
+    let (report, follow_up) = match report {
         Ok(x) => x,
         Err(message) => return bad_input(err, &message),
     };
     let text = if a.json {
-        let value = match report_json(&report) {
+        let mut value = match report_json(&report) {
             Ok(v) => v,
             Err(message) => return bad_input(err, &message),
         };
+        if let Some(map) = value.as_object_mut() {
+            map.insert("follow_up".into(), follow_up_json(&follow_up));
+        }
         match serde_json::to_string_pretty(&value) {
             Ok(s) => s + "\n",
             Err(e) => {
@@ -97,7 +102,14 @@ pub fn run(a: AnalyzeArgs, out: &mut dyn Write, err: &mut dyn Write) -> i32 {
         }
     } else {
         match report_text(&report) {
-            Ok(s) => s,
+            Ok(s) => {
+                let more = follow_up_text(&follow_up);
+                if more.is_empty() {
+                    s
+                } else {
+                    format!("{s}\n{more}")
+                }
+            }
             Err(message) => return bad_input(err, &message),
         }
     };
@@ -137,8 +149,9 @@ fn build(
     Ok(report)
 }
 
-/// Reads a coded table into a project and builds the report; errors are one-line messages.
-fn report_csv(path: &std::path::Path, a: &AnalyzeArgs) -> Result<Report, String> {
+/// Reads a coded table into a project and builds the report; errors are one-line messages. A
+/// table carries no design settings, so there are no follow-up options.
+fn report_csv(path: &std::path::Path, a: &AnalyzeArgs) -> Result<(Report, Vec<NextRun>), String> {
     let bytes = match std::fs::read(path) {
         Ok(b) => b,
         Err(e) => {
@@ -176,12 +189,17 @@ fn report_csv(path: &std::path::Path, a: &AnalyzeArgs) -> Result<Report, String>
     build(&project, index, &model, |e| {
         report_message(e, &table, &response)
     })
+    .map(|r| (r, Vec::new()))
 }
 
 /// Reads a project file and builds the report of one response the way the window does: the
 /// same table (bad and empty cells missing, excluded runs out of the fit), by default the
 /// response's chosen transform and model terms (the default choice when none are chosen yet).
-fn report_project(path: &std::path::Path, a: &AnalyzeArgs) -> Result<Report, String> {
+/// The follow-up options are the window's, read from the same report.
+fn report_project(
+    path: &std::path::Path,
+    a: &AnalyzeArgs,
+) -> Result<(Report, Vec<NextRun>), String> {
     let project = twofold_study::project::load_project(path).map_err(|e| e.to_string())?;
     let index = match &a.response {
         None if project.responses.is_empty() => {
@@ -202,10 +220,12 @@ fn report_project(path: &std::path::Path, a: &AnalyzeArgs) -> Result<Report, Str
     };
     let def = &project.responses[index];
     let model = settings(a, def.model.clone())?;
-    build(&project, index, &model, |e| match e {
+    let report = build(&project, index, &model, |e| match e {
         ReportError::Data(_) | ReportError::NoRuns => format!("response `{}`: {e}", def.name),
         other => other.to_string(),
-    })
+    })?;
+    let follow_up = next_runs(&project, Some(&report));
+    Ok((report, follow_up))
 }
 
 fn bad_input(err: &mut dyn Write, message: &str) -> i32 {

@@ -1,6 +1,6 @@
 //! The card with the next unfinished run: its settings in large type and a field per response.
 
-use egui::{Id, RichText, TextEdit, Ui};
+use egui::{RichText, TextEdit, Ui};
 
 use crate::panels::widgets::NumberEdit;
 use crate::panels::{Command, View};
@@ -136,7 +136,7 @@ pub(super) fn next_run_card(
             ui.add_space(4.0);
             ui.horizontal_wrapped(|ui| {
                 for (r, def) in project.responses.iter().enumerate() {
-                    let id = Id::unique(("card_entry", r));
+                    let id = super::card_entry_id(r);
                     if r == 0 {
                         // Opening the run sheet puts the keyboard here, ready for a value.
                         super::super::widgets::prefer_first(ui, id);

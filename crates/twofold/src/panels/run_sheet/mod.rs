@@ -57,6 +57,12 @@ pub fn cell_name(run: &RunRecord, response: &ResponseDef) -> String {
     format!("value run {} {}", run.run_order, response.name)
 }
 
+/// Id of the next-run card's entry field for response `response` (other panes ask for the
+/// keyboard to go there when they send the engineer to the sheet).
+pub fn card_entry_id(response: usize) -> Id {
+    Id::unique(("card_entry", response))
+}
+
 /// Accessible name of the next-run card's entry field for a response.
 pub fn card_field_name(response: &ResponseDef) -> String {
     format!("next run {}", response.name)

@@ -1,0 +1,169 @@
+//! What to run next: the follow-up runs the project can add (fold-overs, centre points, a
+//! replicate), each with the runs it adds and what it resolves, the one the analysis points to
+//! first with its reason. A button per option pushes the edit that adds the runs (one undo
+//! step) and goes to the run sheet, where the entry field of the next run takes the keyboard.
+//!
+//! The options come from the engine ([`twofold_study::report::next_runs`]), built once per data
+//! revision and analysis; the pane only lays them out.
+
+use egui::{RichText, Ui};
+
+use super::run_sheet::card_entry_id;
+use super::widgets::{not_available, tag};
+use super::{Command, Pane, Step, View};
+use twofold_core::foldover::FoldKind;
+use twofold_core::term::LETTERS;
+use twofold_study::project::Edit;
+use twofold_study::report::{NextRun, next_runs};
+
+/// What the options were built from: project revision, shown response, revision of its report.
+type BuiltFor = (u64, Option<usize>, Option<u64>);
+
+/// View state of the pane: the options built once per data revision and analysis.
+#[derive(Debug, Default)]
+pub struct NextRunsPane {
+    built: Option<(BuiltFor, Vec<NextRun>)>,
+}
+
+/// Name of the button that adds an option's runs, e.g. `Add 8 runs: Full fold-over`.
+pub fn add_button_name(option: &NextRun) -> String {
+    format!("Add {} runs: {}", option.runs_added(), option.title)
+}
+
+impl Pane for NextRunsPane {
+    fn ui(&mut self, ui: &mut Ui, view: &View<'_>, out: &mut Vec<Command>) {
+        let Self { built } = self;
+        let pal = view.pal;
+        let project = view.project;
+        if project.runs.is_empty() {
+            not_available(
+                ui,
+                &pal,
+                "There are no runs yet: choose a design and run it first.",
+            );
+            return;
+        }
+        let key: BuiltFor = (
+            view.revision,
+            view.response,
+            view.results.map(|r| r.revision),
+        );
+        if built.as_ref().is_none_or(|(k, _)| *k != key) {
+            *built = Some((key, next_runs(project, view.results)));
+        }
+        let Some((_, options)) = built.as_ref() else {
+            return;
+        };
+        match project.design.fold {
+            Some(FoldKind::Full) => {
+                ui.label("Block 2 of the sheet holds the full fold-over of the fraction.");
+            }
+            Some(FoldKind::Factor(f)) => {
+                ui.label(format!(
+                    "Block 2 of the sheet holds the fold-over on {}.",
+                    LETTERS.get(f).copied().unwrap_or('?')
+                ));
+            }
+            None => {}
+        }
+        match view.results {
+            Some(res) if options.iter().any(|o| o.suggested) => {
+                ui.label(
+                    RichText::new(format!(
+                        "From the analysis of {}: the suggested follow-up comes first.",
+                        view.response_name(res)
+                    ))
+                    .color(pal.muted),
+                );
+            }
+            Some(res) => {
+                ui.label(
+                    RichText::new(format!(
+                        "The analysis of {} leaves no active effect in doubt, so nothing is suggested; each option says what it would add.",
+                        view.response_name(res)
+                    ))
+                    .color(pal.muted),
+                );
+            }
+            None => {
+                ui.label(
+                    RichText::new(
+                        "With values typed for a response, the analysis suggests which follow-up separates the effects in doubt.",
+                    )
+                    .color(pal.muted),
+                );
+            }
+        }
+        ui.add_space(6.0);
+        egui::ScrollArea::vertical()
+            .auto_shrink([false, false])
+            .show(ui, |ui| {
+                for option in options {
+                    option_card(ui, view, option, out);
+                    ui.add_space(6.0);
+                }
+            });
+    }
+}
+
+/// One option: title, runs added, the reason when suggested, what it resolves, and its button.
+fn option_card(ui: &mut Ui, view: &View<'_>, option: &NextRun, out: &mut Vec<Command>) {
+    let pal = view.pal;
+    let frame = egui::Frame::new()
+        .fill(if option.suggested {
+            pal.card_bg
+        } else {
+            ui.visuals().panel_fill
+        })
+        .stroke(egui::Stroke::new(
+            1.0,
+            if option.suggested {
+                pal.accent
+            } else {
+                pal.grid
+            },
+        ))
+        .corner_radius(3.0)
+        .inner_margin(egui::Margin::symmetric(10, 8));
+    frame.show(ui, |ui| {
+        ui.set_width(ui.available_width());
+        ui.horizontal_wrapped(|ui| {
+            ui.label(RichText::new(&option.title).strong().size(16.0));
+            if option.suggested {
+                tag(ui, "suggested", pal.accent);
+            }
+        });
+        if let Some(reason) = &option.reason {
+            ui.label(RichText::new(reason).color(pal.ink));
+        }
+        for line in &option.resolves {
+            ui.label(format!("• {line}"));
+        }
+        match &option.preview {
+            Ok(p) => {
+                if p.reordered > 0 {
+                    ui.label(
+                        RichText::new(format!(
+                            "The run order is drawn again: {} run(s) in the sheet get a new run number or block.",
+                            p.reordered
+                        ))
+                        .color(pal.warn),
+                    );
+                }
+                let button = egui::Button::new(add_button_name(option));
+                if ui.add(button).clicked() {
+                    out.push(Command::Edit(Edit::AddFollowUp(option.follow_up)));
+                    out.push(Command::Goto(Step::Runs));
+                    // The button is gone on the run sheet: the next run's first entry field
+                    // takes the keyboard (a request made now holds until that field is drawn).
+                    if !view.project.responses.is_empty() {
+                        ui.memory_mut(|m| m.request_focus(card_entry_id(0)));
+                    }
+                }
+            }
+            Err(why) => {
+                ui.label(RichText::new(format!("Cannot be added: {why}")).color(pal.muted));
+            }
+        }
+    });
+}

@@ -1,0 +1,131 @@
+//! The "What to run next" step, driven through its widgets by label (no renderer needed).
+
+use egui_kittest::Harness;
+use egui_kittest::kittest::Queryable;
+use twofold_app::app::TwofoldApp;
+use twofold_app::panels::Step;
+use twofold_app::panels::next_runs::add_button_name;
+use twofold_core::foldover::FoldKind;
+use twofold_study::project::{Cell, Edit, Factor, FollowUp, Project, ResponseDef, RunStatus};
+use twofold_study::report::next_runs;
+
+fn harness(app: TwofoldApp) -> Harness<'static, TwofoldApp> {
+    Harness::builder()
+        .with_size([1500.0, 1000.0])
+        .build_ui_state(|ui, app: &mut TwofoldApp| app.ui_in(ui), app)
+}
+
+/// Five factors in the eight-run fraction D=AB, E=AC, every run typed, one excluded with a
+/// reason and one with a note.
+fn screened() -> Project {
+    let mut p = Project::new("Screening");
+    for (name, unit) in [
+        ("Temperature", "°C"),
+        ("Time", "min"),
+        ("Speed", "rpm"),
+        ("Load", "kg"),
+        ("Feed", "mm"),
+    ] {
+        p.factors.push(Factor::numeric(name, unit, 10.0, 20.0));
+    }
+    p.responses.push(ResponseDef::new("Yield", "%"));
+    p.design.base_runs = Some(8);
+    p.design.generators = vec!["D=AB".into(), "E=AC".into()];
+    p.design.seed = 42;
+    if let Err(e) = p.apply(Edit::RegenerateRuns) {
+        panic!("the fraction plans: {e}");
+    }
+    // A large effect of A with a small wobble, so Lenth's margin finds A alone.
+    let wobble = [0.3, -0.2, 0.1, -0.4, 0.2, 0.0, -0.1, 0.25];
+    for r in &mut p.runs {
+        let a = f64::from(r.levels[0]);
+        let y = 60.0 + 7.0 * a + wobble[r.std_order as usize - 1];
+        r.values[0] = Cell::new(format!("{y}"));
+        r.status = RunStatus::Done;
+    }
+    p.runs[3].status = RunStatus::Excluded {
+        reason: "burner out".into(),
+    };
+    p.runs[6].note = "second lot".into();
+    p
+}
+
+/// The label of the full fold-over's button, as the engine names the option.
+fn full_fold_button(p: &Project) -> String {
+    let list = next_runs(p, None);
+    let Some(full) = list
+        .iter()
+        .find(|o| o.follow_up == FollowUp::FoldOver(FoldKind::Full))
+    else {
+        panic!("a full fold-over is offered for a resolution III fraction");
+    };
+    add_button_name(full)
+}
+
+fn assert_sheet_kept(before: &Project, after: &Project) {
+    for r in &before.runs {
+        let Some(now) = after
+            .runs
+            .iter()
+            .find(|n| n.levels == r.levels && n.block == 1)
+        else {
+            panic!("run {:?} left block 1", r.levels);
+        };
+        assert_eq!(now.values, r.values);
+        assert_eq!(now.status, r.status);
+        assert_eq!(now.note, r.note);
+        assert_eq!(now.run_order, r.run_order);
+    }
+}
+
+#[test]
+fn the_full_fold_over_button_adds_block_two_and_undo_takes_it_back() {
+    let before = screened();
+    let label = full_fold_button(&before);
+    let mut h = harness(TwofoldApp::new_for_test(before.clone()));
+    h.state_mut().set_step(Step::NextRuns);
+    h.run();
+    assert!(h.query_by_label("What to run next").is_some());
+    // The analysis of Yield finds A active, and A = BD = CE here: a fold is suggested.
+    assert!(h.query_all_by_label("suggested").count() > 0);
+    h.get_by_label(&label).click();
+    h.run();
+    h.run();
+    let app = h.state();
+    assert_eq!(app.step(), Step::Runs, "the run sheet shows next");
+    let after = app.project().clone();
+    assert_eq!(after.runs.len(), 16, "eight follow-up runs");
+    assert_eq!(after.runs.iter().filter(|r| r.block == 2).count(), 8);
+    assert_eq!(after.design.fold, Some(FoldKind::Full));
+    assert_sheet_kept(&before, &after);
+    // The keyboard is in the next run's entry field, not lost with the button.
+    assert!(h.get_by_label("next run Yield").is_focused());
+    h.state_mut().undo();
+    h.run();
+    assert_eq!(h.state().project(), &before, "one undo step");
+}
+
+#[test]
+fn the_buttons_are_reached_with_tab_and_pressed_with_enter() {
+    let before = screened();
+    let label = full_fold_button(&before);
+    let mut h = harness(TwofoldApp::new_for_test(before.clone()));
+    h.state_mut().set_step(Step::NextRuns);
+    h.run();
+    let mut reached = false;
+    for _ in 0..80 {
+        h.key_press(egui::Key::Tab);
+        h.run();
+        if h.get_by_label(&label).is_focused() {
+            reached = true;
+            break;
+        }
+    }
+    assert!(reached, "Tab reaches the button");
+    h.key_press(egui::Key::Enter);
+    h.run();
+    h.run();
+    assert_eq!(h.state().project().runs.len(), 16);
+    assert_eq!(h.state().step(), Step::Runs);
+    assert!(h.get_by_label("next run Yield").is_focused());
+}
