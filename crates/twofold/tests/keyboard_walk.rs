@@ -70,6 +70,17 @@ impl Walk {
     fn click(&mut self, label: &str) {
         self.keys += 1;
         self.log.push(format!("click '{label}'"));
+        // Work on other threads (a file dialog's answer) may take a few frames under load.
+        let start = std::time::Instant::now();
+        while self.h.query_by_label(label).is_none() {
+            assert!(
+                start.elapsed().as_secs() < 30,
+                "no control labelled '{label}'; the walk so far: {}",
+                self.log.join(" ")
+            );
+            std::thread::sleep(std::time::Duration::from_millis(10));
+            self.h.step();
+        }
         self.h.get_by_label(label).click();
         self.settle();
     }
@@ -111,6 +122,17 @@ impl Walk {
 
     fn project(&self) -> &Project {
         self.h.state().project()
+    }
+
+    /// Steps the window until `done` holds (a file dialog answers on another thread).
+    fn wait_until(&mut self, what: &str, done: impl Fn(&Self) -> bool) {
+        let start = std::time::Instant::now();
+        while !done(self) {
+            assert!(start.elapsed().as_secs() < 120, "{what} never happened");
+            std::thread::sleep(std::time::Duration::from_millis(10));
+            self.h.step();
+        }
+        self.settle();
     }
 
     fn wait_for_export(&mut self) {
@@ -274,6 +296,9 @@ fn the_bench_loop_by_keyboard_alone_takes_at_most_sixty_keys() {
         .set_file_picker(FilePicker::Fixed(Some(summary.clone())));
     w.chord(Key::E);
     w.keys += 1; // Enter in the file dialog
+    w.wait_until("the export", |w| {
+        w.h.state().export_running() || written_pages(&summary) > 0
+    });
     w.wait_for_export();
     assert!(written_pages(&summary) > 0, "the summary PNG was written");
 
@@ -282,7 +307,7 @@ fn the_bench_loop_by_keyboard_alone_takes_at_most_sixty_keys() {
         .set_file_picker(FilePicker::Fixed(Some(saved.clone())));
     w.chord(Key::S);
     w.keys += 1; // Enter in the file dialog
-    w.settle();
+    w.wait_until("the save", |_| saved.exists());
     assert!(saved.exists(), "the project was saved");
     assert!(!w.h.state().history().is_dirty());
 
@@ -337,13 +362,16 @@ fn the_bench_loop_with_the_mouse_takes_at_most_forty_clicks_and_keys() {
         .set_file_picker(FilePicker::Fixed(Some(summary.clone())));
     w.menu("Export summary…");
     w.keys += 1; // the click on Save in the file dialog
+    w.wait_until("the export", |w| {
+        w.h.state().export_running() || written_pages(&summary) > 0
+    });
     w.wait_for_export();
     assert!(written_pages(&summary) > 0);
     w.h.state_mut()
         .set_file_picker(FilePicker::Fixed(Some(saved.clone())));
     w.menu("Save");
     w.keys += 1; // the click on Save in the file dialog
-    w.settle();
+    w.wait_until("the save", |_| saved.exists());
     assert!(saved.exists());
 
     println!("clicks and keys: {} ({})", w.keys, w.log.join(" "));
