@@ -120,21 +120,3 @@ fn the_term_list_after_the_buttons_toggles_a_term_by_keyboard() {
         "a second press takes it out again"
     );
 }
-
-#[test]
-fn the_model_pane_has_no_remove_buttons_among_its_tab_stops() {
-    let mut h = harness(TwofoldApp::new_for_test(demo_with_one_response()));
-    h.state_mut().set_step(Step::Model);
-    h.run();
-    let stops = tab_until(&mut h, "Model of Solvent rubs", "transform");
-    let in_pane: Vec<&str> = stops
-        .iter()
-        .filter(|s| s.in_pane)
-        .map(|s| s.label.as_str())
-        .collect();
-    assert!(!in_pane.is_empty(), "{stops:?}");
-    assert!(
-        in_pane.iter().all(|l| !l.contains('×') && !l.contains('✕')),
-        "{in_pane:?}"
-    );
-}
