@@ -2,8 +2,9 @@
 //! the plots use.
 //!
 //! Colours come from the Okabe–Ito palette (Okabe & Ito 2008, "Color Universal Design"), which
-//! stays distinguishable for the common forms of colour blindness. Nothing is told by colour alone:
-//! the sign of an effect is also a marker shape (triangle up or down) and a `+`/`−` label.
+//! stays distinguishable for the common forms of colour blindness. The sign of an effect is never a
+//! colour: it is a marker shape (triangle up or down) and a `+`/`−` label; colour on an effect
+//! says only whether its term is in the model (accent) or not (muted), see [`Palette::model_colour`].
 //!
 //! The light theme is a warm paper tone with dark ink, meant for a bright lab; the dark theme is a
 //! blue-slate for a dim room. Body text is larger than egui's default so that a laptop on a bench
@@ -118,10 +119,6 @@ pub struct Palette {
     pub axis: Color32,
     /// Accent for selection and the current run.
     pub accent: Color32,
-    /// Effects with a positive sign (drawn with an upward triangle and a `+`).
-    pub positive: Color32,
-    /// Effects with a negative sign (drawn with a downward triangle and a `−`).
-    pub negative: Color32,
     /// Terms in the model (outline and highlight).
     pub in_model: Color32,
     /// Warnings (safe range, aliasing, curvature).
@@ -134,10 +131,6 @@ pub struct Palette {
     pub warn_bg: Color32,
     /// Background of the next-run card.
     pub card_bg: Color32,
-    /// Lines of the low level in interaction plots.
-    pub low_line: Color32,
-    /// Lines of the high level in interaction plots.
-    pub high_line: Color32,
 }
 
 impl Palette {
@@ -152,16 +145,12 @@ impl Palette {
                 grid: Color32::from_rgb(0xE4, 0xE0, 0xD6),
                 axis: Color32::from_rgb(0x6B, 0x6E, 0x75),
                 accent: okabe_ito::BLUE,
-                positive: okabe_ito::BLUE,
-                negative: okabe_ito::VERMILLION,
                 in_model: okabe_ito::BLUISH_GREEN,
                 warn: Color32::from_rgb(0xA8, 0x4A, 0x00),
                 error: Color32::from_rgb(0xB0, 0x1E, 0x1E),
                 ok: Color32::from_rgb(0x00, 0x7A, 0x59),
                 warn_bg: Color32::from_rgb(0xFD, 0xF0, 0xD5),
                 card_bg: Color32::from_rgb(0xE8, 0xF1, 0xF7),
-                low_line: okabe_ito::VERMILLION,
-                high_line: okabe_ito::BLUE,
             },
             ThemeChoice::Dark => Palette {
                 dark: true,
@@ -171,27 +160,20 @@ impl Palette {
                 grid: Color32::from_rgb(0x2F, 0x37, 0x43),
                 axis: Color32::from_rgb(0x8C, 0x95, 0xA3),
                 accent: okabe_ito::SKY_BLUE,
-                positive: okabe_ito::SKY_BLUE,
-                negative: okabe_ito::ORANGE,
                 in_model: okabe_ito::BLUISH_GREEN,
                 warn: okabe_ito::ORANGE,
                 error: Color32::from_rgb(0xFF, 0x7A, 0x6E),
                 ok: okabe_ito::BLUISH_GREEN,
                 warn_bg: Color32::from_rgb(0x3B, 0x2E, 0x16),
                 card_bg: Color32::from_rgb(0x1F, 0x33, 0x45),
-                low_line: okabe_ito::ORANGE,
-                high_line: okabe_ito::SKY_BLUE,
             },
         }
     }
 
-    /// The colour of an effect by its sign.
-    pub fn signed(&self, positive: bool) -> Color32 {
-        if positive {
-            self.positive
-        } else {
-            self.negative
-        }
+    /// The colour of an effect, a term or its plot: the accent when the term is in the model,
+    /// muted grey when it is not. The only colour code of effects (their sign is a shape).
+    pub fn model_colour(&self, in_model: bool) -> Color32 {
+        if in_model { self.accent } else { self.muted }
     }
 }
 
@@ -342,23 +324,23 @@ mod tests {
             assert!(contrast(p.muted, p.plot_bg) >= 4.5, "{choice:?} muted");
             assert!(contrast(p.warn, p.warn_bg) >= 4.5, "{choice:?} warn");
             assert!(contrast(p.error, p.plot_bg) >= 4.5, "{choice:?} error");
-            assert!(
-                contrast(p.positive, p.plot_bg) >= 3.0,
-                "{choice:?} positive"
-            );
-            assert!(
-                contrast(p.negative, p.plot_bg) >= 3.0,
-                "{choice:?} negative"
-            );
+            for in_model in [true, false] {
+                assert!(
+                    contrast(p.model_colour(in_model), p.plot_bg) >= 3.0,
+                    "{choice:?} in the model: {in_model}"
+                );
+            }
         }
     }
 
     #[test]
-    fn the_two_signs_have_different_colours_and_labels() {
+    fn in_and_out_of_the_model_differ_in_colour_and_the_signs_in_label() {
         for choice in [ThemeChoice::Light, ThemeChoice::Dark] {
             let p = Palette::of(choice);
-            assert_ne!(p.signed(true), p.signed(false));
+            assert_ne!(p.model_colour(true), p.model_colour(false));
+            assert_eq!(p.model_colour(true), p.accent);
         }
-        assert_ne!(sign_label(true), sign_label(false));
+        assert_eq!(sign_label(true), "+");
+        assert_eq!(sign_label(false), "\u{2212}");
     }
 }

@@ -1,15 +1,25 @@
 //! A small painter for our plots: a frame with axes, round-numbered ticks and a mapping from data
-//! to screen, plus the marker shapes the plots share.
+//! to screen, plus the marker shapes the plots share and (in [`place`]) the placing of labels.
 //!
 //! We paint our own rather than use a general plotting widget because every point of the
-//! half-normal plot must be a clickable, labelled widget (reachable by keyboard and by tests), and
-//! because the plots are static pictures of one analysis: no pan or zoom to lose the reader.
+//! half-normal plot must be a clickable, named widget (for the mouse and for tests; the keyboard
+//! reaches the same terms through the term list beside it), and because the plots are static
+//! pictures of one analysis: no pan or zoom to lose the reader.
+//!
+//! The look of an effect is the same everywhere in the window: its sign is a marker shape (▲ for
+//! a positive effect, ▼ for a negative one) and a `+`/`−` label, never a colour; colour says only
+//! whether the term is in the model (the accent colour, filled) or not (muted grey, hollow).
+
+pub mod place;
 
 use egui::{Align2, Color32, FontId, Pos2, Rect, Sense, Shape, Stroke, Ui, Vec2, pos2, vec2};
 
 use crate::theme::Palette;
 
-/// Shapes of plot markers; a sign is always told by shape as well as colour.
+/// The words that explain the effect markers, shown beside every chart of effects.
+pub const EFFECT_LEGEND: &str = "▲ raises the response, ▼ lowers it; filled = in the model";
+
+/// Shapes of plot markers; an effect's sign is told by shape (and a `+`/`−` label), not colour.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum Marker {
     /// A filled circle.
@@ -29,6 +39,26 @@ impl Marker {
     pub fn of_sign(positive: bool) -> Marker {
         if positive { Marker::Up } else { Marker::Down }
     }
+}
+
+/// Paints the marker of an effect at `c`: a triangle up (positive) or down (negative), filled in
+/// the accent colour when its term is in the model, hollow and muted when it is not.
+pub fn paint_effect_marker(
+    ui: &Ui,
+    c: Pos2,
+    positive: bool,
+    in_model: bool,
+    r: f32,
+    pal: &Palette,
+) {
+    paint_marker(
+        ui,
+        c,
+        Marker::of_sign(positive),
+        r,
+        pal.model_colour(in_model),
+        !in_model,
+    );
 }
 
 /// Paints `marker` of half-size `r` at `c`; `hollow` draws only the outline.

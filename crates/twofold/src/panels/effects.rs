@@ -1,9 +1,11 @@
 //! The effects pane: ranked effect bars with Lenth's margins and the half-normal plot, where
 //! clicking a bar or a point adds or removes that term from the model; a term list does the same
-//! by keyboard.
+//! by keyboard. The charts take no keyboard focus, so Tab goes from the pane's buttons to the
+//! term list without stopping on every bar and point.
 
 use egui::{RichText, Ui};
 
+use super::chart::EFFECT_LEGEND;
 use super::plots::{EffectBar, EffectBars, HalfNormalPlot, HalfNormalPoint};
 use super::widgets::{not_available, warning_box};
 use super::{Command, Pane, View};
@@ -36,11 +38,20 @@ pub fn term_checkbox_label(term: &str) -> String {
 
 /// A term with its factor names: `AB` → `Temperature × Time`.
 pub fn term_names(project: &Project, term: Term) -> String {
-    let names: Vec<&str> = term
-        .factors()
-        .map(|i| project.factors.get(i).map_or("?", |f| f.name.as_str()))
-        .collect();
-    names.join(" × ")
+    factor_names(project, term).join(" × ")
+}
+
+/// The names of a term's factors: `AB` → `[Temperature, Time]`.
+fn factor_names(project: &Project, term: Term) -> Vec<String> {
+    term.factors()
+        .map(|i| {
+            project
+                .factors
+                .get(i)
+                .map_or("?", |f| f.name.as_str())
+                .to_string()
+        })
+        .collect()
 }
 
 fn build(view: &View<'_>, res: &Report) -> Option<Built> {
@@ -65,16 +76,17 @@ fn build(view: &View<'_>, res: &Report) -> Option<Built> {
                 .aliases
                 .iter()
                 .filter(|a| a.term.order() <= 3)
-                .map(ToString::to_string)
+                .map(|a| format!("= {a}"))
                 .collect();
-            let detail = if aliases.is_empty() {
-                term_names(view.project, e.term)
+            let (detail, detail_sep) = if aliases.is_empty() {
+                (factor_names(view.project, e.term), " × ")
             } else {
-                format!("= {}", aliases.join(" = "))
+                (aliases, " ")
             };
             EffectBar {
                 label: e.term.label(),
                 detail,
+                detail_sep,
                 value: e.effect,
                 in_model: res.fitted(e.term),
             }
@@ -160,15 +172,18 @@ impl Pane for EffectsPane {
             .show(ui, |ui| {
                 ui.columns(2, |cols| {
                     cols[0].label(RichText::new("Ranked effects").strong());
-                    cols[0].weak("Bars filled: in the model. Dashed line ME, solid SME (Lenth).");
+                    cols[0].weak(format!(
+                        "{EFFECT_LEGEND}. Dashed line ME, solid SME (Lenth)."
+                    ));
                     if let Some(i) = built.bars.show(&mut cols[0], &pal)
                         && let Some(&t) = built.bar_terms.get(i)
                     {
                         toggle(t, out);
                     }
                     cols[1].label(RichText::new("Half-normal plot").strong());
-                    cols[1]
-                        .weak("Click a point to add or remove its term. ▲ positive, ▼ negative.");
+                    cols[1].weak(format!(
+                        "{EFFECT_LEGEND}. Click a point or a bar to add or remove its term."
+                    ));
                     if let Some(i) = built.half.show(&mut cols[1], &pal, 360.0)
                         && let Some(&t) = built.half_terms.get(i)
                     {

@@ -151,7 +151,10 @@ impl Pane for PlotsPane {
             .auto_shrink([false, false])
             .show(ui, |ui| {
                 ui.label(RichText::new("Main effects").strong());
-                ui.label(RichText::new("● green title and line: the term is in the model").color(pal.in_model));
+                ui.label(
+                    RichText::new("● title and lines in colour: the term is in the model; grey: it is not")
+                        .color(pal.model_colour(true)),
+                );
                 if res.centre_mean.is_some() {
                     ui.weak("◆ mean of the centre points");
                 }

@@ -4,338 +4,17 @@
 //! None of them compute statistics: the caller fills the struct from the analysis cache, so a plot
 //! costs only painting. Widgets that let the user pick a term return the index of the clicked item.
 
-use egui::{Align2, FontId, Rect, Role, Sense, Stroke, Ui, WidgetInfo, pos2, vec2};
+mod bars;
+mod half_normal;
 
+pub use bars::{EffectBar, EffectBars, MAX_BARS};
+pub use half_normal::{HalfNormalPlot, HalfNormalPoint};
+
+use egui::{FontId, Rect, Stroke, Ui, vec2};
+
+use super::chart::place::{self, Sides};
 use super::chart::{self, AxesSpec, Marker, fmt_num, padded, paint_marker};
-use crate::theme::{Palette, sign_label};
-
-/// One bar of the effect ranking.
-#[derive(Debug, Clone, PartialEq)]
-pub struct EffectBar {
-    /// Term label, e.g. `AB`.
-    pub label: String,
-    /// Longer description shown beside the label, e.g. `Temp × Time`.
-    pub detail: String,
-    /// The signed effect.
-    pub value: f64,
-    /// Whether the term is in the model.
-    pub in_model: bool,
-}
-
-/// Ranked effect bars with Lenth's margin of error (ME) and simultaneous margin (SME).
-#[derive(Debug, Clone, PartialEq, Default)]
-pub struct EffectBars {
-    /// Bars, largest absolute effect first.
-    pub bars: Vec<EffectBar>,
-    /// Lenth's margin of error, when it exists.
-    pub me: Option<f64>,
-    /// Lenth's simultaneous margin of error, when it exists.
-    pub sme: Option<f64>,
-}
-
-/// Most bars drawn; smaller effects are summarised in one line (a 4096-run design has 4095).
-pub const MAX_BARS: usize = 40;
-
-impl EffectBars {
-    /// Draws the bars; returns the index of a clicked bar.
-    pub fn show(&self, ui: &mut Ui, pal: &Palette) -> Option<usize> {
-        let shown = self.bars.len().min(MAX_BARS);
-        if shown == 0 {
-            ui.label("No effects to rank yet.");
-            return None;
-        }
-        let row_h = 22.0;
-        let label_w = 190.0;
-        let width = ui.available_width().max(320.0);
-        let top_pad = 18.0;
-        let height = top_pad + row_h * shown as f32 + 4.0;
-        let (outer, _) = ui.allocate_exact_size(vec2(width, height), Sense::hover());
-        let bar_area = Rect::from_min_max(
-            pos2(outer.left() + label_w, outer.top() + top_pad),
-            pos2(outer.right() - 70.0, outer.bottom()),
-        );
-        let max_abs = self
-            .bars
-            .iter()
-            .take(shown)
-            .map(|b| b.value.abs())
-            .chain(self.me)
-            .chain(self.sme)
-            .fold(0.0f64, f64::max);
-        let scale = if max_abs > 0.0 {
-            f64::from(bar_area.width()) / max_abs
-        } else {
-            0.0
-        };
-        let x_of = |v: f64| bar_area.left() + (v * scale) as f32;
-        let small = FontId::proportional(12.0);
-        let mut clicked = None;
-        let base_id = ui.scope_id().with("effect_bars");
-        for (i, bar) in self.bars.iter().take(shown).enumerate() {
-            let y0 = bar_area.top() + row_h * i as f32;
-            let row = Rect::from_min_max(pos2(outer.left(), y0), pos2(outer.right(), y0 + row_h));
-            let resp = ui.interact(row, base_id.with(i), Sense::click());
-            let label = format!(
-                "effect {} {}{}",
-                bar.label,
-                sign_label(bar.value >= 0.0),
-                if bar.in_model { " in model" } else { "" }
-            );
-            resp.widget_info(|| WidgetInfo::selected(Role::Button, true, bar.in_model, &label));
-            if resp.clicked() {
-                clicked = Some(i);
-            }
-            let resp = resp.on_hover_text(format!(
-                "{} {}: effect {}. Click to {} the model.",
-                bar.label,
-                bar.detail,
-                fmt_num(bar.value, 4),
-                if bar.in_model {
-                    "remove it from"
-                } else {
-                    "add it to"
-                }
-            ));
-            if !ui.is_rect_visible(row) {
-                continue;
-            }
-            let painter = ui.painter();
-            if resp.hovered() {
-                painter.rect_filled(row, 2.0, pal.grid);
-            }
-            let positive = bar.value >= 0.0;
-            let color = pal.signed(positive);
-            let text = if bar.detail.is_empty() {
-                bar.label.clone()
-            } else {
-                format!("{}  {}", bar.label, bar.detail)
-            };
-            // Clipped to the label column: a long name must not run under the bars.
-            let label_clip =
-                Rect::from_min_max(row.left_top(), pos2(bar_area.left() - 6.0, row.bottom()));
-            painter.with_clip_rect(label_clip).text(
-                pos2(outer.left() + 4.0, row.center().y),
-                Align2::LEFT_CENTER,
-                truncate(&text, 40),
-                FontId::proportional(13.5),
-                if bar.in_model { pal.ink } else { pal.muted },
-            );
-            let bar_rect = Rect::from_min_max(
-                pos2(bar_area.left(), y0 + 4.0),
-                pos2(
-                    x_of(bar.value.abs()).max(bar_area.left() + 1.0),
-                    y0 + row_h - 4.0,
-                ),
-            );
-            if bar.in_model {
-                painter.rect_filled(bar_rect, 1.0, color);
-            } else {
-                painter.rect(
-                    bar_rect,
-                    1.0,
-                    color.gamma_multiply(0.18),
-                    Stroke::new(1.0, color),
-                    egui::StrokeKind::Inside,
-                );
-            }
-            let tip = pos2(bar_rect.right() + 9.0, row.center().y);
-            paint_marker(ui, tip, Marker::of_sign(positive), 5.0, color, false);
-            ui.painter().text(
-                pos2(tip.x + 9.0, row.center().y),
-                Align2::LEFT_CENTER,
-                format!("{}{}", sign_label(positive), fmt_num(bar.value.abs(), 3)),
-                small.clone(),
-                pal.ink,
-            );
-        }
-        for (name, value, dash) in [("ME", self.me, true), ("SME", self.sme, false)] {
-            if let Some(v) = value
-                && v.is_finite()
-                && scale > 0.0
-            {
-                let x = x_of(v);
-                let stroke = Stroke::new(1.5, pal.ink);
-                let a = pos2(x, bar_area.top() - 2.0);
-                let b = pos2(x, bar_area.bottom());
-                if dash {
-                    chart::dashed(ui, a, b, stroke);
-                } else {
-                    ui.painter().line_segment([a, b], Stroke::new(1.0, pal.ink));
-                }
-                ui.painter().text(
-                    pos2(x, outer.top() + 1.0),
-                    Align2::CENTER_TOP,
-                    format!("{name} {}", fmt_num(v, 3)),
-                    small.clone(),
-                    pal.ink,
-                );
-            }
-        }
-        if self.bars.len() > shown {
-            ui.weak(format!(
-                "{} smaller effects not drawn.",
-                self.bars.len() - shown
-            ));
-        }
-        clicked
-    }
-}
-
-fn truncate(s: &str, max: usize) -> String {
-    if s.chars().count() <= max {
-        s.to_string()
-    } else {
-        let mut t: String = s.chars().take(max.saturating_sub(1)).collect();
-        t.push('…');
-        t
-    }
-}
-
-/// One point of the half-normal plot.
-#[derive(Debug, Clone, PartialEq)]
-pub struct HalfNormalPoint {
-    /// Term label.
-    pub label: String,
-    /// Absolute effect (x).
-    pub abs_effect: f64,
-    /// Half-normal quantile (y).
-    pub quantile: f64,
-    /// Sign of the effect.
-    pub positive: bool,
-    /// Whether the term is in the model.
-    pub in_model: bool,
-}
-
-/// The half-normal plot of absolute effects; clicking a point toggles its term.
-#[derive(Debug, Clone, PartialEq, Default)]
-pub struct HalfNormalPlot {
-    /// The points.
-    pub points: Vec<HalfNormalPoint>,
-    /// Lenth's pseudo standard error: the reference line is `|effect| = PSE × quantile`.
-    pub pse: Option<f64>,
-    /// Lenth's margin of error, drawn as a vertical line.
-    pub me: Option<f64>,
-}
-
-/// Points with this many largest effects always carry a label, besides the model's terms.
-const LABELLED_LARGEST: usize = 8;
-
-impl HalfNormalPlot {
-    /// Draws the plot; returns the index of a clicked point.
-    pub fn show(&self, ui: &mut Ui, pal: &Palette, height: f32) -> Option<usize> {
-        if self.points.is_empty() {
-            ui.label("No effects to plot yet.");
-            return None;
-        }
-        let xmax = self
-            .points
-            .iter()
-            .map(|p| p.abs_effect)
-            .chain(self.me)
-            .fold(0.0f64, f64::max);
-        let ymax = self
-            .points
-            .iter()
-            .map(|p| p.quantile)
-            .fold(0.0f64, f64::max);
-        let spec = AxesSpec {
-            x: (0.0, padded(0.0, xmax, 0.08).1),
-            y: (0.0, padded(0.0, ymax, 0.08).1),
-            x_label: "|effect|",
-            y_label: "half-normal quantile",
-            x_categories: None,
-            x_ticks: true,
-        };
-        let (frame, _) = chart::axes(ui, chart::fill_width(ui, height), &spec, pal);
-        let mut rank: Vec<usize> = (0..self.points.len()).collect();
-        rank.sort_by(|&a, &b| {
-            self.points[b]
-                .abs_effect
-                .partial_cmp(&self.points[a].abs_effect)
-                .unwrap_or(std::cmp::Ordering::Equal)
-        });
-        let labelled: Vec<bool> = {
-            let mut v = vec![false; self.points.len()];
-            for &i in rank.iter().take(LABELLED_LARGEST) {
-                v[i] = true;
-            }
-            v
-        };
-        if let Some(pse) = self.pse
-            && pse > 0.0
-        {
-            let a = frame.to_screen(0.0, 0.0);
-            let qy = spec.y.1.min(spec.x.1 / pse);
-            let b = frame.to_screen(pse * qy, qy);
-            ui.painter()
-                .with_clip_rect(frame.rect)
-                .line_segment([a, b], Stroke::new(1.0, pal.muted));
-        }
-        if let Some(me) = self.me
-            && me.is_finite()
-        {
-            let a = frame.to_screen(me, 0.0);
-            let b = frame.to_screen(me, spec.y.1);
-            chart::dashed(ui, a, b, Stroke::new(1.2, pal.ink));
-            ui.painter().text(
-                b + vec2(3.0, 2.0),
-                Align2::LEFT_TOP,
-                "ME",
-                FontId::proportional(12.0),
-                pal.ink,
-            );
-        }
-        let base_id = ui.scope_id().with("half_normal");
-        let mut clicked = None;
-        // Small effects first so the large ones are painted on top.
-        for &i in rank.iter().rev() {
-            let p = &self.points[i];
-            let c = frame.to_screen(p.abs_effect, p.quantile);
-            let hit = Rect::from_center_size(c, vec2(16.0, 16.0));
-            let resp = ui.interact(hit, base_id.with(i), Sense::click());
-            let name = format!("point {}", p.label);
-            resp.widget_info(|| WidgetInfo::selected(Role::Button, true, p.in_model, &name));
-            if resp.clicked() {
-                clicked = Some(i);
-            }
-            let hovered = resp.hovered();
-            resp.on_hover_text(format!(
-                "{}: |effect| {} ({}). Click to {} the model.",
-                p.label,
-                fmt_num(p.abs_effect, 4),
-                if p.positive { "positive" } else { "negative" },
-                if p.in_model {
-                    "remove it from"
-                } else {
-                    "add it to"
-                }
-            ));
-            let color = pal.signed(p.positive);
-            if p.in_model {
-                ui.painter()
-                    .circle_stroke(c, 9.0, Stroke::new(2.0, pal.in_model));
-            }
-            paint_marker(
-                ui,
-                c,
-                Marker::of_sign(p.positive),
-                if hovered { 6.5 } else { 5.0 },
-                color,
-                !p.in_model,
-            );
-            if labelled[i] || p.in_model || hovered {
-                ui.painter().text(
-                    c + vec2(-10.0, 0.0),
-                    Align2::RIGHT_CENTER,
-                    format!("{}{}", p.label, sign_label(p.positive)),
-                    FontId::proportional(13.0),
-                    if p.in_model { pal.ink } else { pal.muted },
-                );
-            }
-        }
-        clicked
-    }
-}
+use crate::theme::Palette;
 
 /// A main-effect plot: the mean response at each level of one factor.
 #[derive(Debug, Clone, PartialEq)]
@@ -370,11 +49,7 @@ impl MainEffectPlot {
                 x_ticks: false,
             };
             let (frame, _) = chart::axes(ui, size, &spec, pal);
-            let color = if self.in_model {
-                pal.in_model
-            } else {
-                pal.accent
-            };
+            let color = pal.model_colour(self.in_model);
             if let [Some(a), Some(b)] = self.means {
                 ui.painter().line_segment(
                     [frame.to_screen(-1.0, a), frame.to_screen(1.0, b)],
@@ -462,48 +137,37 @@ impl InteractionPlot {
             };
             let (frame, _) = chart::axes(ui, size, &spec, pal);
             let width = if self.in_model { 2.5 } else { 1.5 };
+            // One colour for both lines (the accent when the interaction is in the model, grey
+            // when not): the two levels are told apart by line style, marker and name.
+            let color = pal.model_colour(self.in_model);
             let letter = self.b_letter();
             let styles = [
-                (pal.low_line, Marker::Circle, "\u{2212}", "low"),
-                (pal.high_line, Marker::Square, "+", "high"),
+                (Marker::Circle, "\u{2212}", "low"),
+                (Marker::Square, "+", "high"),
             ];
-            for (j, (color, marker, sign, _)) in styles.iter().enumerate() {
+            for (j, (marker, _, _)) in styles.iter().enumerate() {
                 let [m0, m1] = self.means[j];
                 if let (Some(a), Some(b)) = (m0, m1) {
                     let pa = frame.to_screen(-1.0, a);
                     let pb = frame.to_screen(1.0, b);
-                    // Low level dashed, high level solid: told apart without colour.
                     if j == 0 {
-                        chart::dashed(ui, pa, pb, Stroke::new(width, *color));
+                        chart::dashed(ui, pa, pb, Stroke::new(width, color));
                     } else {
                         ui.painter()
-                            .line_segment([pa, pb], Stroke::new(width, *color));
+                            .line_segment([pa, pb], Stroke::new(width, color));
                     }
                 }
                 for (x, m) in [(-1.0, m0), (1.0, m1)] {
                     if let Some(m) = m {
-                        paint_marker(ui, frame.to_screen(x, m), *marker, 4.5, *color, false);
+                        paint_marker(ui, frame.to_screen(x, m), *marker, 4.5, color, false);
                     }
-                }
-                if let Some(m) = m1 {
-                    // Beyond the model's predictions when they are drawn right of the line end.
-                    let label_x = 1.0
-                        + self
-                            .predicted
-                            .map_or(0.0, |_| super::model_cells::RIGHT_REACH);
-                    ui.painter().text(
-                        frame.to_screen(label_x, m) + vec2(8.0, 0.0),
-                        Align2::LEFT_CENTER,
-                        format!("{letter}{sign}"),
-                        FontId::proportional(13.0),
-                        *color,
-                    );
                 }
             }
             if let Some(corners) = &self.predicted {
-                super::model_cells::paint(ui, &frame, corners, [pal.low_line, pal.high_line]);
+                super::model_cells::paint(ui, &frame, corners, [color, color]);
             }
-            for (j, (color, _, sign, word)) in styles.iter().enumerate() {
+            self.paint_line_names(ui, &frame, &letter, color);
+            for (j, (_, sign, word)) in styles.iter().enumerate() {
                 ui.label(
                     egui::RichText::new(format!(
                         "{} {letter}{sign} {} {word}: {}",
@@ -511,18 +175,57 @@ impl InteractionPlot {
                         self.b,
                         self.b_levels[j]
                     ))
-                    .color(*color)
+                    .color(pal.ink)
                     .size(12.5),
                 );
             }
         });
+    }
+
+    /// Names the two lines (`B−`, `B+`) right of their ends, beyond the model's predictions when
+    /// they are drawn; names of lines that end close together are moved apart, with a thin line
+    /// to the end they name.
+    fn paint_line_names(&self, ui: &Ui, frame: &chart::Frame, letter: &str, color: egui::Color32) {
+        let label_x = 1.0
+            + self
+                .predicted
+                .map_or(0.0, |_| super::model_cells::RIGHT_REACH);
+        let font = FontId::proportional(13.0);
+        let ends: Vec<(egui::Pos2, std::sync::Arc<egui::Galley>)> = [("\u{2212}", 0), ("+", 1)]
+            .into_iter()
+            .filter_map(|(sign, j)| {
+                let m = self.means[j][1]?;
+                let galley =
+                    ui.painter()
+                        .layout_no_wrap(format!("{letter}{sign}"), font.clone(), color);
+                Some((frame.to_screen(label_x, m), galley))
+            })
+            .collect();
+        let wishes: Vec<Vec<Rect>> = ends
+            .iter()
+            .map(|(at, g)| place::around(*at, g.size(), 5.0, Sides::Right, 3))
+            .collect();
+        let bounds = frame.rect.expand2(vec2(10.0, 0.0));
+        for ((at, galley), spot) in ends
+            .into_iter()
+            .zip(place::place(&wishes, &[], bounds, 1.0))
+        {
+            let Some(r) = spot else {
+                continue;
+            };
+            if place::is_displaced(r, at) {
+                ui.painter()
+                    .line_segment([at, place::leader_end(r, at)], Stroke::new(0.8, color));
+            }
+            ui.painter().galley(r.min, galley, color);
+        }
     }
 }
 
 fn title(ui: &mut Ui, text: &str, in_model: bool, pal: &Palette) {
     let text = if in_model {
         egui::RichText::new(format!("● {text}"))
-            .color(pal.in_model)
+            .color(pal.model_colour(true))
             .strong()
     } else {
         egui::RichText::new(text).color(pal.ink)

@@ -35,9 +35,12 @@ pub(super) fn grid(
         .column(Column::exact(40.0))
         .columns(Column::auto().at_least(60.0).clip(true), nf)
         .columns(Column::initial(110.0).at_least(80.0).clip(true), nr)
-        .column(Column::initial(190.0).at_least(110.0))
+        // Status: the choice box, and the reason beside it once a run is excluded.
+        .column(Column::initial(130.0).at_least(110.0))
         .column(Column::initial(160.0).at_least(60.0).clip(true))
-        .column(Column::remainder().at_least(90.0))
+        // Sized to its text rather than to what is left: at the default window size what is
+        // left is nothing, and the column was cut at the window's edge.
+        .column(Column::auto().at_least(90.0))
         .min_scrolled_height(200.0);
     if let Some(p) = scroll_to {
         table = table.scroll_to_row(p, Some(egui::Align::Center));
