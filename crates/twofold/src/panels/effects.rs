@@ -123,12 +123,9 @@ impl Pane for EffectsPane {
         let Self { built } = self;
         let pal = view.pal;
         let Some(res) = view.results else {
-            ui.heading("Effects");
             view.results_or_explain(ui);
             return;
         };
-        let name = view.response_name(res);
-        ui.heading(format!("Effects on {name}"));
         ui.label(
             RichText::new(format!(
                 "{} of {} runs have a value{}.",

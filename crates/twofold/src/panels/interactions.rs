@@ -126,12 +126,9 @@ impl Pane for PlotsPane {
         let Self { pairs, built } = self;
         let pal = view.pal;
         let Some(res) = view.results else {
-            ui.heading("Factor plots");
             view.results_or_explain(ui);
             return;
         };
-        let name = view.response_name(res);
-        ui.heading(format!("Factor plots for {name}"));
         if res.used_runs == 0 {
             not_available(ui, &pal, "Not available yet: no run has a value.");
             return;
