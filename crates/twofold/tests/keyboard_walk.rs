@@ -404,3 +404,23 @@ fn page_keys_walk_the_steps_in_order_and_stop_at_the_ends() {
     w.chord(Key::PageUp);
     assert_eq!(w.h.state().step(), Step::Factors, "the first stays");
 }
+
+#[test]
+fn the_keyboard_follows_a_step_whose_content_arrives_from_another_thread() {
+    // With the analysis on a worker thread the step first shows "Computing…", then its
+    // controls: the keyboard ends on the step's first decision, not on what was drawn first.
+    let mut app = TwofoldApp::new_for_test(twofold_study::project::demo_project());
+    app.set_background_compute(true);
+    let mut w = Walk::new(app);
+    w.chord(Key::Num4);
+    w.wait_until("the analysis", |w| {
+        w.h.query_by_label("Choose the effects beyond ME").is_some()
+    });
+    w.settle();
+    assert!(
+        w.h.get_by_label("Choose the effects beyond ME")
+            .is_focused(),
+        "focus is on {}",
+        w.focus()
+    );
+}

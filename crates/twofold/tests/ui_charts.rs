@@ -32,10 +32,15 @@ struct Stop {
 }
 
 /// Presses Tab from a window where nothing has the keyboard until the widget named `last` has
-/// it, and lists every stop on the way. A stop is in the pane when the pane's own area (the
-/// parent of its `heading`) is among its ancestors.
+/// it, and lists every stop on the way. A stop is in the pane when the step's area (the parent
+/// of the row that holds its `heading`) is among its ancestors.
 fn tab_until(h: &mut Harness<'static, TwofoldApp>, heading: &str, last: &str) -> Vec<Stop> {
-    let Some(pane) = h.get_by_label(heading).accesskit_node().parent() else {
+    let Some(pane) = h
+        .get_by_label(heading)
+        .accesskit_node()
+        .parent()
+        .and_then(|row| row.parent())
+    else {
         panic!("the heading {heading:?} sits in no pane");
     };
     let pane = pane.id();
@@ -74,7 +79,7 @@ fn tab_crosses_the_effects_pane_to_its_buttons_without_stopping_on_the_charts() 
     // The bars and points are drawn and answer the mouse.
     assert!(h.query_by_label_contains("effect A +").is_some());
     assert!(h.query_by_label("point C").is_some());
-    let stops = tab_until(&mut h, "Effects on Solvent rubs", "Clear the model");
+    let stops = tab_until(&mut h, "Which effects are real?", "Clear the model");
     let Some(first) = stops.iter().position(|s| s.in_pane) else {
         panic!("no stop inside the pane: {stops:?}");
     };
@@ -108,7 +113,7 @@ fn the_term_list_after_the_buttons_toggles_a_term_by_keyboard() {
         |h: &Harness<'static, TwofoldApp>| h.state().project().responses[0].model.terms.clone();
     assert_eq!(terms(&h), ["A", "B", "AB"]);
     // What a click on C's bar or point does, the keyboard does in the term list.
-    tab_until(&mut h, "Effects on Solvent rubs", "term C");
+    tab_until(&mut h, "Which effects are real?", "term C");
     h.key_press(egui::Key::Space);
     h.run();
     assert_eq!(terms(&h), ["A", "B", "C", "AB"]);

@@ -85,7 +85,7 @@ fn the_full_fold_over_button_adds_block_two_and_undo_takes_it_back() {
     let mut h = harness(TwofoldApp::new_for_test(before.clone()));
     h.state_mut().set_step(Step::NextRuns);
     h.run();
-    assert!(h.query_by_label("What to run next").is_some());
+    assert!(h.query_by_label("What to run next?").is_some());
     // The analysis of Yield finds A active, and A = BD = CE here: a fold is suggested.
     assert!(h.query_all_by_label("suggested").count() > 0);
     h.get_by_label(&label).click();

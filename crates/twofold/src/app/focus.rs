@@ -9,22 +9,30 @@
 //! take the keyboard), so a pane names its first control only when it is not the first drawn
 //! ([`crate::panels::widgets::prefer_first`]).
 
-use egui::{Context, Id, LayerId, Rect};
+use egui::{Context, Event, Id, LayerId, Rect};
 
 use crate::panels::widgets::take_preferred_first;
 
 /// What the window remembers between frames about the keyboard.
 #[derive(Debug, Default)]
 pub(super) struct FocusKeeper {
-    /// The step changed: give the keyboard to its first control once it is drawn (frames left
-    /// to find one: the first frame of a new grid only measures it, with nothing to focus).
-    to_content: u8,
+    /// Frames left in which the keyboard follows the step's first control while the step's
+    /// content arrives: the first frame of a new grid only measures it, and a search or an
+    /// analysis finishing on another thread adds controls above the first one drawn. Ends at
+    /// the engineer's first key, text or click, or when a pane gives a field the keyboard itself.
+    armed: u8,
+    /// The control the keeper gave the keyboard to while armed.
+    placed: Option<Id>,
 }
+
+/// Frames the keeper follows a step's content for (the engineer's first input ends it sooner).
+const FOLLOW_FRAMES: u8 = 60;
 
 impl FocusKeeper {
     /// The step (or the whole project) changed.
     pub(super) fn step_changed(&mut self) {
-        self.to_content = 3;
+        self.armed = FOLLOW_FRAMES;
+        self.placed = None;
     }
 
     /// Called once the step's content was drawn in `area` of `layer`, with no question shown.
@@ -39,20 +47,36 @@ impl FocusKeeper {
                     .is_some_and(|w| w.layer_id == layer && area.intersects(w.rect))
             })
         };
-        if self.to_content > 0 {
-            self.to_content -= 1;
-            if focused.is_some_and(in_content) {
-                self.to_content = 0;
+        if self.armed > 0 {
+            let engineer_acted = ctx.input(|i| {
+                i.events.iter().any(|e| {
+                    matches!(
+                        e,
+                        Event::Key { pressed: true, .. }
+                            | Event::Text(_)
+                            | Event::Paste(_)
+                            | Event::PointerButton { pressed: true, .. }
+                    )
+                })
+            });
+            // A pane gave one of its fields the keyboard (a name just added): leave it there.
+            let pane_chose = focused != self.placed && focused.is_some_and(in_content);
+            if engineer_acted || pane_chose {
+                self.armed = 0;
+                self.placed = None;
+            } else {
+                self.armed -= 1;
+                let preferred = preferred.filter(|id| {
+                    ctx.viewport(|v| v.this_pass.widgets.get(*id).is_some_and(|w| w.enabled))
+                });
+                if let Some(target) = preferred.or_else(|| first_control(ctx, layer, area))
+                    && focused != Some(target)
+                {
+                    ctx.memory_mut(|m| m.request_focus(target));
+                    self.placed = Some(target);
+                }
                 return;
             }
-            let preferred = preferred.filter(|id| {
-                ctx.viewport(|v| v.this_pass.widgets.get(*id).is_some_and(|w| w.enabled))
-            });
-            if let Some(first) = preferred.or_else(|| first_control(ctx, layer, area)) {
-                ctx.memory_mut(|m| m.request_focus(first));
-                self.to_content = 0;
-            }
-            return;
         }
         // A click on a control of the step keeps the keyboard there.
         let clicked = ctx.viewport(|v| v.interact_widgets.clicked);

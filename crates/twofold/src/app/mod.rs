@@ -544,18 +544,20 @@ impl TwofoldApp {
                         });
                     });
                     if view.results.is_none() {
-                        return ui.layer_id();
+                        // Nothing to focus yet: the step's controls come with its analysis.
+                        return None;
                     }
                 }
             }
             // The panes keep their own view state (drafts, scroll, searches); the project
             // changes only through the commands they return.
             panes.get(*step).ui(ui, &view, &mut cmds);
-            ui.layer_id()
+            Some(ui.layer_id())
         });
-        if self.modal.is_none() {
-            self.focus
-                .after_content(&ctx, content.inner, content.response.rect);
+        if let Some(layer) = content.inner
+            && self.modal.is_none()
+        {
+            self.focus.after_content(&ctx, layer, content.response.rect);
         }
         actions.extend(cmds.into_iter().map(AppAction::Command));
         for action in actions.drain(..) {
