@@ -543,10 +543,8 @@ impl TwofoldApp {
                             "Computing the analysis…"
                         });
                     });
-                    if view.results.is_none() {
-                        // Nothing to focus yet: the step's controls come with its analysis.
-                        return None;
-                    }
+                    // No analysis yet: nothing to draw or focus until it comes.
+                    view.results?;
                 }
             }
             // The panes keep their own view state (drafts, scroll, searches); the project
