@@ -180,6 +180,8 @@ fn profile_plot(ui: &mut Ui, pal: &Palette, bc: &BoxCox, now: f64, size: egui::V
         .height(size.y)
         .x_axis_label("λ (power of the response)")
         .y_axis_label("log-likelihood")
+        .x_grid_spacer(super::chart::nice_grid)
+        .y_grid_spacer(super::chart::nice_grid)
         .include_x(lo)
         .include_x(hi)
         .include_x(now)

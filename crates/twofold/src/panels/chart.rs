@@ -104,6 +104,25 @@ pub fn paint_marker(ui: &Ui, c: Pos2, marker: Marker, r: f32, color: Color32, ho
 
 pub use twofold_study::numbers::{fmt_num, nice_ticks, tick_label};
 
+/// Grid marks of the zoomable plots at the same round steps as the painted charts and the page
+/// (about five a side), so every mark carries a label: egui_plot's own spacer keeps to powers
+/// of ten and labels only some of them.
+pub fn nice_grid(input: egui_plot::GridInput) -> Vec<egui_plot::GridMark> {
+    let (lo, hi) = input.bounds;
+    let ticks = nice_ticks(lo, hi, 5);
+    let step = match ticks.as_slice() {
+        [a, b, ..] => b - a,
+        _ => (hi - lo).abs().max(f64::MIN_POSITIVE),
+    };
+    ticks
+        .into_iter()
+        .map(|value| egui_plot::GridMark {
+            value,
+            step_size: step,
+        })
+        .collect()
+}
+
 /// Data ranges and the screen rectangle of one plot; maps data to screen.
 #[derive(Debug, Clone, Copy)]
 pub struct Frame {

@@ -323,6 +323,8 @@ impl ResidualPlot {
                 .height(size.y)
                 .x_axis_label(x_label)
                 .y_axis_label(y_label)
+                .x_grid_spacer(super::chart::nice_grid)
+                .y_grid_spacer(super::chart::nice_grid)
                 .include_y(-ymag * 1.08)
                 .include_y(ymag * 1.08)
                 .show_background(false)
