@@ -424,3 +424,31 @@ fn the_keyboard_follows_a_step_whose_content_arrives_from_another_thread() {
         w.focus()
     );
 }
+
+#[test]
+fn a_name_field_that_takes_the_keyboard_is_replaced_by_what_is_typed() {
+    // Common practice, no source: like a number field, a name field selects its text when it
+    // takes the keyboard, so typing replaces the old name rather than joining it.
+    let mut p = Project::new("Names");
+    p.factors = vec![
+        twofold_study::project::Factor::numeric("Temperature", "°C", 160.0, 200.0),
+        twofold_study::project::Factor::numeric("Time", "min", 10.0, 20.0),
+    ];
+    let mut w = Walk::new(TwofoldApp::new_for_test(p));
+    w.chord(Key::Num2);
+    w.chord(Key::Num1);
+    assert!(
+        w.h.get_by_label("name of factor A").is_focused(),
+        "the step opens on the first name: {}",
+        w.focus()
+    );
+    w.data("Oven temperature");
+    w.key(Key::Tab);
+    w.key(Key::Tab);
+    w.key(Key::Tab);
+    w.data("K");
+    w.key(Key::Tab);
+    let f = &w.project().factors;
+    assert_eq!(f[0].name, "Oven temperature");
+    assert_eq!(f[0].unit, "K", "the unit reached by Tab was replaced too");
+}

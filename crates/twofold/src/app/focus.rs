@@ -11,7 +11,7 @@
 
 use egui::{Context, Event, Id, LayerId, Rect};
 
-use crate::panels::widgets::take_preferred_first;
+use crate::panels::widgets::{give_keyboard, take_preferred_first};
 
 /// What the window remembers between frames about the keyboard.
 #[derive(Debug, Default)]
@@ -72,7 +72,7 @@ impl FocusKeeper {
                 if let Some(target) = preferred.or_else(|| first_control(ctx, layer, area))
                     && focused != Some(target)
                 {
-                    ctx.memory_mut(|m| m.request_focus(target));
+                    give_keyboard(ctx, target);
                     self.placed = Some(target);
                 }
                 return;

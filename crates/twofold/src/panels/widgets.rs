@@ -13,7 +13,10 @@ use twofold_study::project::{Cell, CellValue};
 /// in one place.
 pub fn text_field(ui: &mut Ui, id: Id, current: &str, width: f32, hint: &str) -> Option<String> {
     let mut text = current.to_string();
-    let resp = ui.add(
+    // Like a number field, a name selects its whole text when it takes the keyboard: typing
+    // replaces it, and nothing typed joins the old text unseen.
+    let resp = number_edit(
+        ui,
         TextEdit::singleline(&mut text)
             .id(id)
             .desired_width(width)
@@ -60,6 +63,17 @@ pub fn focus_all_selected(ui: &mut Ui, id: Id, text: &str) -> bool {
     true
 }
 
+/// Key under a field's id that asks [`number_edit`] to select the field's text when drawn.
+const SELECT_ALL: &str = "select all when drawn";
+
+/// Gives the control `id` the keyboard from outside its pane (the window's focus keeper, after
+/// the field was drawn in this frame) and, when it is a one-line field, selects its text the next
+/// time it is drawn: a focus given this late does not show as "gained" in the next frame.
+pub fn give_keyboard(ctx: &egui::Context, id: Id) {
+    ctx.memory_mut(|m| m.request_focus(id));
+    ctx.data_mut(|d| d.insert_temp(id.with(SELECT_ALL), true));
+}
+
 /// A small button for the mouse only: Tab passes it by. For actions the keyboard reaches another
 /// way (removing and moving rows, undo), so a row of fields is not interrupted by three stops.
 pub fn mouse_button(text: &str) -> egui::Button<'_> {
@@ -71,17 +85,18 @@ pub fn left_with_enter(ui: &Ui, response: &egui::Response) -> bool {
     response.lost_focus() && ui.input(|i| i.key_pressed(egui::Key::Enter))
 }
 
-/// Shows a one-line field that holds a number, and selects its whole content whenever it takes
-/// the keyboard (Tab, a click, or a focus request), so what is typed replaces the old number
-/// instead of joining it: "200" typed over "1" must not read as 1200.
+/// Shows a one-line field and selects its whole content whenever it takes the keyboard (Tab, a
+/// click, or a focus request), so what is typed replaces the old content instead of joining it:
+/// "200" typed over "1" must not read as 1200.
 ///
-/// Every numeric text field of the window goes through here (factor levels and safe range, run
-/// sheet values, prediction target); the design's counts are egui drag values, which select their
-/// text on focus by themselves.
+/// Every one-line field of the window goes through here (names and units by [`text_field`];
+/// factor levels and safe range, run sheet values, prediction target as numbers); the design's
+/// counts are egui drag values, which select their text on focus by themselves.
 pub fn number_edit(ui: &mut Ui, edit: TextEdit<'_>) -> egui::Response {
     let mut output = edit.show(ui);
     let response = output.response.response;
-    if response.gained_focus() {
+    let asked = ui.data_mut(|d| d.remove_temp::<bool>(response.id.with(SELECT_ALL)));
+    if response.gained_focus() || (asked == Some(true) && response.has_focus()) {
         let all = CCursorRange::select_all_str(output.galley.text());
         output.state.cursor.set_char_range(Some(all));
         output.state.store(ui.ctx(), response.id);
