@@ -254,13 +254,7 @@ fn effects(svg: &mut Svg, flow: &mut Flow, part: Part, more: &mut More) {
         None => "Lenth's limits are not available for these effects (too few, or all equal)."
             .to_string(),
     };
-    let biggest = section
-        .effects
-        .iter()
-        .map(|r| r.effect.abs())
-        .filter(|v| v.is_finite())
-        .fold(0.0, f64::max);
-    let decimals = numbers::column_decimals(biggest, 4);
+    let decimals = effect_decimals(section);
     let width = flow.w;
     let lines = |text: &str| wrap(text, small, width).len();
     let notes = lines(&lenth_text) + lines(SIGN_LEGEND);
@@ -331,15 +325,20 @@ fn smaller_effects(rows: &[EffectRow], decimals: usize) -> String {
     format!("Smaller effects: {}.", items.join(", "))
 }
 
-/// All effects of a response as a table for the pages of more detail.
-fn every_effect(section: &crate::export::input::ResponseSummary) -> Item {
+/// Decimals of the effect column: one rule for the page's table and the table of every effect.
+fn effect_decimals(section: &crate::export::input::ResponseSummary) -> usize {
     let biggest = section
         .effects
         .iter()
         .map(|r| r.effect.abs())
         .filter(|v| v.is_finite())
         .fold(0.0, f64::max);
-    let decimals = numbers::column_decimals(biggest, 4);
+    numbers::column_decimals(biggest, 4)
+}
+
+/// All effects of a response as a table for the pages of more detail.
+fn every_effect(section: &crate::export::input::ResponseSummary) -> Item {
+    let decimals = effect_decimals(section);
     let rows = section
         .effects
         .iter()
