@@ -23,5 +23,7 @@ mod min_aberration;
 mod one_report;
 /// Text read back from exported PDF files (used by `cli_export`).
 mod pdf_read;
+/// Power and the smallest detectable effect against scipy's noncentral t.
+mod power_fixtures;
 /// Coefficients, sums of squares, PRESS, leverage and Cook's distance against statsmodels fixtures.
 mod statsmodels_fixtures;

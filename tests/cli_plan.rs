@@ -347,3 +347,74 @@ fn the_windows_fold_over_runs_are_the_runs_plan_prints() {
         }
     }
 }
+
+#[test]
+fn power_of_a_plan_agrees_with_scipy_and_needs_sigma() {
+    // A 2^(8-4) with the main-effects model leaves 16 - 1 - 8 = 7 error df. With σ = 1 the
+    // smallest effect found with power 0.8 at α = 0.05 is 1.634879920193766 by scipy's
+    // noncentral t (fixtures/make_power_fixtures.py, first power case); σ = 2 doubles it.
+    let j = plan_json(&[
+        "--factors",
+        "8",
+        "--runs",
+        "16",
+        "--seed",
+        "1",
+        "--sigma",
+        "2",
+        "--effect",
+        "3",
+    ]);
+    let p = &j["power"];
+    assert_eq!(p["sigma"], 2.0);
+    assert_eq!(p["alpha"], 0.05);
+    assert_eq!(p["power"], 0.8);
+    assert_eq!(p["error_df"], 7);
+    let d = p["detectable_effect"].as_f64().unwrap();
+    assert!((d - 2.0 * 1.634_879_920_193_766).abs() < 1e-6, "{d}");
+    // An effect of 3 (< 3.27) needs more than one replicate; the count given is the first that
+    // reaches the power (checked with the core's power at r - 1 and r).
+    let r = p["replicates_needed"].as_u64().unwrap() as usize;
+    let spec = |r: usize| twofold_core::power::PowerSpec {
+        sigma: 2.0,
+        alpha: 0.05,
+        runs: 16 * r,
+        error_df: twofold_core::power::main_effects_error_df(16 * r, 8, 1),
+    };
+    assert!(r >= 2);
+    assert!(spec(r).power(3.0).unwrap() >= 0.8);
+    assert!(spec(r - 1).power(3.0).unwrap() < 0.8);
+    // Without --effect the count is null; without --sigma there is no power at all.
+    let j = plan_json(&[
+        "--factors",
+        "8",
+        "--runs",
+        "16",
+        "--seed",
+        "1",
+        "--sigma",
+        "2",
+    ]);
+    assert!(j["power"]["replicates_needed"].is_null());
+    let j = plan_json(&["--factors", "8", "--runs", "16", "--seed", "1"]);
+    assert!(j["power"].is_null());
+    for bad in [
+        vec!["plan", "--factors", "8", "--runs", "16", "--alpha", "0.1"],
+        vec!["plan", "--factors", "8", "--runs", "16", "--sigma", "-1"],
+        vec![
+            "plan",
+            "--factors",
+            "8",
+            "--runs",
+            "16",
+            "--sigma",
+            "1",
+            "--power",
+            "1.5",
+        ],
+    ] {
+        let (code, _, err) = run(&bad);
+        assert_eq!(code, 2, "{bad:?}");
+        assert_eq!(err.lines().count(), 1, "{err}");
+    }
+}

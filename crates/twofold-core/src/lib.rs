@@ -18,6 +18,7 @@ pub mod design;
 pub mod foldover;
 pub mod ofat;
 pub mod plan;
+pub mod power;
 pub mod search;
 
 // Analysis.

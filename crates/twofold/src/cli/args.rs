@@ -82,7 +82,7 @@ pub fn command_names() -> Vec<String> {
 #[derive(Debug)]
 pub enum Reading {
     /// A command to run.
-    Run(Command),
+    Run(Box<Command>),
     /// Text the user asked for (`--help`, `--version`, `help plan`): print it, exit 0.
     Asked(String),
     /// The command line is malformed: a message for standard error, exit 2. It is one line
@@ -94,7 +94,7 @@ pub enum Reading {
 pub fn read(args: &[String]) -> Reading {
     let argv = std::iter::once("twofold".to_string()).chain(args.iter().cloned());
     match Cli::try_parse_from(argv) {
-        Ok(cli) => Reading::Run(cli.command),
+        Ok(cli) => Reading::Run(Box::new(cli.command)),
         Err(e) => match e.kind() {
             ErrorKind::DisplayHelp | ErrorKind::DisplayVersion => {
                 Reading::Asked(e.render().to_string())

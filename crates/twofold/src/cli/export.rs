@@ -383,9 +383,12 @@ mod tests {
             .map(str::to_string)
             .collect();
         match crate::cli::args::read(&full) {
-            crate::cli::args::Reading::Run(crate::cli::args::Command::Export(a)) => {
-                parse_request(&a).map_err(|e| e.to_string())
-            }
+            crate::cli::args::Reading::Run(command) => match *command {
+                crate::cli::args::Command::Export(a) => {
+                    parse_request(&a).map_err(|e| e.to_string())
+                }
+                other => Err(format!("{other:?}")),
+            },
             other => Err(format!("{other:?}")),
         }
     }

@@ -13,6 +13,7 @@ pub mod analyze;
 pub mod args;
 pub mod export;
 pub mod plan;
+mod plan_power;
 
 /// Exit code for bad input.
 pub const EXIT_BAD_INPUT: i32 = 2;
@@ -56,7 +57,7 @@ fn reads_as_project(arg: &str) -> bool {
 /// Runs a command line (the arguments after the program name; `args[0]` is the subcommand).
 pub fn run(args: &[String], out: &mut dyn Write, err: &mut dyn Write) -> i32 {
     match args::read(args) {
-        args::Reading::Run(command) => match command {
+        args::Reading::Run(command) => match *command {
             args::Command::Plan(a) => plan::run(&a, out, err),
             args::Command::Analyze(a) => match a.into_args() {
                 Ok(a) => analyze::run(a, out, err),

@@ -16,6 +16,8 @@ use twofold_core::alias::{AliasReport, alias_report, chain_label, relation_label
 use twofold_core::design::{FractionalDesign, check_run_count};
 use twofold_core::foldover::{FoldKind, FoldOver, fold_over};
 use twofold_core::ofat;
+
+use super::plan_power::{PlanPower, plan_power};
 use twofold_core::plan::{Blocking, Plan, PlanSpec, build_fold_over_plan, build_plan};
 use twofold_core::search::{SearchBudget, minimum_aberration};
 use twofold_core::term::{LETTERS, MAX_FACTORS, Term, factor_index};
@@ -75,6 +77,18 @@ pub struct PlanArgs {
     /// Time allowed for the design search, in seconds (more than 0, at most 3600) [default: 2]
     #[arg(long = "search-seconds", value_name = "S")]
     pub search_seconds: Option<String>,
+    /// Process standard deviation, in the response's units: adds the design's power
+    #[arg(long, value_name = "S", allow_hyphen_values = true)]
+    pub sigma: Option<String>,
+    /// Level of the two-sided test of an effect (with --sigma) [default: 0.05]
+    #[arg(long, value_name = "A", allow_hyphen_values = true)]
+    pub alpha: Option<String>,
+    /// Probability of finding the effect (with --sigma) [default: 0.8]
+    #[arg(long, value_name = "P", allow_hyphen_values = true)]
+    pub power: Option<String>,
+    /// An effect size to find: adds the replicates it needs (with --sigma)
+    #[arg(long, value_name = "D", allow_hyphen_values = true)]
+    pub effect: Option<String>,
     /// Print the plan as one JSON object
     #[arg(long)]
     pub json: bool,
@@ -103,6 +117,7 @@ struct Planned {
     fold: Option<FoldOver>,
     centre_points: usize,
     replicates: usize,
+    power: Option<PlanPower>,
 }
 
 /// Runs `twofold plan`.
@@ -225,6 +240,7 @@ fn compute(a: &PlanArgs) -> Result<Planned, PlanInputError> {
         Some(f) => f.combined_aliases.clone(),
     };
     let design = plan.design.clone();
+    let power = plan_power(a, &plan, k, replicates).map_err(invalid)?;
     Ok(Planned {
         names,
         design,
@@ -235,6 +251,7 @@ fn compute(a: &PlanArgs) -> Result<Planned, PlanInputError> {
         fold,
         centre_points,
         replicates,
+        power,
     })
 }
 
@@ -363,6 +380,7 @@ fn to_json(p: &Planned) -> Value {
         "seed": p.seed,
         "ofat_equivalent_runs": ofat::equivalent_runs(k, p.design.base_runs()),
         "fold_over": fold,
+        "power": p.power.as_ref().map(PlanPower::json),
         "runs": runs,
     })
 }
@@ -494,6 +512,9 @@ fn write_text(p: &Planned, out: &mut dyn Write) -> std::io::Result<()> {
         "One factor at a time would need {} runs for the same precision.",
         ofat::equivalent_runs(k, p.design.base_runs())
     )?;
+    if let Some(power) = &p.power {
+        writeln!(out, "{}", power.text())?;
+    }
     writeln!(out, "Seed: {}", p.seed)?;
     writeln!(out)?;
     write!(out, "{:>4} {:>4} {:>5}", "run", "std", "block")?;

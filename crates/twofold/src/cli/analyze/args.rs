@@ -147,7 +147,10 @@ mod tests {
             .map(str::to_string)
             .collect();
         match read(&full) {
-            Reading::Run(Command::Analyze(a)) => a.into_args(),
+            Reading::Run(command) => match *command {
+                Command::Analyze(a) => a.into_args(),
+                other => Err(format!("{other:?}")),
+            },
             Reading::Refused(message) => Err(message),
             other => Err(format!("{other:?}")),
         }
