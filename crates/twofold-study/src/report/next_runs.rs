@@ -171,12 +171,7 @@ fn fold_words(now: &AliasReport, fold: &FoldOver) -> Vec<String> {
             fold.combined.base_runs()
         )
     });
-    let freed_main: Vec<Term> = after
-        .clear_main_effects
-        .iter()
-        .copied()
-        .filter(|t| !now.clear_main_effects.contains(t))
-        .collect();
+    let freed_main = gained(&after.clear_main_effects, &now.clear_main_effects);
     if !freed_main.is_empty() {
         out.push(format!(
             "Frees main effect{} {} from two-factor interactions.",
@@ -184,12 +179,10 @@ fn fold_words(now: &AliasReport, fold: &FoldOver) -> Vec<String> {
             join(&freed_main, ", ")
         ));
     }
-    let freed_2fi: Vec<Term> = after
-        .clear_two_factor_interactions
-        .iter()
-        .copied()
-        .filter(|t| !now.clear_two_factor_interactions.contains(t))
-        .collect();
+    let freed_2fi = gained(
+        &after.clear_two_factor_interactions,
+        &now.clear_two_factor_interactions,
+    );
     if !freed_2fi.is_empty() {
         out.push(format!(
             "Frees two-factor interaction{} {}.",
@@ -404,6 +397,11 @@ pub fn next_runs(project: &Project, report: Option<&Report>) -> Vec<NextRun> {
     // Suggested first, otherwise in the order above (stable).
     list.sort_by_key(|n| !n.suggested);
     list
+}
+
+/// The terms of `after` that are not in `now` (effects a follow-up makes clear).
+fn gained(after: &[Term], now: &[Term]) -> Vec<Term> {
+    after.iter().copied().filter(|t| !now.contains(t)).collect()
 }
 
 #[cfg(test)]
