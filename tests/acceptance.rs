@@ -15,6 +15,8 @@ mod cli_export;
 mod cli_plan;
 /// Published fractional designs: generators, defining relations, resolution, word-length patterns.
 mod design_tables;
+/// Desirability: Derringer & Suich's worked example and scipy's optimiser on the same problems.
+mod desirability_fixtures;
 /// Published worked examples: effects, Lenth's method, half-normal positions.
 mod effects_examples;
 /// Published minimum-aberration word-length patterns reproduced by the search.

@@ -2,7 +2,8 @@
 //!
 //! The mathematics of two-level factorial experiments: design generation, aliasing,
 //! minimum-aberration search, blocking, run order, fold-over, effect estimation, half-normal
-//! ranking, Lenth's method, model fitting with ANOVA, diagnostics and prediction.
+//! ranking, Lenth's method, model fitting with ANOVA, diagnostics, prediction, power, and the
+//! choice of settings for several responses and noise factors (desirability, transmitted spread).
 //!
 //! This crate does no I/O and knows nothing of windows or files: callers hand it numbers and get
 //! numbers back. Every formula names its published source in the documentation of the item that
@@ -33,6 +34,12 @@ pub mod lenth;
 pub mod means;
 pub mod predict;
 pub mod transform;
+
+// Deciding.
+pub mod decision;
+pub mod desirability;
+pub mod optimise;
+pub mod robust;
 
 pub use term::{SignedTerm, Term};
 
