@@ -56,6 +56,16 @@ mod tests {
         // main effects and their interaction; the four main effects for gloss.
         p.responses[0].model.terms = ["A", "B", "AB"].map(String::from).to_vec();
         p.responses[1].model.terms = ["A", "B", "C", "D"].map(String::from).to_vec();
+        let maximise = |low, high| crate::project::ResponseGoal {
+            aim: crate::project::GoalAim::Maximise {
+                low,
+                high,
+                shape: 1.0,
+            },
+            importance: 1.0,
+        };
+        p.responses[0].goal = maximise(50.0, 80.0);
+        p.responses[1].goal = maximise(80.0, 90.0);
         p.design = DesignSettings {
             centre_points_per_block: 2,
             seed: 20_250_304,

@@ -13,6 +13,7 @@
 
 use super::cell::Cell;
 use super::follow_up::{FollowUp, FollowUpError};
+use super::goals::{PowerSettings, ResponseGoal};
 use super::model::{
     DesignSettings, Factor, FactorKind, MAX_FACTORS, Project, ResponseDef, ResponseTransform,
     RunStatus,
@@ -157,6 +158,26 @@ pub enum Edit {
         /// New transform.
         transform: ResponseTransform,
     },
+    /// Set what a response (or, with `spread`, its transmitted spread) should do when settings
+    /// are chosen.
+    SetGoal {
+        /// Response position.
+        response: usize,
+        /// The goal of the spread rather than of the mean.
+        spread: bool,
+        /// New goal.
+        goal: ResponseGoal,
+    },
+    /// Mark a factor as noise with its standard deviation in use (coded units), or as a control
+    /// factor with `None`.
+    SetNoise {
+        /// Factor position.
+        index: usize,
+        /// σ in coded units, or `None`.
+        sd: Option<f64>,
+    },
+    /// Set what the power of a design rests on.
+    SetPower(PowerSettings),
 }
 
 /// Why an edit could not be applied. The project is unchanged when `apply` returns an error.
@@ -358,6 +379,20 @@ impl Project {
                 response,
                 transform,
             } => self.response_mut(response)?.model.transform = transform,
+            Edit::SetGoal {
+                response,
+                spread,
+                goal,
+            } => {
+                let def = self.response_mut(response)?;
+                if spread {
+                    def.spread_goal = goal;
+                } else {
+                    def.goal = goal;
+                }
+            }
+            Edit::SetNoise { index, sd } => self.factor_mut(index)?.noise_sd = sd,
+            Edit::SetPower(settings) => self.power = settings,
         }
         Ok(())
     }
@@ -484,9 +519,12 @@ mod tests {
             Edit::SetHierarchical { .. } => 20,
             Edit::SetTransform { .. } => 21,
             Edit::AddFollowUp(_) => 22,
+            Edit::SetGoal { .. } => 23,
+            Edit::SetNoise { .. } => 24,
+            Edit::SetPower(_) => 25,
         }
     }
-    const KINDS: usize = 23;
+    const KINDS: usize = 26;
 
     #[test]
     fn every_edit_kind_changes_and_undoes_and_redoes() {
@@ -612,6 +650,35 @@ mod tests {
                     response: 0,
                     transform: ResponseTransform::Ln,
                 },
+            ),
+            (
+                planned(),
+                Edit::SetGoal {
+                    response: 0,
+                    spread: false,
+                    goal: ResponseGoal {
+                        aim: crate::project::GoalAim::Maximise {
+                            low: 80.0,
+                            high: 95.0,
+                            shape: 1.0,
+                        },
+                        importance: 1.0,
+                    },
+                },
+            ),
+            (
+                planned(),
+                Edit::SetNoise {
+                    index: 1,
+                    sd: Some(0.5),
+                },
+            ),
+            (
+                planned(),
+                Edit::SetPower(PowerSettings {
+                    sigma: Some(1.5),
+                    ..PowerSettings::default()
+                }),
             ),
         ];
         let mut seen = [false; KINDS];

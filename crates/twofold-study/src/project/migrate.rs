@@ -101,6 +101,7 @@ pub(crate) fn from_v0(text: &str) -> Result<Project, FileError> {
                 },
             },
             safe_range: None,
+            noise_sd: None,
         })
         .collect();
     let runs = old
@@ -136,6 +137,7 @@ pub(crate) fn from_v0(text: &str) -> Result<Project, FileError> {
         name: old.name,
         description: String::new(),
         factors,
+        power: Default::default(),
         design: DesignSettings {
             generators: old.generators,
             centre_points_per_block: old.centre_points,

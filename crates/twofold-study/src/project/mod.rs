@@ -10,12 +10,14 @@
 //! - [`recovery`]: recovery copies a second after each edit, offered on start.
 //! - [`recent`], [`places`]: the recent-files list and the per-user folders.
 //! - [`regenerate`]: the run sheet from the design, keeping typed values that survive.
+//! - [`goals`]: goals of the responses, noise factors' spread, power settings.
 //! - [`follow_up`]: follow-up runs (fold-over, centre points, a replicate) added as one edit.
 
 pub mod cell;
 pub mod demo;
 pub mod edit;
 pub mod follow_up;
+pub mod goals;
 pub mod history;
 pub mod io;
 pub mod migrate;
@@ -30,6 +32,7 @@ pub use cell::{Cell, CellValue};
 pub use demo::demo_project;
 pub use edit::{Edit, EditError};
 pub use follow_up::{CENTRE_POINTS_ADDED, FollowUp, FollowUpError, FollowUpPreview, pure_error_df};
+pub use goals::{GoalAim, PowerSettings, ResponseGoal};
 pub use history::History;
 pub use io::{FileError, load_project, project_from_str, project_to_string, save_project};
 pub use model::{
@@ -53,6 +56,7 @@ impl Project {
             responses: Vec::new(),
             runs: Vec::new(),
             runs_outdated: false,
+            power: PowerSettings::default(),
         }
     }
 }

@@ -7,6 +7,7 @@
 use serde::{Deserialize, Serialize};
 
 use super::cell::Cell;
+use super::goals::{PowerSettings, ResponseGoal};
 
 /// Version of the project file format written by this build. Older versions are migrated on load
 /// (see [`super::migrate`]); newer ones are refused with a clear message.
@@ -46,6 +47,9 @@ pub struct Project {
     /// sheet no longer follows from them; cleared by regenerating the runs.
     #[serde(default)]
     pub runs_outdated: bool,
+    /// What the power of a design rests on (process σ, α, power, an effect size).
+    #[serde(default, skip_serializing_if = "PowerSettings::is_default")]
+    pub power: PowerSettings,
 }
 
 /// One factor: a name, a unit and its two levels.
@@ -62,6 +66,11 @@ pub struct Factor {
     /// outside it is a warning, never an error: the engineer may have good reason.
     #[serde(default)]
     pub safe_range: Option<(f64, f64)>,
+    /// `Some(σ)` for a noise factor: varied in the study but not controlled in use, where it
+    /// varies about its centre with standard deviation σ in coded units (1 = half the tested
+    /// range). `None` for a control factor.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub noise_sd: Option<f64>,
 }
 
 /// Whether a factor has numeric levels (and so a centre) or two named settings.
@@ -100,6 +109,7 @@ impl Factor {
             unit: unit.to_string(),
             kind: FactorKind::Numeric { low, high },
             safe_range: None,
+            noise_sd: None,
         }
     }
 
@@ -113,6 +123,7 @@ impl Factor {
                 high_label: high_label.to_string(),
             },
             safe_range: None,
+            noise_sd: None,
         }
     }
 
@@ -235,6 +246,12 @@ pub struct ResponseDef {
     /// Model terms, hierarchy and transform chosen for this response.
     #[serde(default)]
     pub model: ModelSettings,
+    /// What the response should do when settings are chosen.
+    #[serde(default, skip_serializing_if = "ResponseGoal::is_ignored")]
+    pub goal: ResponseGoal,
+    /// What the spread transmitted by the noise factors should do.
+    #[serde(default, skip_serializing_if = "ResponseGoal::is_ignored")]
+    pub spread_goal: ResponseGoal,
 }
 
 impl ResponseDef {
@@ -244,6 +261,8 @@ impl ResponseDef {
             name: name.to_string(),
             unit: unit.to_string(),
             model: ModelSettings::default(),
+            goal: ResponseGoal::default(),
+            spread_goal: ResponseGoal::default(),
         }
     }
 }

@@ -11,6 +11,8 @@
 //! - `build`: [`Report::build`], the counts, corner means and warnings in words;
 //! - `cache`: [`ReportCache`], a few reports keyed on (revision, response, model settings);
 //! - `json`, `text`: the renderers of `twofold analyze`;
+//! - `decision`: which settings to run for every response's goal at once, noise factors held
+//!   in check ([`decide`]);
 //! - `next_runs`: the follow-up runs a project can add, and the one the report points to.
 //!
 //! # What a report holds
@@ -32,6 +34,7 @@ mod build;
 mod cache;
 mod choice;
 mod data;
+pub mod decision;
 pub mod json;
 pub mod next_runs;
 pub mod text;
@@ -61,6 +64,7 @@ pub use data::{
     ResponseData, core_transform, natural_ranges, plot_ranges, project_from_coded,
     project_transform, response_data,
 };
+pub use decision::{Choice, DecideOptions, Decision, ResponseOutcome, Setting, decide};
 pub use next_runs::{NextRun, next_runs};
 
 /// Why (part of) a report could not be made.
