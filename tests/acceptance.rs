@@ -9,6 +9,8 @@ mod anova_examples;
 mod blocking_tables;
 /// The headless `analyze` command.
 mod cli_analyze;
+/// The headless `best` command: keys, a hand-derived robust setting, one-line errors.
+mod cli_best;
 /// The headless `export` command and interchange formats.
 mod cli_export;
 /// The headless `plan` command.

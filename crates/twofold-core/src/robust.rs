@@ -72,7 +72,9 @@ impl Surface {
                     .map(|f| setting(x, f))
                     .product::<f64>()
             })
-            .sum()
+            .sum::<f64>()
+            // No negative zero in the output.
+            + 0.0
     }
 
     /// The spread transmitted by the noise factors, `√(Σ_j (σ_zj · ∂y/∂z_j)²)` at `x` (see the

@@ -35,6 +35,7 @@ mod cache;
 mod choice;
 mod data;
 pub mod decision;
+pub mod decision_out;
 pub mod json;
 pub mod next_runs;
 pub mod text;

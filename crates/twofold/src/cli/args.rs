@@ -28,6 +28,7 @@ Exit codes: 0 done, 1 failure while working (e.g. a file could not be written), 
 Examples:
   twofold plan --factors 5 --runs 16
   twofold analyze --csv results.csv --json
+  twofold best project.ron --json
   twofold export project.ron --out summary.pdf";
 
 /// The whole command line after the program name.
@@ -61,6 +62,9 @@ pub enum Command {
         after_help = super::analyze::AFTER_HELP
     )]
     Analyze(AnalyzeCommand),
+    /// The settings that satisfy every response's goal at once, noise factors held in check.
+    #[command(long_about = super::best::LONG_ABOUT, after_help = super::best::AFTER_HELP)]
+    Best(super::best::BestArgs),
     /// Write the summary (a page per response), the blank run sheet or the run sheet as CSV.
     #[command(long_about = super::export::LONG_ABOUT)]
     Export(ExportArgs),
@@ -134,7 +138,7 @@ fn one_line(e: &clap::Error, args: &[String]) -> String {
         }
         ErrorKind::InvalidSubcommand => {
             let arg = context(ContextKind::InvalidSubcommand).unwrap_or_default();
-            format!("unknown command `{arg}` (the commands are plan, analyze and export)")
+            format!("unknown command `{arg}` (the commands are plan, analyze, best and export)")
         }
         _ => first_sentence(&e.render().to_string()),
     };

@@ -11,6 +11,7 @@ use std::path::{Path, PathBuf};
 
 pub mod analyze;
 pub mod args;
+pub mod best;
 pub mod export;
 pub mod plan;
 mod plan_power;
@@ -66,6 +67,7 @@ pub fn run(args: &[String], out: &mut dyn Write, err: &mut dyn Write) -> i32 {
                     EXIT_BAD_INPUT
                 }
             },
+            args::Command::Best(a) => best::run(&a, out, err),
             args::Command::Export(a) => export::run(&a, out, err),
         },
         args::Reading::Asked(text) => match out.write_all(text.as_bytes()) {
