@@ -14,11 +14,13 @@
 //! - `files`: the one atomic file writer.
 //! - `jobs`: work on a background thread with progress, cancel and panics caught.
 //! - `numbers`: one rule for writing numbers and choosing axis ticks.
+//! - `planning`: power and the smallest detectable effect of a design before the first run.
 
 pub mod export;
 pub mod files;
 pub mod interchange;
 pub mod jobs;
 pub mod numbers;
+pub mod planning;
 pub mod project;
 pub mod report;

@@ -7,7 +7,7 @@ use std::sync::{Arc, Mutex};
 use twofold_study::export::{BuildOptions, ExportJob};
 use twofold_study::jobs::{Control, Job};
 use twofold_study::project::Project;
-use twofold_study::report::{Report, ReportCache};
+use twofold_study::report::{DecideOptions, Decision, Report, ReportCache, decide};
 
 use super::{Modal, TwofoldApp};
 
@@ -93,6 +93,68 @@ impl AnalysisSlot {
                 move || repaint.request_repaint(),
             );
             self.pending = Some((want, job));
+        }
+        ctx.request_repaint_after(std::time::Duration::from_millis(200));
+        false
+    }
+}
+
+/// The answer of "Which settings to run?" for every response's goal, computed once per revision
+/// while that step shows: every response's report from the shared cache, then the one decision.
+/// On a worker thread in the window, in the frame in tests, as for [`AnalysisSlot`].
+#[derive(Default)]
+pub(super) struct DecisionSlot {
+    pub(super) decision: Option<(u64, Arc<Decision>)>,
+    pending: Option<(u64, Job<Arc<Decision>>)>,
+}
+
+fn decide_all(cache: &Mutex<ReportCache>, project: &Project, revision: u64) -> Arc<Decision> {
+    let reports: Vec<Arc<Report>> = (0..project.responses.len())
+        .map(|response| cached_results(cache, project, revision, response))
+        .collect();
+    let refs: Vec<&Report> = reports.iter().map(AsRef::as_ref).collect();
+    Arc::new(decide(project, &refs, &DecideOptions::default()))
+}
+
+impl DecisionSlot {
+    /// Makes sure the decision at `revision` is done or under way; returns whether the shown one
+    /// is current.
+    pub(super) fn ensure(
+        &mut self,
+        project: &Project,
+        revision: u64,
+        cache: &Arc<Mutex<ReportCache>>,
+        inline: bool,
+        ctx: &egui::Context,
+    ) -> bool {
+        if self.decision.as_ref().is_some_and(|(r, _)| *r == revision) {
+            return true;
+        }
+        if inline {
+            self.decision = Some((revision, decide_all(cache, project, revision)));
+            return true;
+        }
+        if let Some((rev, job)) = &mut self.pending
+            && let Some(result) = job.poll()
+        {
+            if let Ok(d) = result {
+                self.decision = Some((*rev, d));
+            }
+            self.pending = None;
+        }
+        if self.decision.as_ref().is_some_and(|(r, _)| *r == revision) {
+            return true;
+        }
+        if self.pending.is_none() {
+            let project = project.clone();
+            let repaint = ctx.clone();
+            let cache = Arc::clone(cache);
+            let job = Job::start(
+                "settings",
+                move |_: &Control| decide_all(&cache, &project, revision),
+                move || repaint.request_repaint(),
+            );
+            self.pending = Some((revision, job));
         }
         ctx.request_repaint_after(std::time::Duration::from_millis(200));
         false

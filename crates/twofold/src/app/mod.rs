@@ -31,7 +31,7 @@ pub use modals::ModalAnswer;
 
 use dialogs::{DialogAnswer, load_project};
 use edits::CoalesceKey;
-use jobs::AnalysisSlot;
+use jobs::{AnalysisSlot, DecisionSlot};
 
 use crate::panels::design::{Compute, DesignPane};
 use crate::panels::effects::EffectsPane;
@@ -196,6 +196,7 @@ pub struct TwofoldApp {
     panes: Panes,
     derived: Derived,
     analysis: AnalysisSlot,
+    decision: DecisionSlot,
     coalesce: Option<(CoalesceKey, u64)>,
     modal: Option<Modal>,
     /// Where the keyboard goes after a step change or a click.
@@ -247,6 +248,7 @@ impl TwofoldApp {
             panes: Panes::default(),
             derived,
             analysis: AnalysisSlot::default(),
+            decision: DecisionSlot::default(),
             coalesce: None,
             modal: None,
             focus: focus::FocusKeeper::default(),
@@ -499,6 +501,15 @@ impl TwofoldApp {
             ),
             _ => false,
         };
+        if self.step == Step::Predict {
+            self.decision.ensure(
+                self.history.project(),
+                self.history.revision(),
+                &self.analysis.cache,
+                self.inline_compute,
+                &ctx,
+            );
+        }
         let mut actions = Vec::new();
         self.shortcuts(&ctx, &mut actions);
         let pal = Palette::of(self.theme);
@@ -515,6 +526,7 @@ impl TwofoldApp {
                 panes,
                 derived,
                 analysis,
+                decision,
                 ..
             } = self;
             let view = View {
@@ -527,6 +539,10 @@ impl TwofoldApp {
                     .as_deref()
                     .filter(|res| Some(res.response) == *response),
                 results_current: current,
+                decision: decision
+                    .decision
+                    .as_ref()
+                    .map(|(rev, d)| (*rev, d.as_ref())),
                 pal,
                 now: &now,
             };

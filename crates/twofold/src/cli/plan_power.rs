@@ -3,23 +3,13 @@
 
 use serde_json::{Value, json};
 use twofold_core::plan::Plan;
-use twofold_core::power::{PowerSpec, main_effects_error_df, replicates_needed};
+use twofold_study::planning::{DesignPower, MAX_REPLICATES, RunCounts, design_power};
+use twofold_study::project::PowerSettings;
 
 use super::plan::PlanArgs;
 
-/// Most replicates tried when looking for the count that finds `--effect`.
-const MAX_REPLICATES: usize = 64;
-
-/// The power figures of a plan.
-pub(crate) struct PlanPower {
-    sigma: f64,
-    alpha: f64,
-    power: f64,
-    error_df: usize,
-    detectable_effect: f64,
-    effect: Option<f64>,
-    replicates_needed: Option<usize>,
-}
+/// The power figures of a plan (the engine's, shared with the window and the summary page).
+pub(crate) struct PlanPower(DesignPower);
 
 /// A number typed for an option, checked to lie in `(lo, hi)` (open).
 fn number(name: &str, text: &str, lo: f64, hi: f64) -> Result<f64, String> {
@@ -63,77 +53,65 @@ pub(crate) fn plan_power(
         .as_deref()
         .map(|t| number("--effect", t, 0.0, f64::INFINITY))
         .transpose()?;
-    let total = plan.total_runs();
     let two_level = plan.runs.iter().filter(|r| !r.centre).count();
-    let centre = total - two_level;
-    let blocks = plan.block_count.max(1) as usize;
-    let per_replicate = two_level / replicates.max(1);
-    let blocks_per_replicate = (blocks / replicates.max(1)).max(1);
-    // The design run `r` times: centre points as planned; blocks grow with the replicates when
-    // each replicate is a block of its own.
-    let spec = |r: usize| {
-        let runs = per_replicate * r;
-        let blocks = if a.replicates_as_blocks {
-            blocks_per_replicate * r
+    let replicates = replicates.max(1);
+    let blocks = (plan.block_count.max(1) as usize
+        / if a.replicates_as_blocks {
+            replicates
         } else {
-            blocks
-        };
-        PowerSpec {
-            sigma,
-            alpha,
-            runs,
-            error_df: main_effects_error_df(runs + centre, factors, blocks),
-        }
+            1
+        })
+    .max(1);
+    let counts = RunCounts {
+        per_replicate: two_level / replicates,
+        replicates,
+        centre: plan.total_runs() - two_level,
+        blocks_per_replicate: blocks,
+        replicates_as_blocks: a.replicates_as_blocks,
+        factors,
     };
-    let now = PowerSpec {
-        sigma,
-        alpha,
-        runs: two_level,
-        error_df: main_effects_error_df(total, factors, blocks),
-    };
-    let detectable_effect = now.detectable_effect(power).map_err(|e| e.to_string())?;
-    let replicates_needed = match effect {
-        Some(d) => replicates_needed(d, power, MAX_REPLICATES, spec).map_err(|e| e.to_string())?,
-        None => None,
-    };
-    Ok(Some(PlanPower {
-        sigma,
+    let settings = PowerSettings {
+        sigma: Some(sigma),
         alpha,
         power,
-        error_df: now.error_df,
-        detectable_effect,
         effect,
-        replicates_needed,
-    }))
+    };
+    match design_power(&counts, &settings) {
+        Some(Ok(p)) => Ok(Some(PlanPower(p))),
+        Some(Err(e)) => Err(e),
+        None => Ok(None),
+    }
 }
 
 impl PlanPower {
     /// The `power` object of `plan --json`.
     pub(crate) fn json(&self) -> Value {
+        let p = &self.0;
         json!({
-            "sigma": self.sigma,
-            "alpha": self.alpha,
-            "power": self.power,
-            "error_df": self.error_df,
-            "detectable_effect": self.detectable_effect,
-            "replicates_needed": self.replicates_needed,
+            "sigma": p.sigma,
+            "alpha": p.alpha,
+            "power": p.power,
+            "error_df": p.error_df,
+            "detectable_effect": p.detectable_effect,
+            "replicates_needed": p.replicates_needed,
         })
     }
 
     /// Lines of the text output.
     pub(crate) fn text(&self) -> String {
         use twofold_study::numbers::{fmt_sig, plain};
+        let p = &self.0;
         let mut s = format!(
             "Power (main-effects model, {} error df, two-sided t test at α = {}, σ = {}): \
              the smallest effect found with probability {} is {}.",
-            self.error_df,
-            plain(self.alpha, 3),
-            plain(self.sigma, 4),
-            plain(self.power, 3),
-            fmt_sig(self.detectable_effect, 4)
+            p.error_df,
+            plain(p.alpha, 3),
+            plain(p.sigma, 4),
+            plain(p.power, 3),
+            fmt_sig(p.detectable_effect, 4)
         );
-        if let Some(d) = self.effect {
-            s.push_str(&match self.replicates_needed {
+        if let Some(d) = p.effect {
+            s.push_str(&match p.replicates_needed {
                 Some(r) => format!(
                     "\nAn effect of {} is found with that probability with {r} replicate{} of this design.",
                     fmt_sig(d, 4),

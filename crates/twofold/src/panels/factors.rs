@@ -103,7 +103,7 @@ fn factor_grid(
         return;
     }
     Grid::new("factor_grid")
-        .num_columns(9)
+        .num_columns(10)
         .spacing([10.0, 6.0])
         .striped(true)
         .show(ui, |ui| {
@@ -116,6 +116,7 @@ fn factor_grid(
                 "Unit",
                 "Kind",
                 "Safe range",
+                "Noise in use",
                 "",
                 "",
             ] {
@@ -156,6 +157,7 @@ fn factor_grid(
                 }
                 kind_picker(ui, id, index, f, out);
                 safe_range(ui, id, index, f, out);
+                noise(ui, id, index, f, out);
                 ui.horizontal(|ui| {
                     if ui
                         .add_enabled(index > 0, mouse_button("↑"))
@@ -336,6 +338,55 @@ fn safe_range(ui: &mut Ui, id: egui::Id, index: usize, f: &Factor, out: &mut Vec
             }
         } else {
             ui.weak("none declared");
+        }
+    });
+}
+
+/// Whether the factor is a noise factor (varied in the study, not controlled in use) and its
+/// standard deviation in use, in coded units.
+fn noise(ui: &mut Ui, id: egui::Id, index: usize, f: &Factor, out: &mut Vec<Command>) {
+    ui.horizontal(|ui| {
+        let mut on = f.noise_sd.is_some();
+        if ui
+            .checkbox(&mut on, "")
+            .accessible_name(format!(
+                "noise factor {}",
+                LETTERS.get(index).copied().unwrap_or('?')
+            ))
+            .on_hover_text(
+                "A noise factor is varied in the study but not controlled in use (humidity, raw-material lot): the best settings are chosen so the responses vary little with it",
+            )
+            .changed()
+        {
+            out.push(Command::Edit(Edit::SetNoise {
+                index,
+                sd: on.then_some(1.0),
+            }));
+        }
+        match f.noise_sd {
+            Some(sd) => {
+                ui.label("σ");
+                let r = number_field(ui, id.with("noise_sd"), Some(sd), 44.0, "1");
+                match r.changed {
+                    Some(v) if v > 0.0 => out.push(Command::Edit(Edit::SetNoise {
+                        index,
+                        sd: Some(v),
+                    })),
+                    Some(_) => {
+                        ui.colored_label(ui.visuals().error_fg_color, "must be above 0");
+                    }
+                    None => {}
+                }
+                if let Some(e) = r.error {
+                    ui.colored_label(ui.visuals().error_fg_color, e);
+                }
+                ui.weak("coded").on_hover_text(
+                    "Its standard deviation in use, in coded units: 1 = half the distance from low to high",
+                );
+            }
+            None => {
+                ui.weak("control");
+            }
         }
     });
 }

@@ -22,6 +22,9 @@ pub enum PairChoice {
     InModel,
     /// Every pair.
     All,
+    /// Pairs of a control factor and a noise factor, the noise factor drawn as the two lines:
+    /// where the lines come together, the response does not follow the noise.
+    ControlByNoise,
 }
 
 /// View state of the factor plots pane: plot data built once per data revision.
@@ -32,11 +35,44 @@ pub struct PlotsPane {
     built: Option<Built>,
 }
 
+/// The pair drawn with the noise factor as the two lines when `a` is the noise factor of a
+/// control-by-noise pair (x axis: the control factor).
+fn noise_as_lines(
+    mut plot: InteractionPlot,
+    a_is_noise: bool,
+    letters: (char, char),
+) -> InteractionPlot {
+    if !a_is_noise {
+        return plot;
+    }
+    std::mem::swap(&mut plot.a, &mut plot.b);
+    std::mem::swap(&mut plot.a_levels, &mut plot.b_levels);
+    let m = plot.means;
+    plot.means = [[m[0][0], m[1][0]], [m[0][1], m[1][1]]];
+    if let Some(p) = plot.predicted {
+        plot.predicted = Some([[p[0][0], p[1][0]], [p[0][1], p[1][1]]]);
+    }
+    plot.term = format!("{}{}", letters.1, letters.0);
+    plot
+}
+
+/// Whether exactly one of the pair is a noise factor, and whether it is the first.
+fn control_by_noise(project: &Project, a: usize, b: usize) -> Option<bool> {
+    let noise = |i: usize| project.factors.get(i).is_some_and(|f| f.noise_sd.is_some());
+    match (noise(a), noise(b)) {
+        (true, false) => Some(true),
+        (false, true) => Some(false),
+        _ => None,
+    }
+}
+
 #[derive(Debug)]
 struct Built {
     key: (u64, usize),
     mains: Vec<MainEffectPlot>,
     interactions: Vec<InteractionPlot>,
+    /// Control-by-noise pairs, the noise factor as the lines.
+    noise_pairs: Vec<InteractionPlot>,
     y: (f64, f64),
 }
 
@@ -97,6 +133,20 @@ fn build(view: &View<'_>, res: &Report) -> Built {
             }
         })
         .collect();
+    let noise_pairs: Vec<InteractionPlot> = res
+        .pairs
+        .iter()
+        .zip(&interactions)
+        .filter_map(|(pm, plot)| {
+            let (a, b) = pm.factors;
+            let first = control_by_noise(p, a, b)?;
+            let letters = (
+                LETTERS.get(a).copied().unwrap_or('?'),
+                LETTERS.get(b).copied().unwrap_or('?'),
+            );
+            Some(noise_as_lines(plot.clone(), first, letters))
+        })
+        .collect();
     let y = shared_range(
         mains
             .iter()
@@ -117,6 +167,7 @@ fn build(view: &View<'_>, res: &Report) -> Built {
         key: (res.revision, res.response),
         mains,
         interactions,
+        noise_pairs,
         y,
     }
 }
@@ -164,14 +215,24 @@ impl Pane for PlotsPane {
                     ui.label(RichText::new("Interactions").strong());
                     ui.selectable_value(pairs, PairChoice::InModel, "in the model");
                     ui.selectable_value(pairs, PairChoice::All, "every pair");
+                    if !built.noise_pairs.is_empty() {
+                        ui.selectable_value(pairs, PairChoice::ControlByNoise, "control × noise");
+                    }
                 });
+                if built.noise_pairs.is_empty() && *pairs == PairChoice::ControlByNoise {
+                    *pairs = PairChoice::InModel;
+                }
                 let any_in_model = built.interactions.iter().any(|i| i.in_model);
                 let few = view.project.factors.len() <= 5;
-                let shown: Vec<&InteractionPlot> = built
-                    .interactions
+                let source = if *pairs == PairChoice::ControlByNoise {
+                    &built.noise_pairs
+                } else {
+                    &built.interactions
+                };
+                let shown: Vec<&InteractionPlot> = source
                     .iter()
                     .filter(|i| match *pairs {
-                        PairChoice::All => true,
+                        PairChoice::All | PairChoice::ControlByNoise => true,
                         PairChoice::InModel => i.in_model || (!any_in_model && few),
                     })
                     .take(MAX_INTERACTION_PLOTS)
@@ -182,7 +243,11 @@ impl Pane for PlotsPane {
                 if !any_in_model && few && *pairs == PairChoice::InModel {
                     ui.weak("No interaction is in the model yet: showing every pair.");
                 }
-                ui.weak("Parallel lines: no interaction. Crossing or diverging lines: the effect of one factor depends on the other.");
+                if *pairs == PairChoice::ControlByNoise {
+                    ui.weak("The noise factor is drawn as the two lines. Where the lines come close, the response hardly follows the noise: a setting there is robust.");
+                } else {
+                    ui.weak("Parallel lines: no interaction. Crossing or diverging lines: the effect of one factor depends on the other.");
+                }
                 if shown.iter().any(|i| i.predicted.is_some()) {
                     ui.label(RichText::new(model_cells::LEGEND).size(13.0));
                 }

@@ -10,7 +10,9 @@ pub mod chart;
 pub mod design;
 pub mod effects;
 pub mod factors;
+pub mod goals;
 pub mod interactions;
+pub mod limits_map;
 pub mod model;
 pub mod model_cells;
 pub mod next_runs;
@@ -134,6 +136,9 @@ pub struct View<'a> {
     pub results: Option<&'a twofold_study::report::Report>,
     /// Whether `results` are of the current revision.
     pub results_current: bool,
+    /// The best settings for every response's goal with the revision they are of (computed once
+    /// per change, only while "Which settings to run?" shows).
+    pub decision: Option<(u64, &'a twofold_study::report::Decision)>,
     /// Colours of the current theme.
     pub pal: Palette,
     /// The current time as ISO-8601 text, recorded with entered values.

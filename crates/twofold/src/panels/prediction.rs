@@ -40,6 +40,8 @@ pub struct PredictionPane {
     prediction: Option<CachedPrediction>,
     /// Result of the last best-settings search and the data it was made for.
     optimum: Option<(u64, usize, Result<Optimum, String>)>,
+    /// The map of where every goal is met.
+    map: super::limits_map::LimitsMap,
 }
 
 /// Accessible name of the control of factor `index`.
@@ -67,9 +69,29 @@ fn to_coded(project: &Project, i: usize, natural: f64) -> f64 {
 }
 
 impl Pane for PredictionPane {
-    fn ui(&mut self, ui: &mut Ui, view: &View<'_>, _out: &mut Vec<Command>) {
+    fn ui(&mut self, ui: &mut Ui, view: &View<'_>, out: &mut Vec<Command>) {
         let pal = view.pal;
         let project = view.project;
+        let k = project.factors.len();
+        self.coded.resize(k, 0.0);
+        super::goals::goals_grid(ui, view, out);
+        ui.add_space(8.0);
+        match view.decision {
+            Some((revision, d)) => {
+                if revision != view.revision {
+                    ui.weak("Updating the best settings for the latest values…");
+                }
+                if let Some(point) = super::goals::best_table(ui, view, d) {
+                    self.coded = point;
+                }
+                self.map.ui(ui, view, revision, d);
+            }
+            None => {
+                ui.weak("Finding the best settings…");
+            }
+        }
+        ui.add_space(12.0);
+        ui.separator();
         let Some(res) = view.results_or_explain(ui) else {
             return;
         };
@@ -80,12 +102,10 @@ impl Pane for PredictionPane {
                 return;
             }
         };
-        let k = project.factors.len();
-        self.coded.resize(k, 0.0);
         let def = project.responses.get(res.response);
         let unit = def.map_or("", |d| d.unit.as_str());
         let name = def.map_or("", |d| d.name.as_str());
-        ui.label(RichText::new("Settings").strong());
+        ui.label(RichText::new(format!("Try settings: {name} predicted")).strong());
         ui.spacing_mut().slider_width = 280.0;
         Grid::new("predict_controls")
             .num_columns(3)
@@ -165,7 +185,7 @@ impl Pane for PredictionPane {
             }
         }
         ui.add_space(12.0);
-        ui.label(RichText::new("Best settings").strong());
+        ui.label(RichText::new(format!("Best for {name} alone")).strong());
         ui.horizontal(|ui| {
             ui.selectable_value(&mut self.aim, Aim::Maximise, "maximise");
             ui.selectable_value(&mut self.aim, Aim::Minimise, "minimise");
