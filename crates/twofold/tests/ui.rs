@@ -350,10 +350,14 @@ fn changing_the_design_after_values_were_typed_asks_first() {
 
 #[test]
 fn every_step_of_the_demo_project_draws_with_real_glyphs_and_named_widgets() {
-    // The harness fails on a glyph the fonts cannot draw and on an unnamed widget.
-    let mut h = harness(TwofoldApp::new_for_test(
-        twofold_study::project::demo_project(),
-    ));
+    // The harness fails on a glyph the fonts cannot draw and on an unnamed widget. Tall, so the
+    // whole of "Which settings to run?" (goals, best settings, map, what-if) is on screen.
+    let mut h = Harness::builder()
+        .with_size([1500.0, 2400.0])
+        .build_ui_state(
+            |ui, app: &mut TwofoldApp| app.ui_in(ui),
+            TwofoldApp::new_for_test(twofold_study::project::demo_project()),
+        );
     for step in Step::ALL {
         h.state_mut().set_step(step);
         h.run();

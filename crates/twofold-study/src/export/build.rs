@@ -164,6 +164,9 @@ pub fn summary_input(
         });
         responses.push(section);
     }
+    let decision = super::decision_facts::decision_facts(project, reports, &mut responses);
+    let mut design = design;
+    design.detectable = super::decision_facts::detectable_words(project);
 
     SummaryInput {
         title: project.name.clone(),
@@ -174,6 +177,7 @@ pub fn summary_input(
         ofat,
         responses,
         warnings,
+        decision,
         footer: Footer {
             tool: tool_version(),
             seed: project.design.randomize.then_some(project.design.seed),
@@ -229,6 +233,7 @@ fn design_facts(project: &Project, warnings: &mut Vec<String>) -> DesignFacts {
         interaction_chains: Vec::new(),
         tangled_chains: 0,
         seed: d.randomize.then_some(d.seed),
+        detectable: None,
     };
     if k == 0 || generators.is_empty() {
         return facts;
@@ -604,10 +609,27 @@ mod tests {
             goal_response: Some(1),
             ..BuildOptions::default()
         };
+        // The demo's goals choose one setting for both responses: every page shows it.
         let input = summary_input(&p, &[&r0, &r1], &options);
+        let best = |i: usize| input.responses[i].best.clone().unwrap();
+        assert!(best(0).goal.starts_with("every response's goal at once"));
+        assert_eq!(best(0).settings, best(1).settings);
+        let decision = input.decision.clone().unwrap();
+        assert_eq!(decision.settings, best(0).settings);
+        assert_eq!(decision.responses[1].predicted, best(1).predicted);
+        // Without goals, the goal chosen for one response leaves the others maximised.
+        let mut q = p.clone();
+        for r in &mut q.responses {
+            r.goal = crate::project::ResponseGoal::default();
+        }
+        let input = summary_input(&q, &[&r0, &r1], &options);
+        assert!(input.decision.is_none());
         let goal = |i: usize| input.responses[i].best.as_ref().unwrap().goal.clone();
         assert_eq!(goal(0), "maximise Solvent rubs");
         assert_eq!(goal(1), "minimise Gloss 60°");
+        // A summary of one response has no decision of all of them (it lacks the others).
+        let input = summary_input(&p, &[&r1], &options);
+        assert!(input.decision.is_none());
     }
 
     #[test]

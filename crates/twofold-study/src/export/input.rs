@@ -27,6 +27,9 @@ pub struct SummaryInput {
     pub responses: Vec<ResponseSummary>,
     /// Warnings about the project and its design (not about one response), one sentence each.
     pub warnings: Vec<String>,
+    /// The settings chosen for every response's goal at once, when the project has goals.
+    #[serde(default)]
+    pub decision: Option<DecisionFacts>,
     /// Reproducibility facts for the footer.
     pub footer: Footer,
 }
@@ -141,6 +144,10 @@ pub struct DesignFacts {
     pub tangled_chains: usize,
     /// Seed of the run-order randomisation; `None` when runs are in standard order.
     pub seed: Option<u64>,
+    /// What the design can see, in words ("an effect of 3.8 is found with probability 0.8 …"),
+    /// when a process standard deviation was given.
+    #[serde(default)]
+    pub detectable: Option<String>,
 }
 
 /// One effect.
@@ -255,6 +262,40 @@ pub struct Equation {
     /// Whether the equation is in coded units (−1 to +1) because it has none in natural units.
     #[serde(default)]
     pub coded: bool,
+}
+
+/// The settings chosen for every goal at once (the engine's decision).
+#[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
+pub struct DecisionFacts {
+    /// Each goal in words: (response or "spread of …", goal).
+    pub goals: Vec<(String, String)>,
+    /// Noise factors with their standard deviation in use, in words.
+    pub noise: Vec<String>,
+    /// Factor name and setting, in letter order.
+    pub settings: Vec<(String, String)>,
+    /// Overall desirability D.
+    pub overall: f64,
+    /// Every response at these settings.
+    pub responses: Vec<DecisionResponse>,
+    /// What holds D down, and notes (curvature, safe ranges), one sentence each.
+    pub binding: Vec<String>,
+}
+
+/// One response at the chosen settings.
+#[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
+pub struct DecisionResponse {
+    /// Name.
+    pub name: String,
+    /// Unit.
+    pub unit: String,
+    /// Predicted mean, measured scale.
+    pub predicted: Option<f64>,
+    /// 95 % prediction interval of one new run.
+    pub interval: Option<(f64, f64)>,
+    /// Desirability of the mean (`None`: no goal).
+    pub desirability: Option<f64>,
+    /// Spread transmitted by the noise factors (`None`: none).
+    pub transmitted_sd: Option<f64>,
 }
 
 /// The best settings found.

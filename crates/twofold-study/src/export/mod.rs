@@ -15,6 +15,7 @@ use std::path::{Path, PathBuf};
 
 pub mod build;
 pub mod charts;
+mod decision_facts;
 pub mod fonts;
 pub mod input;
 pub mod job;

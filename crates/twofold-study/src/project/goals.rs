@@ -164,7 +164,8 @@ fn shape_words(shape: f64) -> String {
 /// What the power of a design rests on, typed in the design step.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
 pub struct PowerSettings {
-    /// Process standard deviation σ in the first response's units; `None`: not known yet.
+    /// Process standard deviation σ in the units of the response planned for; `None`: not known
+    /// yet.
     #[serde(default)]
     pub sigma: Option<f64>,
     /// Level of the two-sided test.

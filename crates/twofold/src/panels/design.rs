@@ -6,6 +6,7 @@
 //! many factors, so in the window it runs on a worker thread and the table says "searching".
 
 mod aliases;
+pub mod power;
 
 use egui::{Grid, RichText, Ui};
 
@@ -160,6 +161,7 @@ impl Pane for DesignPane {
             .show(ui, |ui| {
                 ui.label(RichText::new(format!("Run sizes for {k} factors").as_str()).strong());
                 options_table(self, ui, view, k, &mut draft);
+                power::power_row(ui, view, out);
                 ui.add_space(6.0);
                 generators_row(self, ui, view, k, &mut draft);
                 ui.add_space(6.0);
@@ -259,9 +261,10 @@ fn options_table(
         }
     };
     let current_runs = base_runs(draft, k);
+    let power_heading = power::power_heading(&view.project.power);
     Grid::new("design_options")
         .striped(true)
-        .num_columns(7)
+        .num_columns(8)
         .spacing([14.0, 4.0])
         .show(ui, |ui| {
             for h in [
@@ -273,6 +276,9 @@ fn options_table(
                 "One-at-a-time equivalent",
                 "Generators",
             ] {
+                ui.label(RichText::new(h).strong().color(pal.muted));
+            }
+            if let Some(h) = &power_heading {
                 ui.label(RichText::new(h).strong().color(pal.muted));
             }
             ui.end_row();
@@ -325,6 +331,11 @@ fn options_table(
                 let label = ui.label(g);
                 if !o.proven {
                     label.on_hover_text("Best found in the time allowed; not proven minimum aberration.");
+                }
+                if let Some((text, tip)) =
+                    power::power_cell(&view.project.power, draft, k, o.runs)
+                {
+                    ui.label(text).on_hover_text(tip);
                 }
                 ui.end_row();
             }

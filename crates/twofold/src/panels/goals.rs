@@ -44,6 +44,16 @@ pub fn goal_chooser_name(response: &str, spread: bool) -> String {
     }
 }
 
+/// Accessible name of a goal's number field: `lower limit of Gloss`, `target of spread of Gloss`.
+pub fn goal_field_name(part: &str, label: &str) -> String {
+    let what = match part {
+        "low" => "lower limit",
+        "high" => "upper limit",
+        other => other,
+    };
+    format!("{what} of {label}")
+}
+
 /// Smallest and largest value typed for a response (limits offered when a goal is first chosen).
 fn observed_range(project: &Project, response: usize) -> (f64, f64) {
     let values: Vec<f64> = project
@@ -136,6 +146,9 @@ fn goal_row(ui: &mut Ui, view: &View<'_>, response: usize, spread: bool, out: &m
     let id = egui::Id::unique(("goal", response, spread));
     let field = |ui: &mut Ui, salt: &str, value: f64, hint: &str| -> Option<f64> {
         let r = number_field(ui, id.with(salt), Some(value), 70.0, hint);
+        if let Some(resp) = ui.ctx().read_response(id.with(salt)) {
+            let _ = resp.accessible_name(goal_field_name(salt, &label));
+        }
         if let Some(e) = &r.error {
             ui.colored_label(view.pal.error, e);
         }

@@ -72,7 +72,9 @@ impl LimitsMap {
                     for &i in &controls {
                         ui.selectable_value(&mut a, i, name(i));
                     }
-                });
+                })
+                .response
+                .accessible_name("factor across the map");
             ui.label("up");
             ComboBox::from_id_salt("map_up")
                 .selected_text(name(b))
@@ -80,7 +82,9 @@ impl LimitsMap {
                     for &i in &controls {
                         ui.selectable_value(&mut b, i, name(i));
                     }
-                });
+                })
+                .response
+                .accessible_name("factor up the map");
             ui.weak("other factors at the best settings");
         });
         if a == b {

@@ -102,6 +102,23 @@ impl Pane for ModelPane {
                 ui.label(RichText::new(format!("{name} {}", opt(v, 4))).size(18.0));
                 ui.add_space(16.0);
             }
+            // The residual SD is the process σ a follow-up study is planned with.
+            if let Some(s) = fit.sigma.filter(|s| *s > 0.0)
+                && view.project.power.sigma != Some(s)
+                && ui
+                    .button("Plan with this SD")
+                    .on_hover_text(
+                        "Use this residual standard deviation as the process σ of the design step's power column",
+                    )
+                    .clicked()
+            {
+                out.push(Command::Edit(twofold_study::project::Edit::SetPower(
+                    twofold_study::project::PowerSettings {
+                        sigma: Some(s),
+                        ..view.project.power
+                    },
+                )));
+            }
         });
         if fit.df_residual == 0 {
             ui.colored_label(

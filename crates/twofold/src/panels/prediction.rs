@@ -70,6 +70,15 @@ fn to_coded(project: &Project, i: usize, natural: f64) -> f64 {
 
 impl Pane for PredictionPane {
     fn ui(&mut self, ui: &mut Ui, view: &View<'_>, out: &mut Vec<Command>) {
+        egui::ScrollArea::vertical()
+            .id_salt("predict_scroll")
+            .auto_shrink([false, false])
+            .show(ui, |ui| self.contents(ui, view, out));
+    }
+}
+
+impl PredictionPane {
+    fn contents(&mut self, ui: &mut Ui, view: &View<'_>, out: &mut Vec<Command>) {
         let pal = view.pal;
         let project = view.project;
         let k = project.factors.len();
@@ -178,7 +187,10 @@ impl Pane for PredictionPane {
         ui.add_space(8.0);
         if let Some((_, _, _, p)) = &self.prediction {
             match p {
-                Ok(p) => prediction_card(ui, view, p, res, name, unit),
+                Ok(p) => {
+                    prediction_card(ui, view, p, res, name, unit);
+                    noise_lines(ui, view, fit, &self.coded, unit);
+                }
                 Err(e) => {
                     ui.colored_label(pal.error, e);
                 }
@@ -236,6 +248,48 @@ impl Pane for PredictionPane {
             self.coded = s;
         }
     }
+}
+
+/// For each noise factor, the slope of the response at the chosen control settings (noise at its
+/// centre) and the spread all noise factors transmit there (`twofold_core::robust`).
+fn noise_lines(
+    ui: &mut Ui,
+    view: &View<'_>,
+    fit: &twofold_core::anova::ModelFit,
+    coded: &[f64],
+    unit: &str,
+) {
+    let noise: Vec<(usize, f64)> = view
+        .project
+        .factors
+        .iter()
+        .enumerate()
+        .filter_map(|(i, f)| f.noise_sd.map(|sd| (i, sd)))
+        .collect();
+    if noise.is_empty() {
+        return;
+    }
+    let surface = twofold_core::robust::Surface::from_fit(fit);
+    let mut x = coded.to_vec();
+    for (j, _) in &noise {
+        if let Some(v) = x.get_mut(*j) {
+            *v = 0.0;
+        }
+    }
+    for (j, _) in &noise {
+        let name = view.project.factors.get(*j).map_or("", |f| f.name.as_str());
+        ui.label(format!(
+            "Slope along the noise factor {name}: {} per coded unit (analysis scale)",
+            fmt_num(surface.slope(&x, *j), 4)
+        ));
+    }
+    ui.label(
+        RichText::new(format!(
+            "Spread the noise factors pass on here: {} {unit} (analysis scale; noise at its centre for the mean)",
+            fmt_num(surface.transmitted_sd(&x, &noise), 4)
+        ))
+        .strong(),
+    );
 }
 
 fn interval(i: Option<(f64, f64)>) -> String {

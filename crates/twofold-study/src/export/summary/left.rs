@@ -143,6 +143,9 @@ fn design(svg: &mut Svg, flow: &mut Flow, input: &SummaryInput, more: &mut More)
         None => "standard order".to_string(),
     };
     flow.fact(svg, "Run order", &order, LABEL_W, 2);
+    if let Some(t) = &d.detectable {
+        flow.fact(svg, "Power", t, LABEL_W, 4);
+    }
     alias_chains(svg, flow, d, more);
 }
 

@@ -234,6 +234,18 @@ fn tail(svg: &mut Svg, flow: &mut Flow, part: Part, best_here: bool, more: &mut 
     if !part.first() {
         return;
     }
+    if let Some(d) = &part.input.decision {
+        let place = more.add("Settings for every goal", decision_items(d));
+        flow.paragraph(
+            svg,
+            &format!(
+                "Every goal, every response's prediction and interval at the chosen settings{}: under {place}.",
+                if d.noise.is_empty() { "" } else { ", and the spread the noise factors pass on" }
+            ),
+            body,
+            3,
+        );
+    }
     flow.heading(svg, "Compared with one factor at a time");
     match &part.input.ofat {
         Some(o) => {
@@ -250,6 +262,69 @@ fn tail(svg: &mut Svg, flow: &mut Flow, part: Part, best_here: bool, more: &mut 
             flow.paragraph(svg, "Not available for this design.", body.fill(MUTED), 1);
         }
     }
+}
+
+/// The block of the decision on the pages of more detail.
+fn decision_items(d: &crate::export::input::DecisionFacts) -> Vec<Item> {
+    let mut items = vec![Item::Text("Goals:".into())];
+    items.push(Item::Bullets(
+        d.goals
+            .iter()
+            .map(|(name, goal)| format!("{name}: {goal}"))
+            .collect(),
+    ));
+    if !d.noise.is_empty() {
+        items.push(Item::Text(format!(
+            "Noise factors (not controlled in use, held at their centre for the means): {}.",
+            d.noise.join(", ")
+        )));
+    }
+    if d.settings.is_empty() {
+        items.extend(d.binding.iter().cloned().map(Item::Text));
+        return items;
+    }
+    items.push(Item::Text(format!(
+        "Chosen settings (overall desirability {}):",
+        numbers::fmt_sig(d.overall, 3)
+    )));
+    items.push(Item::Bullets(
+        d.settings
+            .iter()
+            .map(|(f, v)| format!("{f} = {v}"))
+            .collect(),
+    ));
+    items.push(Item::Text("Every response there:".into()));
+    items.push(Item::Bullets(
+        d.responses
+            .iter()
+            .map(|r| {
+                let b = crate::export::input::BestSettings {
+                    predicted: r.predicted,
+                    interval: r
+                        .interval
+                        .map(|(a, b)| (a, b, "95 % prediction interval".to_string())),
+                    ..Default::default()
+                };
+                let mut s = format!("{}: {} {}", r.name, predicted(&b), r.unit);
+                if let Some(x) = r.desirability {
+                    s.push_str(&format!("; desirability {}", numbers::fmt_sig(x, 2)));
+                }
+                if let Some(sd) = r.transmitted_sd {
+                    s.push_str(&format!(
+                        "; spread from the noise factors {} {}",
+                        numbers::fmt_sig(sd, 3),
+                        r.unit
+                    ));
+                }
+                s
+            })
+            .collect(),
+    ));
+    items.push(Item::Bullets(d.binding.clone()));
+    items.push(Item::Small(
+        "A suggestion from the fitted models, not an approved setting: stay inside safe operating limits, confirm with runs before changing production, and follow local codes and licensed practice.".into(),
+    ));
+    items
 }
 
 /// One line per factor: `Cure temperature = 200 °C`.

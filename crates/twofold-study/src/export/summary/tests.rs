@@ -139,6 +139,9 @@ fn crowded() -> SummaryInput {
             interaction_chains: (0..27).map(|i| format!("AB{i} = CD = EF = GH")).collect(),
             tangled_chains: 27,
             seed: Some(42),
+            detectable: Some(
+                "an effect of 3.79 is found with probability 0.8 (σ = 2.5, two-sided test at α = 0.05, 13 error df, main-effects model); an effect of 2 needs 4 replicates".into(),
+            ),
         },
         ofat: Some(OfatFacts {
             ofat_runs: 224,
@@ -150,6 +153,27 @@ fn crowded() -> SummaryInput {
             crowded_section("Haze"),
         ],
         warnings: vec!["The run sheet no longer matches the design.".into()],
+        decision: Some(crate::export::input::DecisionFacts {
+            goals: vec![
+                ("Peel strength after humid ageing".into(), "as large as possible: worthless at 10, fully met at 20 N".into()),
+                ("spread of Haze".into(), "as small as possible: fully met at 0, worthless at 2 %".into()),
+            ],
+            noise: vec!["Humidity (σ 1 coded)".into()],
+            settings: letters
+                .chars()
+                .map(|l| (format!("{LONG} {l}"), "supplier with a long name".to_string()))
+                .collect(),
+            overall: 0.61,
+            responses: vec![crate::export::input::DecisionResponse {
+                name: "Haze".into(),
+                unit: "%".into(),
+                predicted: Some(1.25),
+                interval: Some((0.5, 2.0)),
+                desirability: Some(0.4),
+                transmitted_sd: Some(0.3),
+            }],
+            binding: vec!["the goal that binds: “Haze” (d = 0.4)".into()],
+        }),
         footer: Footer {
             tool: "Twofold test".into(),
             seed: Some(42),

@@ -1,0 +1,105 @@
+//! What each design option can see: the process standard deviation and the test's settings typed
+//! once for the project, and a column of the options table with the smallest effect found with
+//! the asked power (and the replicates an effect of interest needs). Figures from the engine's
+//! `planning` module, as `plan --sigma` and the summary page show them.
+
+use egui::Ui;
+
+use crate::panels::widgets::number_field;
+use crate::panels::{Command, View};
+use twofold_study::numbers::fmt_sig;
+use twofold_study::planning::{RunCounts, design_power};
+use twofold_study::project::{DesignSettings, Edit, PowerSettings};
+
+/// Accessible name of the process standard deviation field.
+pub const SIGMA_FIELD: &str = "process standard deviation";
+
+/// The row where σ, α, the power and an effect of interest are typed.
+pub(super) fn power_row(ui: &mut Ui, view: &View<'_>, out: &mut Vec<Command>) {
+    let settings = view.project.power;
+    let mut next = settings;
+    let id = ui.scope_id().with("power_row");
+    ui.horizontal_wrapped(|ui| {
+        ui.label("Process standard deviation σ");
+        let s = number_field(ui, id.with("sigma"), settings.sigma, 70.0, "unknown");
+        if let Some(r) = ui.ctx().read_response(id.with("sigma")) {
+            let _ = r.accessible_name(SIGMA_FIELD);
+        }
+        if let Some(v) = s.changed {
+            next.sigma = Some(v);
+        }
+        ui.label("  test level α");
+        if let Some(v) =
+            number_field(ui, id.with("alpha"), Some(settings.alpha), 50.0, "0.05").changed
+        {
+            next.alpha = v;
+        }
+        ui.label("  power");
+        if let Some(v) =
+            number_field(ui, id.with("power"), Some(settings.power), 50.0, "0.8").changed
+        {
+            next.power = v;
+        }
+        ui.label("  effect that matters");
+        if let Some(v) =
+            number_field(ui, id.with("effect"), settings.effect, 80.0, "optional").changed
+        {
+            next.effect = Some(v);
+        }
+        if settings.sigma.is_some() && ui.small_button("clear").clicked() {
+            next = PowerSettings::default();
+        }
+    });
+    ui.weak(
+        "σ in the units of the response you plan for: from repeat measurements, or an earlier study's residual SD (\"Plan with this SD\" on \"Can the model be trusted?\"); the column below then shows the smallest effect each design finds with that power (two-sided t test of one effect, main-effects model).",
+    );
+    let bad = |p: f64| !(p > 0.0 && p < 1.0);
+    if next.sigma.is_some_and(|s| s <= 0.0) || bad(next.alpha) || bad(next.power) {
+        ui.colored_label(
+            view.pal.error,
+            "σ must be above 0, and α and the power between 0 and 1.",
+        );
+    } else if next != settings {
+        out.push(Command::Edit(Edit::SetPower(next)));
+    }
+}
+
+/// The column's heading, or `None` while σ is unknown.
+pub(super) fn power_heading(settings: &PowerSettings) -> Option<String> {
+    settings.sigma?;
+    Some(format!(
+        "Smallest effect seen (power {})",
+        fmt_sig(settings.power, 2)
+    ))
+}
+
+/// The cell of one option: the smallest effect seen, and the replicates an effect of interest
+/// needs.
+pub(super) fn power_cell(
+    settings: &PowerSettings,
+    draft: &DesignSettings,
+    factors: usize,
+    runs: usize,
+) -> Option<(String, String)> {
+    let counts = RunCounts::of(draft, factors, runs);
+    let p = match design_power(&counts, settings)? {
+        Ok(p) => p,
+        Err(e) => return Some(("—".into(), e)),
+    };
+    let mut text = fmt_sig(p.detectable_effect, 3);
+    if let Some(d) = p.effect {
+        text.push_str(&match p.replicates_needed {
+            Some(1) => format!("; {} found as is", fmt_sig(d, 3)),
+            Some(r) => format!("; {} needs {r} replicates", fmt_sig(d, 3)),
+            None => format!("; {} needs over 64 replicates", fmt_sig(d, 3)),
+        });
+    }
+    let tip = format!(
+        "{} error df; an effect of {} is found with probability {} at α = {}",
+        p.error_df,
+        fmt_sig(p.detectable_effect, 4),
+        fmt_sig(p.power, 3),
+        fmt_sig(p.alpha, 3)
+    );
+    Some((text, tip))
+}
