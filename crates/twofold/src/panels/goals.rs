@@ -260,6 +260,7 @@ pub fn best_table(ui: &mut Ui, view: &View<'_>, d: &Decision) -> Option<Vec<f64>
                 .spacing([12.0, 4.0])
                 .show(ui, |ui| {
                     ui.label("");
+                    ui.label("");
                     ui.label(RichText::new("D").weak())
                         .on_hover_text("overall desirability, 0 to 1");
                     for f in &project.factors {
@@ -268,23 +269,22 @@ pub fn best_table(ui: &mut Ui, view: &View<'_>, d: &Decision) -> Option<Vec<f64>
                     for r in &project.responses {
                         ui.label(RichText::new(&r.name).weak());
                     }
-                    ui.label("");
                     ui.end_row();
                     for (rank, c) in best.iter().enumerate() {
                         ui.label(format!("{}", rank + 1));
-                        ui.label(RichText::new(fmt_num(c.overall, 3)).strong());
-                        for (f, s) in project.factors.iter().zip(&c.natural) {
-                            ui.label(s.words(&f.unit));
-                        }
-                        for o in &c.responses {
-                            ui.label(outcome_words(project, o));
-                        }
                         if ui
                             .button("Try")
                             .on_hover_text("put these settings in the controls below")
                             .clicked()
                         {
                             tried = Some(c.coded.clone());
+                        }
+                        ui.label(RichText::new(fmt_num(c.overall, 3)).strong());
+                        for (f, s) in project.factors.iter().zip(&c.natural) {
+                            ui.label(s.words(&f.unit));
+                        }
+                        for o in &c.responses {
+                            ui.label(outcome_words(project, o));
                         }
                         ui.end_row();
                     }
