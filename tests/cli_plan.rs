@@ -398,6 +398,46 @@ fn power_of_a_plan_agrees_with_scipy_and_needs_sigma() {
     assert!(j["power"]["replicates_needed"].is_null());
     let j = plan_json(&["--factors", "8", "--runs", "16", "--seed", "1"]);
     assert!(j["power"].is_null());
+    // Naming the model: A..H and the two interactions AB, AC use 10 terms, leaving
+    // 16 - 1 - 10 = 5 error df (a repeated term counts once).
+    let j = plan_json(&[
+        "--factors",
+        "8",
+        "--runs",
+        "16",
+        "--seed",
+        "1",
+        "--sigma",
+        "2",
+        "--model-terms",
+        "A,B,C,D,E,F,G,H,AB,AC,BA",
+    ]);
+    assert_eq!(j["power"]["error_df"], 5);
+    let five = twofold_core::power::PowerSpec {
+        sigma: 2.0,
+        alpha: 0.05,
+        runs: 16,
+        error_df: 5,
+    };
+    let d = j["power"]["detectable_effect"].as_f64().unwrap();
+    assert!(
+        (d - five.detectable_effect(0.8).unwrap()).abs() < 1e-9,
+        "{d}"
+    );
+    let (code, _, err) = run(&["plan", "--factors", "3", "--model-terms", "A,B"]);
+    assert_eq!(code, 2, "--model-terms needs --sigma");
+    assert!(err.contains("--sigma"), "{err}");
+    let (code, _, err) = run(&[
+        "plan",
+        "--factors",
+        "3",
+        "--sigma",
+        "1",
+        "--model-terms",
+        "AZ",
+    ]);
+    assert_eq!(code, 2);
+    assert_eq!(err.lines().count(), 1, "{err}");
     for bad in [
         vec!["plan", "--factors", "8", "--runs", "16", "--alpha", "0.1"],
         vec!["plan", "--factors", "8", "--runs", "16", "--sigma", "-1"],

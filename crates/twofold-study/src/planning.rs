@@ -22,13 +22,13 @@ pub struct RunCounts {
     pub blocks_per_replicate: usize,
     /// Whether each replicate is a set of blocks of its own.
     pub replicates_as_blocks: bool,
-    /// Factors.
-    pub factors: usize,
+    /// Terms of the model the test is made in (the main effects: the number of factors).
+    pub terms: usize,
 }
 
 impl RunCounts {
     /// The counts of `design` for `factors` factors with `per_replicate` two-level runs in one
-    /// replicate (a fold-over doubles them).
+    /// replicate (a fold-over doubles them), for the main-effects model.
     pub fn of(design: &DesignSettings, factors: usize, per_replicate: usize) -> RunCounts {
         let blocks = match &design.blocks {
             BlockChoice::Count(n) => (*n).max(1) as usize,
@@ -54,7 +54,7 @@ impl RunCounts {
             centre: design.centre_points_per_block as usize * set_count,
             blocks_per_replicate: blocks,
             replicates_as_blocks: design.replicates_as_blocks,
-            factors,
+            terms: factors,
         }
     }
 
@@ -69,7 +69,7 @@ impl RunCounts {
             sigma,
             alpha,
             runs,
-            error_df: main_effects_error_df(runs + self.centre, self.factors, blocks),
+            error_df: main_effects_error_df(runs + self.centre, self.terms, blocks),
         }
     }
 }

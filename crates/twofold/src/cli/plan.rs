@@ -89,6 +89,10 @@ pub struct PlanArgs {
     /// An effect size to find: adds the replicates it needs (with --sigma)
     #[arg(long, value_name = "D", allow_hyphen_values = true)]
     pub effect: Option<String>,
+    /// Model terms the power is figured for, e.g. A,B,C,AB (with --sigma) [default: the main
+    /// effects]
+    #[arg(long = "model-terms", value_name = "LIST")]
+    pub model_terms: Option<String>,
     /// Print the plan as one JSON object
     #[arg(long)]
     pub json: bool,

@@ -9,7 +9,7 @@ use twofold_study::project::PowerSettings;
 use super::plan::PlanArgs;
 
 /// The power figures of a plan (the engine's, shared with the window and the summary page).
-pub(crate) struct PlanPower(DesignPower);
+pub(crate) struct PlanPower(DesignPower, Option<usize>);
 
 /// A number typed for an option, checked to lie in `(lo, hi)` (open).
 fn number(name: &str, text: &str, lo: f64, hi: f64) -> Result<f64, String> {
@@ -31,9 +31,9 @@ pub(crate) fn plan_power(
     replicates: usize,
 ) -> Result<Option<PlanPower>, String> {
     let Some(sigma) = a.sigma.as_deref() else {
-        if a.alpha.is_some() || a.power.is_some() || a.effect.is_some() {
+        if a.alpha.is_some() || a.power.is_some() || a.effect.is_some() || a.model_terms.is_some() {
             return Err(
-                "--alpha, --power and --effect need --sigma (the process standard deviation)"
+                "--alpha, --power, --effect and --model-terms need --sigma (the process standard deviation)"
                     .into(),
             );
         }
@@ -68,7 +68,7 @@ pub(crate) fn plan_power(
         centre: plan.total_runs() - two_level,
         blocks_per_replicate: blocks,
         replicates_as_blocks: a.replicates_as_blocks,
-        factors,
+        terms: model_term_count(a.model_terms.as_deref(), factors)?,
     };
     let settings = PowerSettings {
         sigma: Some(sigma),
@@ -77,10 +77,29 @@ pub(crate) fn plan_power(
         effect,
     };
     match design_power(&counts, &settings) {
-        Some(Ok(p)) => Ok(Some(PlanPower(p))),
+        Some(Ok(p)) => Ok(Some(PlanPower(
+            p,
+            a.model_terms.is_some().then_some(counts.terms),
+        ))),
         Some(Err(e)) => Err(e),
         None => Ok(None),
     }
+}
+
+/// How many terms the named model has (each checked against the factors), or the main effects.
+fn model_term_count(list: Option<&str>, factors: usize) -> Result<usize, String> {
+    let Some(list) = list else {
+        return Ok(factors);
+    };
+    let mut terms = Vec::new();
+    for label in list.split(',').map(str::trim) {
+        let t = twofold_core::term::Term::parse(label, factors)
+            .map_err(|e| format!("--model-terms: {e}"))?;
+        if !terms.contains(&t) {
+            terms.push(t);
+        }
+    }
+    Ok(terms.len())
 }
 
 impl PlanPower {
@@ -102,8 +121,12 @@ impl PlanPower {
         use twofold_study::numbers::{fmt_sig, plain};
         let p = &self.0;
         let mut s = format!(
-            "Power (main-effects model, {} error df, two-sided t test at α = {}, σ = {}): \
+            "Power ({}, {} error df, two-sided t test at α = {}, σ = {}): \
              the smallest effect found with probability {} is {}.",
+            match self.1 {
+                Some(n) => format!("model of {n} terms"),
+                None => "main-effects model".to_string(),
+            },
             p.error_df,
             plain(p.alpha, 3),
             plain(p.sigma, 4),
