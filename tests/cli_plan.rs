@@ -458,3 +458,68 @@ fn power_of_a_plan_agrees_with_scipy_and_needs_sigma() {
         assert_eq!(err.lines().count(), 1, "{err}");
     }
 }
+
+#[test]
+fn twelve_runs_give_the_screening_design_with_its_partial_aliases() {
+    // Plackett & Burman (1946): 11 factors in 12 runs; each main effect is partially aliased
+    // with the 45 two-factor interactions not containing it, coefficient ±1/3 (common knowledge
+    // of the trade; recomputed by the core from the alias matrix).
+    let j = plan_json(&["--factors", "11", "--runs", "12", "--seed", "5"]);
+    assert_eq!(j["family"], "plackett_burman");
+    assert_eq!(j["total_runs"], 12);
+    let runs = j["runs"].as_array().unwrap();
+    assert_eq!(runs.len(), 12);
+    // Balanced, orthogonal columns read back from the JSON.
+    let levels: Vec<Vec<i64>> = runs
+        .iter()
+        .map(|r| {
+            r["levels"]
+                .as_array()
+                .unwrap()
+                .iter()
+                .map(|v| v.as_i64().unwrap())
+                .collect()
+        })
+        .collect();
+    for a in 0..11 {
+        assert_eq!(levels.iter().map(|r| r[a]).sum::<i64>(), 0);
+        for b in a + 1..11 {
+            assert_eq!(levels.iter().map(|r| r[a] * r[b]).sum::<i64>(), 0);
+        }
+    }
+    let pa = j["partial_aliases"].as_object().unwrap();
+    assert_eq!(pa.len(), 11);
+    for (main, list) in pa {
+        let list = list.as_array().unwrap();
+        assert_eq!(list.len(), 45, "{main}");
+        for e in list {
+            let term = e["term"].as_str().unwrap();
+            assert!(!term.contains(main.as_str()), "{main}: {term}");
+            let c = e["coefficient"].as_f64().unwrap();
+            assert!((c.abs() - 1.0 / 3.0).abs() < 1e-12, "{main} {term} {c}");
+        }
+    }
+    // A regular design says so.
+    let r = plan_json(&["--factors", "5", "--runs", "16", "--seed", "1"]);
+    assert_eq!(r["family"], "regular");
+    // Centre points and replicates are planned; blocks are not offered yet.
+    let c = plan_json(&[
+        "--factors",
+        "7",
+        "--runs",
+        "20",
+        "--centre-points",
+        "3",
+        "--replicates",
+        "2",
+        "--seed",
+        "1",
+    ]);
+    assert_eq!(c["total_runs"], 43);
+    let (code, _, err) = run(&["plan", "--factors", "7", "--runs", "20", "--blocks", "2"]);
+    assert_eq!(code, 2);
+    assert_eq!(err.lines().count(), 1, "{err}");
+    let (code, _, err) = run(&["plan", "--factors", "12", "--runs", "12"]);
+    assert_eq!(code, 2, "12 factors do not fit in 12 runs");
+    assert!(err.contains("2 to 11 factors"), "{err}");
+}

@@ -20,6 +20,7 @@ pub mod foldover;
 pub mod ofat;
 pub mod plan;
 pub mod power;
+pub mod screening;
 pub mod search;
 
 // Analysis.

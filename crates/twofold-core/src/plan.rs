@@ -262,6 +262,15 @@ pub fn shuffle<T>(items: &mut [T], rng: &mut ChaCha20Rng) {
     }
 }
 
+/// The positions `0..n` in the random order of `seed` (the [`shuffle`] of the ChaCha20 stream
+/// seeded with it), for run sheets built outside [`build_plan`].
+pub fn shuffled_positions(n: usize, seed: u64) -> Vec<usize> {
+    let mut order: Vec<usize> = (0..n).collect();
+    let mut rng = ChaCha20Rng::seed_from_u64(seed);
+    shuffle(&mut order, &mut rng);
+    order
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

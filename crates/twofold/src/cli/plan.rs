@@ -126,6 +126,17 @@ struct Planned {
 
 /// Runs `twofold plan`.
 pub fn run(args: &PlanArgs, out: &mut dyn Write, err: &mut dyn Write) -> i32 {
+    if super::plan_screening::is_screening(args) {
+        let names = match screening_names(args) {
+            Ok(n) => n,
+            Err(e) => {
+                let _ = writeln!(err, "error: {e}");
+                return EXIT_BAD_INPUT;
+            }
+        };
+        let seed = args.seed.unwrap_or_else(clock_seed);
+        return super::plan_screening::run(args, names, seed, out, err);
+    }
     let planned = match compute(args) {
         Ok(p) => p,
         Err(e) => {
@@ -149,6 +160,17 @@ pub fn run(args: &PlanArgs, out: &mut dyn Write, err: &mut dyn Write) -> i32 {
             EXIT_FAILURE
         }
     }
+}
+
+/// The checked factor names of a screening plan.
+fn screening_names(a: &PlanArgs) -> Result<Vec<String>, PlanInputError> {
+    if a.json && a.csv {
+        return Err(invalid("choose one of --json and --csv"));
+    }
+    let factors = a.factors.as_deref().ok_or_else(|| {
+        invalid("--factors is required: a count (5) or names (\"Temp,Time,Speed\")")
+    })?;
+    factor_names(factors)
 }
 
 fn compute(a: &PlanArgs) -> Result<Planned, PlanInputError> {
@@ -363,6 +385,7 @@ fn to_json(p: &Planned) -> Value {
         })
     });
     json!({
+        "family": "regular",
         "factors": LETTERS[..k].iter().map(|c| c.to_string()).collect::<Vec<_>>(),
         "factor_names": p.names,
         "base_runs": p.design.base_runs(),
