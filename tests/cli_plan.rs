@@ -212,7 +212,7 @@ fn bad_input_gives_one_line_and_exit_code_two() {
         (&["plan", "--factors", "1"], "2 to 25 factors"),
         (&["plan", "--factors", "26"], "2 to 25 factors"),
         (
-            &["plan", "--factors", "5", "--runs", "12"],
+            &["plan", "--factors", "5", "--runs", "10"],
             "not a power of two",
         ),
         (
@@ -516,6 +516,23 @@ fn twelve_runs_give_the_screening_design_with_its_partial_aliases() {
         "1",
     ]);
     assert_eq!(c["total_runs"], 43);
+    // The full fold-over doubles the runs into two blocks and clears every main effect of the
+    // two-factor interactions (the mirror image cancels each partial alias).
+    let f = plan_json(&[
+        "--factors",
+        "7",
+        "--runs",
+        "12",
+        "--fold",
+        "full",
+        "--seed",
+        "1",
+    ]);
+    assert_eq!(f["total_runs"], 24);
+    assert_eq!(f["blocks"], 2);
+    for (main, list) in f["partial_aliases"].as_object().unwrap() {
+        assert!(list.as_array().unwrap().is_empty(), "{main}: {list}");
+    }
     let (code, _, err) = run(&["plan", "--factors", "7", "--runs", "20", "--blocks", "2"]);
     assert_eq!(code, 2);
     assert_eq!(err.lines().count(), 1, "{err}");

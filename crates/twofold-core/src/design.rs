@@ -46,7 +46,9 @@ pub enum DesignError {
     #[error("generator `{0}` is a product of the other generators (they are not independent)")]
     Dependent(String),
     /// The number of runs is not a power of two.
-    #[error("{0} runs is not a power of two (a two-level fraction has 4, 8, 16, 32, ... runs)")]
+    #[error(
+        "{0} runs is not a power of two (a two-level fraction has 4, 8, 16, 32, ... runs; screening designs have 12, 20, 24, 28, 36, 40, 44 or 48)"
+    )]
     RunsNotPowerOfTwo(usize),
     /// More runs than the full factorial.
     #[error("{runs} runs is more than the full factorial of {factors} factors ({full} runs)")]

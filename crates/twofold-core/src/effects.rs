@@ -287,7 +287,47 @@ fn classify_layout(obs: &Observations, aliasing: &AliasStructure, rows: &[usize]
     if let Some(found) = classify_by_block_contrasts(obs, aliasing, rows, &distinct_blocks) {
         return found;
     }
+    if !aliasing.is_regular() && main_effects_orthogonal(obs, rows, &distinct_blocks) {
+        // A non-regular screening layout (Plackett & Burman 1946): the main effects are
+        // estimated by their own contrasts and every interaction is partially aliased with
+        // them, so only the main effects are listed and the remaining degrees of freedom go to
+        // the error (the usual analysis of such designs; Montgomery, *Design and Analysis of
+        // Experiments*, section on Plackett-Burman designs; from memory).
+        let candidates: Vec<usize> = chains
+            .iter()
+            .enumerate()
+            .filter(|(_, c)| c.representative.order() == 1)
+            .map(|(i, _)| i)
+            .collect();
+        return LayoutClasses {
+            dependent: chains.len() - candidates.len(),
+            candidates,
+            confounded: Vec::new(),
+        };
+    }
     classify_by_columns(obs, aliasing, rows)
+}
+
+/// Whether every main-effect column of the layout is balanced within every block and
+/// orthogonal to every other.
+fn main_effects_orthogonal(obs: &Observations, rows: &[usize], blocks: &BTreeSet<u32>) -> bool {
+    let levels = obs.levels();
+    let k = obs.factor_count();
+    let col = |f: usize| rows.iter().map(move |&r| levels[r][f]);
+    let balanced = |f: usize| {
+        blocks.iter().all(|b| {
+            rows.iter()
+                .filter(|&&r| obs.blocks()[r] == *b)
+                .map(|&r| levels[r][f])
+                .sum::<f64>()
+                .abs()
+                < 1e-9
+        })
+    };
+    (0..k).all(|a| {
+        balanced(a)
+            && (a + 1..k).all(|b| col(a).zip(col(b)).map(|(x, y)| x * y).sum::<f64>().abs() < 1e-9)
+    })
 }
 
 /// The greedy rank check of [`classify_layout`] for a blocked regular layout in which every cell

@@ -76,7 +76,7 @@ pub struct ScreeningDesign {
 }
 
 fn is_prime(n: usize) -> bool {
-    n >= 2 && (2..).take_while(|d| d * d <= n).all(|d| n % d != 0)
+    n >= 2 && (2..).take_while(|d| d * d <= n).all(|d| !n.is_multiple_of(d))
 }
 
 /// Legendre symbol of `a` mod prime `q`: 0, +1 (quadratic residue) or −1.
@@ -106,7 +106,7 @@ fn hadamard(n: usize) -> Option<Vec<Vec<i8>>> {
         h.push(last);
         return Some(h);
     }
-    if n % 2 == 0 {
+    if n.is_multiple_of(2) {
         let q = n / 2 - 1;
         if is_prime(q) && q % 4 == 1 {
             // Conference matrix C of order q + 1, symmetric.
@@ -136,7 +136,7 @@ fn hadamard(n: usize) -> Option<Vec<Vec<i8>>> {
             }
             return Some(normalised(h));
         }
-        if n % 4 == 0 && SCREENING_RUNS.contains(&(n / 2)) {
+        if n.is_multiple_of(4) && SCREENING_RUNS.contains(&(n / 2)) {
             let half = hadamard(n / 2)?;
             let mut h = Vec::with_capacity(n);
             for r in &half {
@@ -241,6 +241,85 @@ pub fn plackett_burman(runs: usize, factors: usize) -> Result<ScreeningDesign, S
         rows,
         b3,
     })
+}
+
+/// The run sheet of a screening design: `replicates` copies of its runs, then
+/// `centre_points` centre points, one block; in random order from `seed` when `randomise`
+/// (the same shuffle as regular plans, [`crate::plan::shuffled_positions`]). With `fold`, the
+/// full fold-over follows as block 2: every run with every sign switched, in its own random
+/// order (seed + 1), so the first block keeps its order. The fold-over's runs make each main
+/// effect orthogonal to every two-factor interaction: the product of a main-effect column with a
+/// two-factor interaction column is of odd degree, so its sum over a run and its mirror image
+/// cancels (Box, Hunter & Hunter, *Statistics for Experimenters*, on folding over; from memory).
+/// Runs are listed in run order.
+pub fn screening_runs(
+    design: &ScreeningDesign,
+    replicates: usize,
+    centre_points: usize,
+    seed: u64,
+    randomise: bool,
+    fold: bool,
+) -> Vec<crate::plan::PlannedRun> {
+    use crate::plan::PlannedRun;
+    let mut sheet: Vec<PlannedRun> = Vec::new();
+    for rep in 1..=replicates.max(1) {
+        for row in &design.rows {
+            sheet.push(PlannedRun {
+                std_order: sheet.len() + 1,
+                run_order: 0,
+                block: 1,
+                centre: false,
+                replicate: u32::try_from(rep).unwrap_or(u32::MAX),
+                levels: row.clone(),
+            });
+        }
+    }
+    for _ in 0..centre_points {
+        sheet.push(PlannedRun {
+            std_order: sheet.len() + 1,
+            run_order: 0,
+            block: 1,
+            centre: true,
+            replicate: 1,
+            levels: vec![0; design.factors],
+        });
+    }
+    let order: Vec<usize> = if randomise {
+        crate::plan::shuffled_positions(sheet.len(), seed)
+    } else {
+        (0..sheet.len()).collect()
+    };
+    for (position, &i) in order.iter().enumerate() {
+        sheet[i].run_order = position + 1;
+    }
+    sheet.sort_by_key(|r| r.run_order);
+    if fold {
+        let first = sheet.len();
+        let mut mirror: Vec<PlannedRun> = design
+            .rows
+            .iter()
+            .enumerate()
+            .map(|(i, row)| PlannedRun {
+                std_order: first + i + 1,
+                run_order: 0,
+                block: 2,
+                centre: false,
+                replicate: 1,
+                levels: row.iter().map(|v| -v).collect(),
+            })
+            .collect();
+        let order: Vec<usize> = if randomise {
+            crate::plan::shuffled_positions(mirror.len(), seed.wrapping_add(1))
+        } else {
+            (0..mirror.len()).collect()
+        };
+        for (position, &i) in order.iter().enumerate() {
+            mirror[i].run_order = first + position + 1;
+        }
+        mirror.sort_by_key(|r| r.run_order);
+        sheet.extend(mirror);
+    }
+    sheet
 }
 
 /// One main effect's partial aliases: the two-factor interactions with a non-zero coefficient.
@@ -375,6 +454,20 @@ mod tests {
         for c in 0..5 {
             assert_eq!(d.rows.iter().map(|r| i32::from(r[c])).sum::<i32>(), 0);
         }
+    }
+
+    #[test]
+    fn the_fold_over_clears_every_main_effect_of_the_interactions() {
+        let d = plackett_burman(12, 7).unwrap_or_else(|e| panic!("{e}"));
+        let sheet = screening_runs(&d, 1, 0, 9, true, true);
+        assert_eq!(sheet.len(), 24);
+        assert_eq!(sheet.iter().filter(|r| r.block == 2).count(), 12);
+        // The first block keeps the order it has without the fold-over.
+        let alone = screening_runs(&d, 1, 0, 9, true, false);
+        assert_eq!(&sheet[..12], &alone[..]);
+        let rows: Vec<Vec<i8>> = sheet.iter().map(|r| r.levels.clone()).collect();
+        let list = partial_aliases(&rows).unwrap_or_default();
+        assert!(list.iter().all(|p| p.aliases.is_empty()), "{list:?}");
     }
 
     #[test]

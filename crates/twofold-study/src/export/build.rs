@@ -234,7 +234,17 @@ fn design_facts(project: &Project, warnings: &mut Vec<String>) -> DesignFacts {
         tangled_chains: 0,
         seed: d.randomize.then_some(d.seed),
         detectable: None,
+        screening_runs: d
+            .base_runs
+            .map(|n| n as usize)
+            .filter(|n| twofold_core::screening::SCREENING_RUNS.contains(n)),
     };
+    if let Some(n) = facts.screening_runs {
+        warnings.push(format!(
+            "This {n}-run screening design estimates main effects only; each is partially aliased with two-factor interactions, so a real interaction shifts the main effects seen (a fold-over separates them)."
+        ));
+        return facts;
+    }
     if k == 0 || generators.is_empty() {
         return facts;
     }

@@ -144,6 +144,9 @@ pub struct DesignFacts {
     pub tangled_chains: usize,
     /// Seed of the run-order randomisation; `None` when runs are in standard order.
     pub seed: Option<u64>,
+    /// Runs of a Plackett–Burman screening design (`None` for a regular design).
+    #[serde(default)]
+    pub screening_runs: Option<usize>,
     /// What the design can see, in words ("an effect of 3.8 is found with probability 0.8 …"),
     /// when a process standard deviation was given.
     #[serde(default)]

@@ -119,7 +119,21 @@ impl Project {
             return Err(FollowUpError::Outdated);
         }
         let mut d = self.design.clone();
+        let screening = d
+            .base_runs
+            .is_some_and(|n| twofold_core::screening::SCREENING_RUNS.contains(&(n as usize)));
         match follow_up {
+            FollowUp::FoldOver(kind) if screening => {
+                if d.fold.is_some() {
+                    return Err(FollowUpError::AlreadyFolded);
+                }
+                if kind != twofold_core::foldover::FoldKind::Full {
+                    return Err(FollowUpError::from(PlanError::Invalid(
+                        "a screening design is folded over in full; single-factor folds are not offered for it".into(),
+                    )));
+                }
+                d.fold = Some(kind);
+            }
             FollowUp::FoldOver(kind) => {
                 if d.fold.is_some() {
                     return Err(FollowUpError::AlreadyFolded);
@@ -138,7 +152,8 @@ impl Project {
                 d.centre_points_per_block = CENTRE_POINTS_ADDED;
             }
             FollowUp::Replicate => {
-                if d.replicates == 1 && d.fold.is_none() {
+                // Screening designs are planned in one block (their blocking is not offered yet).
+                if d.replicates == 1 && d.fold.is_none() && !screening {
                     d.replicates_as_blocks = true;
                 }
                 d.replicates = d.replicates.saturating_add(1);

@@ -74,6 +74,11 @@ pub(crate) fn plan_runs(
         return Err(PlanError::Invalid(p.message));
     }
     let k = project.factors.len();
+    if let Some(n) = design.base_runs.map(|n| n as usize)
+        && twofold_core::screening::SCREENING_RUNS.contains(&n)
+    {
+        return screening_sheet(project, design, n);
+    }
     let fraction = fraction_of(k, design)?;
     let blocking = match &design.blocks {
         BlockChoice::Count(n) if *n <= 1 => Blocking::None,
@@ -143,6 +148,67 @@ pub(crate) fn fraction_of(
     } else {
         FractionalDesign::from_text(k, runs, &design.generators.join(","))?
     })
+}
+
+/// The sheet of a Plackett–Burman screening design of `n` runs (no generators, one block, no
+/// fold-over yet): replicates and centre points as for regular designs.
+fn screening_sheet(
+    project: &Project,
+    design: &DesignSettings,
+    n: usize,
+) -> Result<(Vec<RunRecord>, DesignSettings), PlanError> {
+    let blocked = match &design.blocks {
+        BlockChoice::Count(b) => *b > 1,
+        BlockChoice::Generators(g) => g.iter().any(|t| !t.trim().is_empty()),
+    };
+    let fold = match design.fold {
+        None => false,
+        Some(twofold_core::foldover::FoldKind::Full) => true,
+        Some(_) => {
+            return Err(PlanError::Invalid(format!(
+                "a {n}-run screening design is folded over in full; single-factor folds are not offered for it"
+            )));
+        }
+    };
+    if blocked || design.replicates_as_blocks {
+        return Err(PlanError::Invalid(format!(
+            "a {n}-run screening design is planned in one block (other blocking of screening designs is not offered yet)"
+        )));
+    }
+    if design.generators.iter().any(|g| !g.trim().is_empty()) {
+        return Err(PlanError::Invalid(format!(
+            "a {n}-run screening design has no generators: clear them or choose a regular fraction"
+        )));
+    }
+    let k = project.factors.len();
+    let pb = twofold_core::screening::plackett_burman(n, k)
+        .map_err(|e| PlanError::Invalid(e.to_string()))?;
+    let runs = twofold_core::screening::screening_runs(
+        &pb,
+        design.replicates as usize,
+        design.centre_points_per_block as usize,
+        design.seed,
+        design.randomize,
+        fold,
+    );
+    let responses = project.responses.len();
+    let mut out: Vec<RunRecord> = runs
+        .into_iter()
+        .map(|r| RunRecord {
+            std_order: u32::try_from(r.std_order).unwrap_or(u32::MAX),
+            run_order: u32::try_from(r.run_order).unwrap_or(u32::MAX),
+            block: r.block,
+            centre: r.centre,
+            replicate: r.replicate,
+            levels: r.levels,
+            values: vec![Cell::default(); responses],
+            status: RunStatus::ToDo,
+            note: String::new(),
+            entered_at: None,
+        })
+        .collect();
+    out.sort_by_key(|r| r.std_order);
+    Ok((out, design.clone()))
 }
 
 /// Key matching an old run to a new one.

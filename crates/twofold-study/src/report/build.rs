@@ -296,9 +296,58 @@ impl Report {
         self.collect_warnings();
     }
 
+    /// For a non-regular screening layout whose effects are the main effects alone: how the main
+    /// effects of the model are partially aliased with two-factor interactions (the core's alias
+    /// matrix of the planned runs).
+    fn partial_alias_warning(&self) -> Option<String> {
+        let table = self.effects.as_ref().ok()?;
+        if table.aliasing.is_regular()
+            || table.layout_dependent == 0
+            || table.effects.iter().any(|e| e.term.order() != 1)
+        {
+            return None;
+        }
+        let obs = self.observations.as_ref().ok()?;
+        let rows: Vec<Vec<i8>> = obs
+            .levels()
+            .iter()
+            .filter(|r| r.iter().all(|v| v.abs() == 1.0))
+            .map(|r| r.iter().map(|v| *v as i8).collect())
+            .collect();
+        let list = twofold_core::screening::partial_aliases(&rows)?;
+        let fitted: Vec<Term> = self
+            .fit
+            .as_ref()
+            .map(|f| f.terms.clone())
+            .unwrap_or_default();
+        let parts: Vec<String> = list
+            .iter()
+            .filter(|p| fitted.contains(&p.term) && !p.aliases.is_empty())
+            .map(|p| {
+                let largest = p.aliases.iter().map(|(_, c)| c.abs()).fold(0.0, f64::max);
+                format!(
+                    "{} with {} (coefficients up to ±{})",
+                    p.term.label(),
+                    p.aliases.len(),
+                    crate::numbers::fmt_sig(largest, 2)
+                )
+            })
+            .collect();
+        if parts.is_empty() {
+            return None;
+        }
+        Some(format!(
+            "This screening design estimates main effects only, and each is partially aliased with two-factor interactions: {}. An active interaction shifts the main effects it is aliased with; a fold-over separates them.",
+            parts.join("; ")
+        ))
+    }
+
     /// Puts the plain-words warnings together from the results.
     fn collect_warnings(&mut self) {
         let mut warnings = Vec::new();
+        if let Some(text) = self.partial_alias_warning() {
+            push_warning(&mut warnings, WarningKind::Effects, text);
+        }
         if let Ok(table) = &self.effects {
             if !table.not_estimable.is_empty() {
                 let list: Vec<String> = table
@@ -441,6 +490,9 @@ fn pair_means(obs: &Observations) -> Vec<PairMeans> {
     }
     out
 }
+
+#[cfg(test)]
+mod screening_tests;
 
 #[cfg(test)]
 mod tests {

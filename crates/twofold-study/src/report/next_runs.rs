@@ -319,6 +319,50 @@ pub fn next_runs(project: &Project, report: Option<&Report>) -> Vec<NextRun> {
             ));
         }
     }
+    let screening = project
+        .design
+        .base_runs
+        .map(|n| n as usize)
+        .filter(|n| twofold_core::screening::SCREENING_RUNS.contains(n));
+    if let Some(n) = screening
+        && project.design.fold.is_none()
+    {
+        // The mirror image of a screening design cancels every partial alias of a main effect
+        // with a two-factor interaction (see `twofold_core::screening::screening_runs`).
+        let active_mains: Vec<String> = active
+            .iter()
+            .filter(|t| t.order() == 1)
+            .map(|t| t.label())
+            .collect();
+        let (score, words) = if active_mains.is_empty() {
+            (0, Vec::new())
+        } else {
+            (
+                active_mains.len(),
+                vec![format!(
+                    "the active main effects {} are each partially aliased with two-factor interactions",
+                    active_mains.join(", ")
+                )],
+            )
+        };
+        out.push((
+            score,
+            words,
+            NextRun {
+                follow_up: FollowUp::FoldOver(FoldKind::Full),
+                title: "Full fold-over (every sign switched)".to_string(),
+                resolves: vec![
+                    format!(
+                        "Runs the {n} mirror-image runs as block 2: every main effect becomes clear of every two-factor interaction, so an active interaction no longer shifts them."
+                    ),
+                ],
+                resolution_after: None,
+                preview: preview(FollowUp::FoldOver(FoldKind::Full)),
+                suggested: false,
+                reason: None,
+            },
+        ));
+    }
     if project.design.centre_points_per_block == 0 {
         let p = preview(FollowUp::CentrePoints);
         let mut resolves = vec![

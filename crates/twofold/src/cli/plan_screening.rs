@@ -9,8 +9,10 @@
 use std::io::Write;
 
 use serde_json::{Map, Value, json};
-use twofold_core::plan::shuffled_positions;
-use twofold_core::screening::{PartialAliases, SCREENING_RUNS, partial_aliases, plackett_burman};
+use twofold_core::plan::PlannedRun;
+use twofold_core::screening::{
+    PartialAliases, SCREENING_RUNS, partial_aliases, plackett_burman, screening_runs,
+};
 use twofold_core::term::LETTERS;
 use twofold_study::numbers::fmt_sig;
 use twofold_study::planning::{RunCounts, design_power};
@@ -24,25 +26,17 @@ pub(crate) fn is_screening(a: &PlanArgs) -> bool {
     a.runs.is_some_and(|n| SCREENING_RUNS.contains(&n))
 }
 
-/// One run of the sheet.
-struct Run {
-    std_order: usize,
-    run_order: usize,
-    centre: bool,
-    replicate: usize,
-    levels: Vec<i8>,
-}
-
 struct Screening {
     names: Vec<String>,
     runs: usize,
     columns: Vec<usize>,
     b3: f64,
     aliases: Vec<PartialAliases>,
-    sheet: Vec<Run>,
+    sheet: Vec<PlannedRun>,
     seed: u64,
     replicates: usize,
     centre_points: usize,
+    fold: bool,
     power: Option<Result<twofold_study::planning::DesignPower, String>>,
 }
 
@@ -58,11 +52,15 @@ fn compute(a: &PlanArgs, names: Vec<String>, seed: u64) -> Result<Screening, Str
             "blocks of a {n}-run screening design are not offered yet: plan it unblocked"
         ));
     }
-    if a.fold.is_some() {
-        return Err(format!(
-            "--fold of a {n}-run screening design is not offered yet"
-        ));
-    }
+    let fold = match a.fold.as_deref().map(str::trim) {
+        None => false,
+        Some(f) if f.eq_ignore_ascii_case("full") => true,
+        Some(_) => {
+            return Err(format!(
+                "--fold: a {n}-run screening design is folded over in full (--fold full); single-factor folds are not offered for it"
+            ));
+        }
+    };
     let k = names.len();
     let design = plackett_burman(n, k).map_err(|e| e.to_string())?;
     let aliases = partial_aliases(&design.rows)
@@ -72,36 +70,24 @@ fn compute(a: &PlanArgs, names: Vec<String>, seed: u64) -> Result<Screening, Str
         return Err("--replicates must be at least 1".into());
     }
     let centre_points = a.centre_points.unwrap_or(0);
-    let mut sheet = Vec::new();
-    for rep in 1..=replicates {
-        for row in &design.rows {
-            sheet.push(Run {
-                std_order: sheet.len() + 1,
-                run_order: 0,
-                centre: false,
-                replicate: rep,
-                levels: row.clone(),
-            });
-        }
-    }
-    for _ in 0..centre_points {
-        sheet.push(Run {
-            std_order: sheet.len() + 1,
-            run_order: 0,
-            centre: true,
-            replicate: 1,
-            levels: vec![0; k],
-        });
-    }
-    let order: Vec<usize> = if a.standard_order {
-        (0..sheet.len()).collect()
+    let sheet = screening_runs(
+        &design,
+        replicates,
+        centre_points,
+        seed,
+        !a.standard_order,
+        fold,
+    );
+    let aliases = if fold {
+        let rows: Vec<Vec<i8>> = sheet
+            .iter()
+            .filter(|r| !r.centre)
+            .map(|r| r.levels.clone())
+            .collect();
+        partial_aliases(&rows).unwrap_or(aliases)
     } else {
-        shuffled_positions(sheet.len(), seed)
+        aliases
     };
-    for (position, &i) in order.iter().enumerate() {
-        sheet[i].run_order = position + 1;
-    }
-    sheet.sort_by_key(|r| r.run_order);
     let power = match a.sigma.as_deref() {
         None if a.alpha.is_some() || a.power.is_some() || a.effect.is_some() => {
             return Err(
@@ -118,10 +104,10 @@ fn compute(a: &PlanArgs, names: Vec<String>, seed: u64) -> Result<Screening, Str
                 .filter(|s| s.is_finite() && *s > 0.0)
                 .ok_or_else(|| format!("--sigma must be a number above 0, not {text:?}"))?;
             let counts = RunCounts {
-                per_replicate: n,
+                per_replicate: if fold { 2 * n } else { n },
                 replicates,
                 centre: centre_points,
-                blocks_per_replicate: 1,
+                blocks_per_replicate: if fold { 2 } else { 1 },
                 replicates_as_blocks: false,
                 terms: k,
             };
@@ -155,6 +141,7 @@ fn compute(a: &PlanArgs, names: Vec<String>, seed: u64) -> Result<Screening, Str
         seed,
         replicates,
         centre_points,
+        fold,
         power,
     })
 }
@@ -193,7 +180,7 @@ fn to_json(s: &Screening) -> Value {
             json!({
                 "std_order": r.std_order,
                 "run_order": r.run_order,
-                "block": 1,
+                "block": r.block,
                 "centre": r.centre,
                 "replicate": r.replicate,
                 "levels": r.levels,
@@ -208,7 +195,8 @@ fn to_json(s: &Screening) -> Value {
         "total_runs": s.sheet.len(),
         "centre_points_per_block": s.centre_points,
         "replicates": s.replicates,
-        "blocks": 1,
+        "blocks": if s.fold { 2 } else { 1 },
+        "fold_over": if s.fold { json!({ "kind": "full" }) } else { Value::Null },
         "generators": Vec::<String>::new(),
         "resolution": Value::Null,
         "columns_used": s.columns.iter().map(|c| c + 1).collect::<Vec<_>>(),
@@ -315,7 +303,7 @@ fn write_csv(s: &Screening, out: &mut dyn Write) -> std::io::Result<()> {
         let mut row = vec![
             r.run_order.to_string(),
             r.std_order.to_string(),
-            "1".to_string(),
+            r.block.to_string(),
             if r.centre { "yes" } else { "no" }.to_string(),
             r.replicate.to_string(),
         ];

@@ -7,6 +7,7 @@
 
 mod aliases;
 pub mod power;
+pub mod screening;
 
 use egui::{Grid, RichText, Ui};
 
@@ -54,6 +55,8 @@ pub struct DesignPane {
     pending: Option<(usize, Job<OptionsResult>)>,
     /// Alias report of the draft, cached for one (factor count, generators) key.
     preview: Option<(PreviewKey, Result<AliasReport, String>)>,
+    /// Partial aliasing of a screening draft in words, cached for one (factors, runs) key.
+    screening_preview: Option<((usize, usize), Vec<String>)>,
     /// A run size was just picked: the button that makes the run sheet takes the keyboard, so
     /// choosing and confirming are two key presses.
     focus_make: bool,
@@ -340,6 +343,8 @@ fn options_table(
                 ui.end_row();
             }
         });
+    let regular_sizes: Vec<usize> = options.iter().map(|o| o.runs).collect();
+    screening::table(pane, ui, view, k, draft, &regular_sizes);
 }
 
 fn generators_row(

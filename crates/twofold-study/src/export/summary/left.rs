@@ -90,7 +90,9 @@ const FACTORS: &str = "Factors";
 fn design(svg: &mut Svg, flow: &mut Flow, input: &SummaryInput, more: &mut More) {
     let d = &input.design;
     flow.heading(svg, "Design");
-    let mut kind = if d.generators_count == 0 {
+    let mut kind = if let Some(n) = d.screening_runs {
+        format!("{n}-run Plackett–Burman screening design")
+    } else if d.generators_count == 0 {
         format!("{} full factorial", fraction_symbol(d.factors, 0))
     } else {
         format!(
@@ -132,7 +134,9 @@ fn design(svg: &mut Svg, flow: &mut Flow, input: &SummaryInput, more: &mut More)
         ));
     }
     flow.fact(svg, "Blocks", &blocks, LABEL_W, 4);
-    let generators = if d.generators.is_empty() {
+    let generators = if d.screening_runs.is_some() {
+        "none (the runs come from Plackett & Burman's construction)".to_string()
+    } else if d.generators.is_empty() {
         "none (every combination is run)".to_string()
     } else {
         d.generators.join(", ")
@@ -159,6 +163,16 @@ fn alias_chains(svg: &mut Svg, flow: &mut Flow, d: &DesignFacts, more: &mut More
         .iter()
         .chain(&d.interaction_chains)
         .collect();
+    if d.screening_runs.is_some() {
+        flow.fact(
+            svg,
+            "Aliases",
+            "partial: the main effects are orthogonal to each other, and each is partially aliased with the two-factor interactions that do not contain it",
+            LABEL_W,
+            4,
+        );
+        return;
+    }
     if chains.is_empty() {
         let text = if d.generators_count == 0 {
             "none: main effects and interactions are all estimated clear"
