@@ -51,7 +51,7 @@ pub(super) fn power_row(ui: &mut Ui, view: &View<'_>, out: &mut Vec<Command>) {
         }
     });
     ui.weak(
-        "σ in the units of the response you plan for: from repeat measurements, or an earlier study's residual SD (\"Plan with this SD\" on \"Can the model be trusted?\"); the column below then shows the smallest effect each design finds with that power (two-sided t test of one effect, main-effects model).",
+        "σ in the units of the response you plan for: from repeat measurements, or an earlier study's residual SD (\"Plan with this SD\" on \"Can the model be trusted?\"); the tables above then show the smallest effect each design finds with that power (two-sided t test of one effect, main-effects model).",
     );
     let bad = |p: f64| !(p > 0.0 && p < 1.0);
     if next.sigma.is_some_and(|s| s <= 0.0) || bad(next.alpha) || bad(next.power) {

@@ -50,6 +50,21 @@ pub(super) fn table(
                 .num_columns(8)
                 .spacing([14.0, 4.0])
                 .show(ui, |ui| {
+                    for h in [
+                        "",
+                        "Runs",
+                        "Resolution",
+                        "Aliasing",
+                        "Clear 2FIs",
+                        "One-at-a-time equivalent",
+                        "Construction",
+                    ] {
+                        ui.label(RichText::new(h).strong().color(view.pal.muted));
+                    }
+                    if let Some(h) = power::power_heading(&view.project.power) {
+                        ui.label(RichText::new(h).strong().color(view.pal.muted));
+                    }
+                    ui.end_row();
                     for n in offered {
                         row(pane, ui, view, k, draft, n);
                     }
