@@ -540,3 +540,61 @@ fn twelve_runs_give_the_screening_design_with_its_partial_aliases() {
     assert_eq!(code, 2, "12 factors do not fit in 12 runs");
     assert!(err.contains("2 to 11 factors"), "{err}");
 }
+
+#[test]
+fn hard_to_change_factors_group_the_runs_into_whole_plots() {
+    // 2^4 with A hard to change: two whole plots of eight runs; A is the only whole-plot main
+    // effect or two-factor interaction (its column alone is constant in each whole plot; by hand).
+    let j = plan_json(&[
+        "--factors",
+        "Temp,Time,Speed,Load",
+        "--hard-to-change",
+        "Temp",
+        "--seed",
+        "4",
+    ]);
+    assert_eq!(j["resets"], 2);
+    // 1 + 15 · (1 − 2·8·7 / (16·15)) = 9 in a completely random order (by hand).
+    assert!((j["resets_if_randomised"].as_f64().unwrap() - 9.0).abs() < 1e-12);
+    assert_eq!(j["strata"]["whole_plot"], serde_json::json!(["A"]));
+    assert!(
+        j["strata"]["subplot"]
+            .as_array()
+            .unwrap()
+            .contains(&serde_json::json!("AB"))
+    );
+    let runs = j["runs"].as_array().unwrap();
+    // Runs of one whole plot follow each other, with A fixed inside it.
+    let wp: Vec<u64> = runs
+        .iter()
+        .map(|r| r["whole_plot"].as_u64().unwrap())
+        .collect();
+    assert_eq!(wp.windows(2).filter(|w| w[0] != w[1]).count(), 1);
+    for w in 1..=2u64 {
+        let a: Vec<i64> = runs
+            .iter()
+            .filter(|r| r["whole_plot"] == w)
+            .map(|r| r["levels"][0].as_i64().unwrap())
+            .collect();
+        assert_eq!(a.len(), 8);
+        assert!(a.iter().all(|&x| x == a[0]));
+    }
+    // Two hard-to-change factors of a half fraction: four whole plots, AB among the whole-plot
+    // terms (the interaction of two whole-plot factors is constant in each whole plot).
+    let j = plan_json(&[
+        "--factors",
+        "5",
+        "--runs",
+        "16",
+        "--hard-to-change",
+        "A,B",
+        "--seed",
+        "2",
+    ]);
+    assert_eq!(j["resets"], 4);
+    let whole = j["strata"]["whole_plot"].as_array().unwrap();
+    assert!(whole.contains(&serde_json::json!("AB")), "{whole:?}");
+    let (code, _, err) = run(&["plan", "--factors", "3", "--hard-to-change", "A,B,C"]);
+    assert_eq!(code, 2);
+    assert!(err.contains("easy to change"), "{err}");
+}

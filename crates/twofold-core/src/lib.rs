@@ -22,6 +22,7 @@ pub mod plan;
 pub mod power;
 pub mod screening;
 pub mod search;
+pub mod splitplot;
 
 // Analysis.
 pub mod anova;

@@ -76,7 +76,10 @@ pub struct ScreeningDesign {
 }
 
 fn is_prime(n: usize) -> bool {
-    n >= 2 && (2..).take_while(|d| d * d <= n).all(|d| !n.is_multiple_of(d))
+    n >= 2
+        && (2..)
+            .take_while(|d| d * d <= n)
+            .all(|d| !n.is_multiple_of(d))
 }
 
 /// Legendre symbol of `a` mod prime `q`: 0, +1 (quadratic residue) or −1.

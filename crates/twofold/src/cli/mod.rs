@@ -16,6 +16,7 @@ pub mod export;
 pub mod plan;
 mod plan_power;
 mod plan_screening;
+mod plan_split;
 
 /// Exit code for bad input.
 pub const EXIT_BAD_INPUT: i32 = 2;

@@ -71,6 +71,10 @@ pub struct PlanArgs {
     /// Keep the runs in standard order instead of randomising them
     #[arg(long = "standard-order")]
     pub standard_order: bool,
+    /// Factors that are hard to change, by letter or name, e.g. "Temp,Time": the runs are grouped
+    /// into whole plots in which they stay fixed
+    #[arg(long = "hard-to-change", value_name = "LIST")]
+    pub hard_to_change: Option<String>,
     /// Add the fold-over: `full` (all signs reversed) or one factor letter (that factor reversed)
     #[arg(long, value_name = "full|A")]
     pub fold: Option<String>,
@@ -119,6 +123,7 @@ struct Planned {
     plan: Plan,
     seed: u64,
     fold: Option<FoldOver>,
+    split: Option<super::plan_split::SplitPlot>,
     centre_points: usize,
     replicates: usize,
     power: Option<PlanPower>,
@@ -145,7 +150,11 @@ pub fn run(args: &PlanArgs, out: &mut dyn Write, err: &mut dyn Write) -> i32 {
         }
     };
     let written = if args.json {
-        serde_json::to_string_pretty(&to_json(&planned))
+        let mut value = to_json(&planned);
+        if let Some(s) = &planned.split {
+            s.add_to(&mut value);
+        }
+        serde_json::to_string_pretty(&value)
             .map_err(std::io::Error::other)
             .and_then(|s| writeln!(out, "{s}"))
     } else if args.csv {
@@ -256,11 +265,28 @@ fn compute(a: &PlanArgs) -> Result<Planned, PlanInputError> {
             Some(fold_over(&design, kind).map_err(|e| invalid(e.to_string()))?)
         }
     };
-    let plan = match &fold {
+    let mut plan = match &fold {
         None => build_plan(&spec),
         Some(f) => build_fold_over_plan(&spec, f),
     }
     .map_err(|e| invalid(e.to_string()))?;
+    let split = match a.hard_to_change.as_deref() {
+        None => None,
+        Some(list) => {
+            if plan.block_count > 1 {
+                return Err(invalid(
+                    "--hard-to-change: blocks and whole plots together are not offered yet; plan it unblocked",
+                ));
+            }
+            let htc = super::plan_split::parse_factors(list, &names).map_err(invalid)?;
+            Some(super::plan_split::split(
+                &mut plan,
+                &htc,
+                seed,
+                !a.standard_order,
+            ))
+        }
+    };
     let report = match &fold {
         None => alias_report(&design),
         Some(f) => f.combined_aliases.clone(),
@@ -275,6 +301,7 @@ fn compute(a: &PlanArgs) -> Result<Planned, PlanInputError> {
         plan,
         seed,
         fold,
+        split,
         centre_points,
         replicates,
         power,
@@ -541,6 +568,9 @@ fn write_text(p: &Planned, out: &mut dyn Write) -> std::io::Result<()> {
     )?;
     if let Some(power) = &p.power {
         writeln!(out, "{}", power.text())?;
+    }
+    if let Some(s) = &p.split {
+        writeln!(out, "{}", s.text())?;
     }
     writeln!(out, "Seed: {}", p.seed)?;
     writeln!(out)?;
