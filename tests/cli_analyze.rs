@@ -575,3 +575,69 @@ fn a_project_analysis_lists_the_follow_up_runs_with_the_suggested_first() {
         "{text}"
     );
 }
+
+#[test]
+fn a_whole_plot_column_judges_each_stratum_against_its_own_effects() {
+    // An invented 2^5 split-plot study: A and B set an oven that is reset only between whole
+    // plots (four of them, with their own whole-plot error), C, D, E change run to run.
+    // y = 50 + 6A + 2B + 3C + 1.5CD + whole-plot error + a small wobble.
+    let oven = |a: i32, b: i32| match (a, b) {
+        (-1, -1) => (2.0, "oven-1"),
+        (1, -1) => (-1.5, "oven-2"),
+        (-1, 1) => (1.0, "oven-3"),
+        _ => (-1.5, "oven-4"),
+    };
+    let mut text = String::from("A,B,C,D,E,whole_plot,Y\n");
+    for i in 0..32i32 {
+        let l = |f: i32| if i >> f & 1 == 1 { 1 } else { -1 };
+        let (a, b, c, d, e) = (l(0), l(1), l(2), l(3), l(4));
+        let (w, label) = oven(a, b);
+        let wobble = f64::from((i * 37) % 11 - 5) / 20.0;
+        let y = 50.0
+            + 6.0 * f64::from(a)
+            + 2.0 * f64::from(b)
+            + 3.0 * f64::from(c)
+            + 1.5 * f64::from(c * d)
+            + w
+            + wobble;
+        text.push_str(&format!("{a},{b},{c},{d},{e},{label},{y}\n"));
+    }
+    let csv = TempCsv::new(&text);
+    let j = analyze_json(&csv, &[]);
+    assert_eq!(j["whole_plots"], 4);
+    let effects = j["effects"].as_array().unwrap();
+    let stratum = |term: &str| {
+        effects
+            .iter()
+            .find(|e| e["term"] == term)
+            .map(|e| e["stratum"].as_str().unwrap_or("").to_string())
+            .unwrap_or_default()
+    };
+    // A, B and AB are constant inside each whole plot (by hand); everything else varies.
+    for t in ["A", "B", "AB"] {
+        assert_eq!(stratum(t), "whole_plot", "{t}");
+    }
+    for t in ["C", "D", "AC", "CD", "ABC", "ABCDE"] {
+        assert_eq!(stratum(t), "subplot", "{t}");
+    }
+    // Each stratum's margins are Lenth's method on that stratum's contrasts alone (two routes:
+    // the report's and the core's function on the effects read back from the JSON).
+    for (key, m) in [("whole_plot", 3usize), ("subplot", 28)] {
+        let contrasts: Vec<f64> = effects
+            .iter()
+            .filter(|e| e["stratum"] == key)
+            .map(|e| e["effect"].as_f64().unwrap())
+            .collect();
+        assert_eq!(contrasts.len(), m, "{key}");
+        let ours = twofold_core::lenth::lenth(&contrasts).unwrap();
+        let l = &j["lenth_by_stratum"][key];
+        assert_eq!(l["m"], m);
+        assert_close(l["pse"].as_f64().unwrap(), ours.pse, 1e-12, key);
+        assert_close(l["me"].as_f64().unwrap(), ours.me, 1e-12, key);
+    }
+    // The subplot margin is far smaller than one pooled over both strata would be: the large
+    // whole-plot error does not hide the subplot effects.
+    let sub_me = j["lenth_by_stratum"]["subplot"]["me"].as_f64().unwrap();
+    let whole_me = j["lenth_by_stratum"]["whole_plot"]["me"].as_f64().unwrap();
+    assert!(sub_me < whole_me);
+}

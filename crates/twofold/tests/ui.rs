@@ -525,6 +525,7 @@ fn multiplicative_project() -> Project {
             status: RunStatus::Done,
             note: String::new(),
             entered_at: None,
+            whole_plot: None,
         });
     }
     p.responses[0].model.terms = vec!["A".into(), "B".into(), "C".into()];

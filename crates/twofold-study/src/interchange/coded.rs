@@ -96,6 +96,9 @@ pub struct CodedTable {
     pub blocks: Vec<u32>,
     /// Block labels as written, by block number − 1.
     pub block_labels: Vec<String>,
+    /// Whole plot of each run (1 = first label met) of a split-plot study; empty without a
+    /// `whole_plot` column.
+    pub whole_plots: Vec<u32>,
     /// Response columns, in file order.
     pub responses: Vec<ResponseColumn>,
     /// 1-based file line of each run.
@@ -197,7 +200,11 @@ pub fn read_coded_csv(bytes: &[u8]) -> Result<CodedTable, TableError> {
     let has_block = header
         .get(factor_count)
         .is_some_and(|h| h.eq_ignore_ascii_case("block"));
-    let first_response = factor_count + usize::from(has_block);
+    let wp_column = factor_count + usize::from(has_block);
+    let has_whole_plot = header
+        .get(wp_column)
+        .is_some_and(|h| h.eq_ignore_ascii_case("whole_plot"));
+    let first_response = wp_column + usize::from(has_whole_plot);
     if header.len() <= first_response {
         return Err(TableError::NoResponse {
             last: factor_letter(factor_count - 1).unwrap_or('A'),
@@ -208,6 +215,7 @@ pub fn read_coded_csv(bytes: &[u8]) -> Result<CodedTable, TableError> {
         levels: Vec::new(),
         blocks: Vec::new(),
         block_labels: Vec::new(),
+        whole_plots: Vec::new(),
         responses: header[first_response..]
             .iter()
             .map(|name| ResponseColumn {
@@ -218,6 +226,7 @@ pub fn read_coded_csv(bytes: &[u8]) -> Result<CodedTable, TableError> {
         lines: Vec::new(),
     };
     let width = header.len();
+    let mut wp_labels: Vec<String> = Vec::new();
     for (index, (line, mut cells)) in rows.enumerate() {
         let row = index + 1;
         // Trailing empty cells past the header are harmless.
@@ -271,6 +280,20 @@ pub fn read_coded_csv(bytes: &[u8]) -> Result<CodedTable, TableError> {
                 }
             };
             table.blocks.push(id as u32 + 1);
+        }
+        if has_whole_plot {
+            let label = &cells[wp_column];
+            if label.is_empty() {
+                return Err(cell_error(wp_column, "empty whole-plot label".into()));
+            }
+            let id = match wp_labels.iter().position(|b| b == label) {
+                Some(p) => p,
+                None => {
+                    wp_labels.push(label.clone());
+                    wp_labels.len() - 1
+                }
+            };
+            table.whole_plots.push(id as u32 + 1);
         }
         for (j, resp) in table.responses.iter_mut().enumerate() {
             let c = first_response + j;

@@ -349,6 +349,7 @@ pub fn read_run_sheet(project: &Project, text: &str) -> Result<Vec<RunRecord>, C
             status,
             note: cell(note_col).to_string(),
             entered_at: Some(cell(entered_col).to_string()).filter(|s| !s.is_empty()),
+            whole_plot: None,
         });
     }
     Ok(out)

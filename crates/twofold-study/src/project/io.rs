@@ -210,6 +210,7 @@ mod tests {
             },
             note: "note".into(),
             entered_at: Some("2025-03-04T10:22:05Z".into()),
+            whole_plot: None,
         });
         p.runs.push(RunRecord {
             std_order: 2,
@@ -222,6 +223,7 @@ mod tests {
             status: RunStatus::Done,
             note: String::new(),
             entered_at: None,
+            whole_plot: None,
         });
         p
     }

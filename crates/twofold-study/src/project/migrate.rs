@@ -129,6 +129,7 @@ pub(crate) fn from_v0(text: &str) -> Result<Project, FileError> {
                 status,
                 note: r.note,
                 entered_at: None,
+                whole_plot: None,
             }
         })
         .collect();

@@ -373,6 +373,10 @@ pub struct RunRecord {
     /// When a value was last entered, as ISO-8601 text supplied by the caller.
     #[serde(default)]
     pub entered_at: Option<String>,
+    /// Whole plot (1-based) of a split-plot study: the runs during which the hard-to-change
+    /// factors stayed set; `None` when the runs were not grouped.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub whole_plot: Option<u32>,
 }
 
 /// The state of a run.
@@ -425,6 +429,7 @@ mod tests {
             status: RunStatus::ToDo,
             note: String::new(),
             entered_at: None,
+            whole_plot: None,
         });
         assert_eq!(
             p.natural_settings(0),

@@ -123,6 +123,7 @@ pub(crate) fn plan_runs(
             status: RunStatus::ToDo,
             note: String::new(),
             entered_at: None,
+            whole_plot: None,
         })
         .collect();
     out.sort_by_key(|r| r.std_order);
@@ -205,6 +206,7 @@ fn screening_sheet(
             status: RunStatus::ToDo,
             note: String::new(),
             entered_at: None,
+            whole_plot: None,
         })
         .collect();
     out.sort_by_key(|r| r.std_order);

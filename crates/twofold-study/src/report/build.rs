@@ -137,6 +137,7 @@ impl Report {
         } else {
             given_choice(&model.terms, k, Some(&table), model.hierarchical)
         };
+        out.strata = strata_of(project, &table);
         out.effects = Ok(table);
         let choice = match choice {
             Ok(c) => c,
@@ -247,6 +248,7 @@ impl Report {
             ranges: plot_ranges(project),
             warnings: Vec::new(),
             stopped: None,
+            strata: None,
             key,
         }
     }
@@ -491,6 +493,42 @@ fn pair_means(obs: &Observations) -> Vec<PairMeans> {
     out
 }
 
+/// The strata of a split-plot study: every factorial run of the sheet carries its whole plot.
+fn strata_of(
+    project: &Project,
+    table: &twofold_core::effects::EffectTable,
+) -> Option<super::Strata> {
+    use twofold_core::splitplot::{lenth_by_stratum, stratum_of};
+    let factorial: Vec<&crate::project::RunRecord> =
+        project.runs.iter().filter(|r| !r.centre).collect();
+    if factorial.is_empty() || factorial.iter().any(|r| r.whole_plot.is_none()) {
+        return None;
+    }
+    let rows: Vec<Vec<i8>> = factorial.iter().map(|r| r.levels.clone()).collect();
+    let wp: Vec<usize> = factorial
+        .iter()
+        .map(|r| r.whole_plot.unwrap_or(0) as usize)
+        .collect();
+    let of_effect = table
+        .effects
+        .iter()
+        .map(|e| stratum_of(e.term, &rows, &wp))
+        .collect();
+    let pairs: Vec<(Term, f64)> = table.effects.iter().map(|e| (e.term, e.effect)).collect();
+    let lenth = lenth_by_stratum(&pairs, &rows, &wp)
+        .into_iter()
+        .map(|(s, l)| (s, l.map_err(|e| e.to_string())))
+        .collect();
+    let mut distinct = wp.clone();
+    distinct.sort_unstable();
+    distinct.dedup();
+    Some(super::Strata {
+        of_effect,
+        lenth,
+        whole_plots: distinct.len(),
+    })
+}
+
 #[cfg(test)]
 mod screening_tests;
 
@@ -520,6 +558,7 @@ mod tests {
                 status: RunStatus::Done,
                 note: String::new(),
                 entered_at: None,
+                whole_plot: None,
             });
         }
         p

@@ -199,6 +199,7 @@ pub fn project_from_coded(table: &CodedTable, name: &str) -> Project {
                 status: RunStatus::Done,
                 note: String::new(),
                 entered_at: None,
+                whole_plot: table.whole_plots.get(i).copied(),
             }
         })
         .collect();

@@ -164,7 +164,37 @@ pub fn report_json(r: &Report) -> Result<Value, String> {
     if let (Err(e), Some(map)) = (&r.lenth, obj.as_object_mut()) {
         map.insert("lenth_note".into(), Value::String(e.clone()));
     }
+    if let Some(strata) = &r.strata {
+        add_strata(&mut obj, strata);
+    }
     Ok(obj)
+}
+
+/// A split-plot study: each effect gains `stratum` (`whole_plot` or `subplot`), and
+/// `lenth_by_stratum` gives each stratum's `pse`, `me`, `sme` and `m` (null with a `note` when
+/// the stratum has too few contrasts); `whole_plots` counts them.
+fn add_strata(obj: &mut Value, strata: &super::Strata) {
+    if let Some(list) = obj.get_mut("effects").and_then(Value::as_array_mut) {
+        for (e, s) in list.iter_mut().zip(&strata.of_effect) {
+            if let Some(o) = e.as_object_mut() {
+                o.insert("stratum".into(), Value::from(s.key()));
+            }
+        }
+    }
+    let mut by = serde_json::Map::new();
+    for (s, l) in &strata.lenth {
+        by.insert(
+            s.key().into(),
+            match l {
+                Ok(l) => json!({ "pse": l.pse, "me": l.me, "sme": l.sme, "m": l.m }),
+                Err(e) => json!({ "pse": null, "me": null, "sme": null, "note": e }),
+            },
+        );
+    }
+    if let Some(map) = obj.as_object_mut() {
+        map.insert("lenth_by_stratum".into(), Value::Object(by));
+        map.insert("whole_plots".into(), Value::from(strata.whole_plots));
+    }
 }
 
 /// The follow-up options as the `follow_up` array of `twofold analyze --json`, suggested first:

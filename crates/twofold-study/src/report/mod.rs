@@ -260,6 +260,20 @@ pub struct Report {
     pub warnings: Vec<Warning>,
     /// The first typed error that stopped a step (data, effects, model choice or fit).
     pub stopped: Option<ReportError>,
+    /// For a split-plot study (runs grouped into whole plots): the stratum of every effect and
+    /// Lenth's margins of each stratum.
+    pub strata: Option<Strata>,
+}
+
+/// The strata of a split-plot study ([`twofold_core::splitplot`]).
+#[derive(Debug, Clone, PartialEq)]
+pub struct Strata {
+    /// The stratum of each effect, in the order of the effect table.
+    pub of_effect: Vec<twofold_core::splitplot::Stratum>,
+    /// Lenth's margins of the whole-plot and the subplot effects, each from its own contrasts.
+    pub lenth: Vec<(twofold_core::splitplot::Stratum, Result<Lenth, String>)>,
+    /// Whole plots in the sheet.
+    pub whole_plots: usize,
 }
 
 /// What the window says while the engineer has chosen no terms.
