@@ -94,6 +94,9 @@ pub fn response_summary(project: &Project, results: &Report, goal: Goal) -> Resp
 
     // The report's own warnings first, then those found here, in the order the window shows.
     let mut all: Vec<String> = results.warnings.iter().map(|w| w.text.clone()).collect();
+    if let (Some(strata), Ok(table)) = (&results.strata, &results.effects) {
+        all.extend(strata.sentences(table));
+    }
     for w in warnings {
         if !all.contains(&w) {
             all.push(w);

@@ -178,6 +178,14 @@ pub enum Edit {
     },
     /// Set what the power of a design rests on.
     SetPower(PowerSettings),
+    /// Mark a factor as hard to change (the runs are grouped into whole plots) or not; the run
+    /// sheet is marked outdated.
+    SetHardToChange {
+        /// Factor position.
+        index: usize,
+        /// Hard to change.
+        on: bool,
+    },
 }
 
 /// Why an edit could not be applied. The project is unchanged when `apply` returns an error.
@@ -393,6 +401,10 @@ impl Project {
             }
             Edit::SetNoise { index, sd } => self.factor_mut(index)?.noise_sd = sd,
             Edit::SetPower(settings) => self.power = settings,
+            Edit::SetHardToChange { index, on } => {
+                self.factor_mut(index)?.hard_to_change = on;
+                self.mark_outdated();
+            }
         }
         Ok(())
     }
@@ -522,9 +534,10 @@ mod tests {
             Edit::SetGoal { .. } => 23,
             Edit::SetNoise { .. } => 24,
             Edit::SetPower(_) => 25,
+            Edit::SetHardToChange { .. } => 26,
         }
     }
-    const KINDS: usize = 26;
+    const KINDS: usize = 27;
 
     #[test]
     fn every_edit_kind_changes_and_undoes_and_redoes() {
@@ -673,6 +686,7 @@ mod tests {
                     sd: Some(0.5),
                 },
             ),
+            (planned(), Edit::SetHardToChange { index: 0, on: true }),
             (
                 planned(),
                 Edit::SetPower(PowerSettings {

@@ -102,6 +102,7 @@ pub(crate) fn from_v0(text: &str) -> Result<Project, FileError> {
             },
             safe_range: None,
             noise_sd: None,
+            hard_to_change: false,
         })
         .collect();
     let runs = old

@@ -71,6 +71,10 @@ pub struct Factor {
     /// range). `None` for a control factor.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub noise_sd: Option<f64>,
+    /// Slow or costly to reset (an oven temperature, a bath): the run sheet groups the runs into
+    /// whole plots in which it stays set.
+    #[serde(default, skip_serializing_if = "std::ops::Not::not")]
+    pub hard_to_change: bool,
 }
 
 /// Whether a factor has numeric levels (and so a centre) or two named settings.
@@ -110,6 +114,7 @@ impl Factor {
             kind: FactorKind::Numeric { low, high },
             safe_range: None,
             noise_sd: None,
+            hard_to_change: false,
         }
     }
 
@@ -124,6 +129,7 @@ impl Factor {
             },
             safe_range: None,
             noise_sd: None,
+            hard_to_change: false,
         }
     }
 

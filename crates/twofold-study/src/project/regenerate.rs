@@ -48,6 +48,65 @@ pub(crate) fn regenerate_runs(
     Ok((fresh, used))
 }
 
+/// Groups `runs` (standard order) into whole plots when factors are hard to change: the whole
+/// plots and the runs inside each in random order from `design.seed`
+/// (`twofold_core::splitplot`), whole plots numbered in run order. Refused with blocks or a
+/// fold-over (their combination with whole plots is not offered yet).
+fn into_whole_plots(
+    project: &Project,
+    design: &DesignSettings,
+    runs: &mut [RunRecord],
+) -> Result<(), PlanError> {
+    use twofold_core::splitplot::{split_plot_order, whole_plots_of};
+    let htc: Vec<usize> = project
+        .factors
+        .iter()
+        .enumerate()
+        .filter(|(_, f)| f.hard_to_change)
+        .map(|(i, _)| i)
+        .collect();
+    if htc.is_empty() {
+        return Ok(());
+    }
+    if htc.len() == project.factors.len() {
+        return Err(PlanError::Invalid(
+            "every factor is marked hard to change: at least one must change from run to run"
+                .into(),
+        ));
+    }
+    if runs.iter().any(|r| r.block > 1) {
+        return Err(PlanError::Invalid(
+            "hard-to-change factors with blocks or a fold-over are not offered yet: plan the whole plots unblocked".into(),
+        ));
+    }
+    // Each replicate sets the hard-to-change factors anew: its whole plots are its own
+    // (replicated whole plots give the whole-plot effects an error of their own).
+    let k = project.factors.len();
+    let rows: Vec<Vec<i8>> = runs
+        .iter()
+        .map(|r| {
+            let mut key = r.levels.clone();
+            key.push(i8::try_from(r.replicate).unwrap_or(i8::MAX));
+            key
+        })
+        .collect();
+    let mut keys = htc.clone();
+    keys.push(k);
+    let wp = whole_plots_of(&rows, &keys);
+    let order = split_plot_order(&wp, design.seed, design.randomize);
+    let mut number = vec![0u32; wp.iter().copied().max().map_or(0, |m| m + 1)];
+    let mut next = 1u32;
+    for (position, &i) in order.iter().enumerate() {
+        if number[wp[i]] == 0 {
+            number[wp[i]] = next;
+            next += 1;
+        }
+        runs[i].run_order = u32::try_from(position + 1).unwrap_or(u32::MAX);
+        runs[i].whole_plot = Some(number[wp[i]]);
+    }
+    Ok(())
+}
+
 /// Fresh, empty runs for `design` over the project's factors and responses, and the settings as
 /// used (see [`regenerate_runs`]). The generators as used are those of the fraction, also when
 /// a fold-over is added to it.
@@ -127,6 +186,7 @@ pub(crate) fn plan_runs(
         })
         .collect();
     out.sort_by_key(|r| r.std_order);
+    into_whole_plots(project, design, &mut out)?;
     Ok((out, used))
 }
 
@@ -210,6 +270,7 @@ fn screening_sheet(
         })
         .collect();
     out.sort_by_key(|r| r.std_order);
+    into_whole_plots(project, design, &mut out)?;
     Ok((out, design.clone()))
 }
 

@@ -265,6 +265,45 @@ pub struct Report {
     pub strata: Option<Strata>,
 }
 
+impl Strata {
+    /// The strata in words, one sentence each, as the window, the page and `analyze` write them:
+    /// the whole plots, then each stratum's effects and its Lenth margins.
+    pub fn sentences(&self, table: &EffectTable) -> Vec<String> {
+        use twofold_core::splitplot::Stratum;
+        let num = |x: f64| crate::numbers::fmt_num(x, 4);
+        let mut out = vec![format!(
+            "Split-plot study with {} whole plots: each stratum's effects are judged against their own Lenth margins (Loeppky & Sitter 2002).",
+            self.whole_plots
+        )];
+        for (stratum, l) in &self.lenth {
+            let terms: Vec<String> = table
+                .effects
+                .iter()
+                .zip(&self.of_effect)
+                .filter(|(_, st)| *st == stratum)
+                .map(|(x, _)| x.term.label())
+                .collect();
+            let margins = match l {
+                Ok(l) => format!("PSE {}, ME {}, SME {}", num(l.pse), num(l.me), num(l.sme)),
+                Err(err) => format!("no margins: {err}"),
+            };
+            let shown = if terms.len() > 12 {
+                format!("{}, … ({} in all)", terms[..12].join(", "), terms.len())
+            } else {
+                terms.join(", ")
+            };
+            out.push(format!(
+                "{}: {shown} — {margins}.",
+                match stratum {
+                    Stratum::WholePlot => "Whole-plot effects",
+                    Stratum::Subplot => "Subplot effects",
+                }
+            ));
+        }
+        out
+    }
+}
+
 /// The strata of a split-plot study ([`twofold_core::splitplot`]).
 #[derive(Debug, Clone, PartialEq)]
 pub struct Strata {

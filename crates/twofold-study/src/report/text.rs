@@ -121,32 +121,9 @@ pub fn report_text(r: &Report) -> Result<String, String> {
         }
     }
     if let Some(strata) = &r.strata {
-        let _ = writeln!(
-            s,
-            "\nSplit-plot study, {} whole plots: each stratum is judged against its own effects (Loeppky & Sitter 2002)",
-            strata.whole_plots
-        );
-        for (stratum, l) in &strata.lenth {
-            let terms: Vec<String> = e
-                .effects
-                .iter()
-                .zip(&strata.of_effect)
-                .filter(|(_, st)| *st == stratum)
-                .map(|(x, _)| x.term.label())
-                .collect();
-            let margins = match l {
-                Ok(l) => format!("PSE {}, ME {}, SME {}", num(l.pse), num(l.me), num(l.sme)),
-                Err(err) => format!("no margins: {err}"),
-            };
-            let _ = writeln!(
-                s,
-                "  {}: {} — {margins}",
-                match stratum {
-                    twofold_core::splitplot::Stratum::WholePlot => "whole-plot effects",
-                    twofold_core::splitplot::Stratum::Subplot => "subplot effects",
-                },
-                terms.join(", ")
-            );
+        let _ = writeln!(s);
+        for line in strata.sentences(e) {
+            let _ = writeln!(s, "{line}");
         }
     }
     let _ = writeln!(s, "\nHalf-normal plot positions (smallest |effect| first)");

@@ -57,7 +57,18 @@ pub(crate) fn split(plan: &mut Plan, htc: &[usize], seed: u64, randomise: bool) 
     let mut runs = plan.runs.clone();
     runs.sort_by_key(|r| r.std_order);
     let rows: Vec<Vec<i8>> = runs.iter().map(|r| r.levels.clone()).collect();
-    let wp = whole_plots_of(&rows, htc);
+    // Each replicate sets the hard-to-change factors anew (its whole plots are its own).
+    let keyed: Vec<Vec<i8>> = runs
+        .iter()
+        .map(|r| {
+            let mut key = r.levels.clone();
+            key.push(i8::try_from(r.replicate).unwrap_or(i8::MAX));
+            key
+        })
+        .collect();
+    let mut keys = htc.to_vec();
+    keys.push(k);
+    let wp = whole_plots_of(&keyed, &keys);
     let order = split_plot_order(&wp, seed, randomise);
     // Whole plots numbered in the order they are run.
     let mut number = vec![0usize; wp.iter().copied().max().map_or(0, |m| m + 1)];
@@ -90,7 +101,8 @@ pub(crate) fn split(plan: &mut Plan, htc: &[usize], seed: u64, randomise: bool) 
         factors: htc.to_vec(),
         whole_plot,
         resets: next - 1,
-        resets_randomised: expected_resets_randomised(&wp),
+        // A random order resets whenever the hard-to-change setting itself changes.
+        resets_randomised: expected_resets_randomised(&whole_plots_of(&rows, htc)),
         whole_plot_terms,
         subplot_terms,
     }

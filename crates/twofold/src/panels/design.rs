@@ -172,6 +172,7 @@ impl Pane for DesignPane {
                 ui.add_space(8.0);
                 let total = summary(ui, &draft, k, project, &pal);
                 fold_row(ui, &mut draft);
+                split_row(ui, project, &draft, k);
                 ui.add_space(4.0);
                 let unchanged =
                     draft == project.design && !project.runs.is_empty() && !project.runs_outdated;
@@ -217,6 +218,36 @@ fn has_design_errors(project: &Project, draft: &DesignSettings) -> bool {
     (draft.centre_points_per_block > 0 && project.factors.iter().any(|f| !f.is_numeric()))
         || draft.replicates == 0
         || (draft.fold.is_some() && blocked)
+}
+
+/// With hard-to-change factors: how many whole plots (resets) the plan needs, against a
+/// completely random order of the same runs (`twofold_core::splitplot`).
+fn split_row(ui: &mut Ui, project: &Project, draft: &DesignSettings, k: usize) {
+    let htc: Vec<&str> = project
+        .factors
+        .iter()
+        .filter(|f| f.hard_to_change)
+        .map(|f| f.name.as_str())
+        .collect();
+    if htc.is_empty() {
+        return;
+    }
+    let Some(runs) = base_runs(draft, k) else {
+        return;
+    };
+    let reps = draft.replicates.max(1) as usize;
+    let settings = (1usize << htc.len().min(20)).min(runs);
+    let plots = settings * reps;
+    // A random order resets whenever the hard-to-change setting itself changes.
+    let groups: Vec<usize> = (0..runs * reps).map(|i| i % settings).collect();
+    let random = twofold_core::splitplot::expected_resets_randomised(&groups);
+    ui.label(format!(
+        "Hard to change: {} — the runs are grouped into {} whole plots, so {} resets instead of about {:.0} in a completely random order. Their effects are judged against the whole-plot error.",
+        htc.join(", "),
+        plots,
+        plots,
+        random
+    ));
 }
 
 /// The fold-over added on the "What to run next" step, if any, with a way to leave it out.

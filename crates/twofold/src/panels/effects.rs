@@ -158,6 +158,11 @@ impl Pane for EffectsPane {
         if let Err(why) = &res.lenth {
             ui.colored_label(pal.muted, format!("No margins of error: {why}."));
         }
+        if let Some(strata) = &res.strata {
+            for line in strata.sentences(table) {
+                ui.label(RichText::new(line).color(pal.ink));
+            }
+        }
         let toggle = |term: Term, out: &mut Vec<Command>| {
             out.push(Command::Edit(Edit::ToggleTerm {
                 response: res.response,

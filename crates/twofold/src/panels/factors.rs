@@ -103,7 +103,7 @@ fn factor_grid(
         return;
     }
     Grid::new("factor_grid")
-        .num_columns(10)
+        .num_columns(11)
         .spacing([10.0, 6.0])
         .striped(true)
         .show(ui, |ui| {
@@ -117,6 +117,7 @@ fn factor_grid(
                 "Kind",
                 "Safe range",
                 "Noise in use",
+                "Hard to change",
                 "",
                 "",
             ] {
@@ -158,6 +159,20 @@ fn factor_grid(
                 kind_picker(ui, id, index, f, out);
                 safe_range(ui, id, index, f, out);
                 noise(ui, id, index, f, out);
+                let mut htc = f.hard_to_change;
+                if ui
+                    .checkbox(&mut htc, "")
+                    .accessible_name(format!(
+                        "hard to change factor {}",
+                        LETTERS.get(index).copied().unwrap_or('?')
+                    ))
+                    .on_hover_text(
+                        "Slow or costly to reset: the run sheet groups the runs into whole plots in which it stays set, and the analysis judges its effects against the whole-plot error",
+                    )
+                    .changed()
+                {
+                    out.push(Command::Edit(Edit::SetHardToChange { index, on: htc }));
+                }
                 ui.horizontal(|ui| {
                     if ui
                         .add_enabled(index > 0, mouse_button("↑"))

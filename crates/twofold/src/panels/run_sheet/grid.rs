@@ -45,11 +45,18 @@ pub(super) fn grid(
     if let Some(p) = scroll_to {
         table = table.scroll_to_row(p, Some(egui::Align::Center));
     }
+    // A split-plot sheet is unblocked: the third column gives the whole plot instead.
+    let whole_plots = project.runs.iter().any(|r| r.whole_plot.is_some());
     table
         .header(26.0, |mut header| {
-            for h in ["Run", "Std", "Blk"] {
+            for h in ["Run", "Std", if whole_plots { "Plot" } else { "Blk" }] {
                 header.col(|ui| {
-                    ui.strong(h);
+                    let r = ui.strong(h);
+                    if h == "Plot" {
+                        r.on_hover_text(
+                            "Whole plot: the hard-to-change factors stay set for all its runs",
+                        );
+                    }
                 });
             }
             for (i, f) in project.factors.iter().enumerate() {
@@ -92,7 +99,10 @@ pub(super) fn grid(
                     ui.label(run.std_order.to_string());
                 });
                 row.col(|ui| {
-                    ui.label(run.block.to_string());
+                    ui.label(match run.whole_plot {
+                        Some(w) => w.to_string(),
+                        None => run.block.to_string(),
+                    });
                 });
                 for (i, f) in project.factors.iter().enumerate() {
                     row.col(|ui| {

@@ -1,0 +1,98 @@
+//! Hard-to-change factors marked on the factors step: the run sheet grouped into whole plots,
+//! and the effects step judging each stratum on its own.
+
+use egui_kittest::Harness;
+use egui_kittest::kittest::Queryable;
+use twofold_app::app::TwofoldApp;
+use twofold_app::panels::Step;
+use twofold_study::project::{Cell, Edit, Factor, Project, ResponseDef, RunStatus};
+
+fn four_factors() -> Project {
+    let mut p = Project::new("Oven study");
+    for name in ["Oven", "Time", "Speed", "Load"] {
+        p.factors.push(Factor::numeric(name, "", 1.0, 2.0));
+    }
+    p.responses.push(ResponseDef::new("Y", ""));
+    p.design.seed = 5;
+    if let Err(e) = p.apply(Edit::RegenerateRuns) {
+        panic!("{e}");
+    }
+    p
+}
+
+fn settle(h: &mut Harness<'static, TwofoldApp>) {
+    for _ in 0..3 {
+        h.run();
+    }
+}
+
+#[test]
+fn a_hard_to_change_factor_groups_the_sheet_and_splits_the_effects() {
+    let mut h = Harness::builder()
+        .with_size([1600.0, 1200.0])
+        .build_ui_state(
+            |ui, app: &mut TwofoldApp| app.ui_in(ui),
+            TwofoldApp::new_for_test(four_factors()),
+        );
+    h.state_mut().set_step(Step::Factors);
+    settle(&mut h);
+    h.get_by_label("hard to change factor A").click();
+    settle(&mut h);
+    h.get_by_label("hard to change factor B").click();
+    settle(&mut h);
+    assert!(
+        h.state().project().runs_outdated,
+        "the sheet must be made again"
+    );
+    h.state_mut().set_step(Step::Design);
+    settle(&mut h);
+    h.get_by_label("Apply and remake the run sheet").click();
+    settle(&mut h);
+    let mut p = h.state().project().clone();
+    assert!(!p.runs_outdated);
+    // Four whole plots of four runs, A and B fixed inside each, run one after another.
+    let mut by_order: Vec<_> = p.runs.iter().collect();
+    by_order.sort_by_key(|r| r.run_order);
+    let wp: Vec<u32> = by_order.iter().map(|r| r.whole_plot.unwrap_or(0)).collect();
+    assert_eq!(wp.windows(2).filter(|w| w[0] != w[1]).count(), 3, "{wp:?}");
+    for w in 1..=4 {
+        let ab: Vec<(i8, i8)> = p
+            .runs
+            .iter()
+            .filter(|r| r.whole_plot == Some(w))
+            .map(|r| (r.levels[0], r.levels[1]))
+            .collect();
+        assert_eq!(ab.len(), 4);
+        assert!(ab.iter().all(|x| *x == ab[0]));
+    }
+    // Values from an invented formula; the effects step names the strata.
+    for r in &mut p.runs {
+        let l = |f: usize| f64::from(r.levels[f]);
+        let y = 20.0
+            + 3.0 * l(0)
+            + 1.0 * l(1)
+            + 2.0 * l(2)
+            + 0.5 * l(2) * l(3)
+            + 0.1 * f64::from(r.whole_plot.unwrap_or(0));
+        r.values[0] = Cell::new(format!("{y}"));
+        r.status = RunStatus::Done;
+    }
+    let mut h = Harness::builder()
+        .with_size([1600.0, 1200.0])
+        .build_ui_state(
+            |ui, app: &mut TwofoldApp| app.ui_in(ui),
+            TwofoldApp::new_for_test(p),
+        );
+    h.state_mut().set_step(Step::Effects);
+    settle(&mut h);
+    assert!(
+        h.query_all_by_label_contains("Split-plot study with 4 whole plots")
+            .count()
+            > 0
+    );
+    assert!(
+        h.query_all_by_label_contains("Whole-plot effects: A, B, AB")
+            .count()
+            > 0
+    );
+}
