@@ -448,13 +448,16 @@ fn write_csv(p: &Planned, out: &mut dyn Write) -> std::io::Result<()> {
         "centre".into(),
         "replicate".into(),
     ];
+    if p.split.is_some() {
+        header.push("whole_plot".into());
+    }
     header.extend(
         p.names
             .iter()
             .map(|n| twofold_study::interchange::guard(n).into_owned()),
     );
     w.write_record(&header).map_err(std::io::Error::other)?;
-    for r in &p.plan.runs {
+    for (n, r) in p.plan.runs.iter().enumerate() {
         let mut row = vec![
             r.run_order.to_string(),
             r.std_order.to_string(),
@@ -462,6 +465,13 @@ fn write_csv(p: &Planned, out: &mut dyn Write) -> std::io::Result<()> {
             if r.centre { "yes" } else { "no" }.to_string(),
             r.replicate.to_string(),
         ];
+        if let Some(s) = &p.split {
+            row.push(
+                s.whole_plot
+                    .get(n)
+                    .map_or(String::new(), ToString::to_string),
+            );
+        }
         row.extend(r.levels.iter().map(|v| v.to_string()));
         w.write_record(&row).map_err(std::io::Error::other)?;
     }
