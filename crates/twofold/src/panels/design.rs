@@ -237,7 +237,8 @@ fn split_row(ui: &mut Ui, project: &Project, draft: &DesignSettings, k: usize) {
     };
     let reps = draft.replicates.max(1) as usize;
     let settings = (1usize << htc.len().min(20)).min(runs);
-    let plots = settings * reps;
+    // The centre points, at the centre of every factor, are one whole plot more.
+    let plots = settings * reps + usize::from(draft.centre_points_per_block > 0);
     // A random order resets whenever the hard-to-change setting itself changes.
     let groups: Vec<usize> = (0..runs * reps).map(|i| i % settings).collect();
     let random = twofold_core::splitplot::expected_resets_randomised(&groups);
