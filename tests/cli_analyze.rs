@@ -641,3 +641,97 @@ fn a_whole_plot_column_judges_each_stratum_against_its_own_effects() {
     let whole_me = j["lenth_by_stratum"]["whole_plot"]["me"].as_f64().unwrap();
     assert!(sub_me < whole_me);
 }
+
+#[test]
+fn replicated_whole_plots_test_each_term_against_its_own_stratum_error() {
+    // Invented: A and B set once per whole plot, two replicates of their four settings (eight
+    // whole plots of two runs), C changes inside. The whole-plot and subplot errors are checked
+    // against a second route written here: whole-plot means fitted by their own A and B columns,
+    // and the within-plot residual after C and AC (Bisgaard 2000's two error strata).
+    let wpn = [1.0, -0.5, 0.8, -1.2, 0.3, -0.4, 0.6, -0.6];
+    let mut text = String::from("A,B,C,whole_plot,Y\n");
+    let mut rows = Vec::new();
+    let mut i = 0;
+    for rep in 0..2 {
+        for (a, b) in [(-1, -1), (-1, 1), (1, -1), (1, 1)] {
+            let w = rep * 4 + ((a + 1) + (b + 1) / 2) as usize;
+            for c in [-1, 1] {
+                let y = 30.0
+                    + 4.0 * f64::from(a)
+                    + f64::from(b)
+                    + 2.0 * f64::from(c)
+                    + 0.5 * f64::from(a * c)
+                    + wpn[w]
+                    + f64::from((i * 7) % 5 - 2) / 10.0;
+                text.push_str(&format!("{a},{b},{c},wp{w},{y}\n"));
+                rows.push((a, b, c, w, y));
+                i += 1;
+            }
+        }
+    }
+    let csv = TempCsv::new(&text);
+    let j = analyze_json(&csv, &["--terms", "A,B,C,AC"]);
+    let anova = &j["split_plot_anova"];
+    assert_eq!(
+        anova["whole_plot_error"]["df"], 5,
+        "8 whole plots - 1 - A, B"
+    );
+    assert_eq!(anova["subplot_error"]["df"], 6, "16 runs - 8 plots - C, AC");
+    // The second route.
+    let n = rows.len() as f64;
+    let coef = |f: &dyn Fn(&(i32, i32, i32, usize, f64)) -> i32| {
+        rows.iter().map(|r| f64::from(f(r)) * r.4).sum::<f64>() / n
+    };
+    let (ba, bb, bc, bac) = (
+        coef(&|r| r.0),
+        coef(&|r| r.1),
+        coef(&|r| r.2),
+        coef(&|r| r.0 * r.2),
+    );
+    let grand = rows.iter().map(|r| r.4).sum::<f64>() / n;
+    let mut ss_wp = 0.0;
+    let mut within = 0.0;
+    for w in 0..8 {
+        let plot: Vec<_> = rows.iter().filter(|r| r.3 == w).collect();
+        let mean = plot.iter().map(|r| r.4).sum::<f64>() / 2.0;
+        let fitted = grand + ba * f64::from(plot[0].0) + bb * f64::from(plot[0].1);
+        ss_wp += 2.0 * (mean - fitted).powi(2);
+        within += plot.iter().map(|r| (r.4 - mean).powi(2)).sum::<f64>();
+    }
+    let ss_sp = within - n * (bc * bc + bac * bac);
+    assert_close(
+        anova["whole_plot_error"]["ss"].as_f64().unwrap(),
+        ss_wp,
+        1e-10,
+        "SS wp",
+    );
+    assert_close(
+        anova["subplot_error"]["ss"].as_f64().unwrap(),
+        ss_sp,
+        1e-10,
+        "SS sp",
+    );
+    let term = |t: &str| {
+        anova["terms"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .find(|x| x["term"] == t)
+            .cloned()
+            .unwrap_or(Value::Null)
+    };
+    assert_eq!(term("A")["stratum"], "whole_plot");
+    assert_eq!(term("C")["stratum"], "subplot");
+    assert_close(
+        term("A")["f"].as_f64().unwrap(),
+        n * ba * ba / (ss_wp / 5.0),
+        1e-9,
+        "F A",
+    );
+    assert_close(
+        term("C")["f"].as_f64().unwrap(),
+        n * bc * bc / (ss_sp / 6.0),
+        1e-9,
+        "F C",
+    );
+}

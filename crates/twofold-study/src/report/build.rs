@@ -185,6 +185,9 @@ impl Report {
         out.interactions = interaction_means(&obs, &fit, DEFAULT_CONFIDENCE)
             .map_err(|e| ReportError::from(e).to_string());
         out.box_cox = box_cox(&raw, &spec).map_err(|e| ReportError::from(e).to_string());
+        if let Some(strata) = &mut out.strata {
+            strata.anova = split_plot_anova_of(project, &obs, &fit);
+        }
         out.fit = Ok(fit);
         out.finish();
         out
@@ -493,6 +496,59 @@ fn pair_means(obs: &Observations) -> Vec<PairMeans> {
     out
 }
 
+/// The split-plot analysis of variance of the fitted model's terms when the whole plots are
+/// replicated (more whole plots than settings of the hard-to-change factors); `None` otherwise.
+fn split_plot_anova_of(
+    project: &Project,
+    obs: &twofold_core::data::Observations,
+    fit: &twofold_core::anova::ModelFit,
+) -> Option<Result<twofold_core::splitplot::SplitPlotAnova, String>> {
+    let runs: Vec<usize> = (0..project.runs.len())
+        .filter(|&i| !project.runs[i].centre)
+        .collect();
+    let rows: Vec<Vec<i8>> = runs
+        .iter()
+        .map(|&i| project.runs[i].levels.clone())
+        .collect();
+    let wp: Vec<usize> = runs
+        .iter()
+        .map(|&i| project.runs[i].whole_plot.unwrap_or(0) as usize)
+        .collect();
+    // The hard-to-change factors are those the whole plots hold fixed (read from the sheet, so
+    // a coded table with a whole_plot column is analysed the same way).
+    let htc: Vec<usize> = (0..project.factors.len())
+        .filter(|&f| {
+            twofold_core::splitplot::stratum_of(Term::main(f), &rows, &wp)
+                == twofold_core::splitplot::Stratum::WholePlot
+        })
+        .collect();
+    let mut distinct_wp = wp.clone();
+    distinct_wp.sort_unstable();
+    distinct_wp.dedup();
+    let settings = twofold_core::splitplot::whole_plots_of(&rows, &htc);
+    let distinct_settings = settings.iter().copied().max().map_or(0, |m| m + 1);
+    // Without replicated whole plots there is no whole-plot error: Lenth's margins per stratum
+    // are the analysis then.
+    if htc.is_empty() || distinct_wp.len() <= distinct_settings {
+        return None;
+    }
+    let used: std::collections::HashSet<usize> = obs.used_runs().into_iter().collect();
+    let y: Vec<f64> = runs
+        .iter()
+        .map(|&i| {
+            if used.contains(&i) {
+                obs.response()[i].unwrap_or(f64::NAN)
+            } else {
+                f64::NAN
+            }
+        })
+        .collect();
+    Some(
+        twofold_core::splitplot::split_plot_anova(&rows, &y, &wp, &fit.terms)
+            .map_err(|e| e.to_string()),
+    )
+}
+
 /// The strata of a split-plot study: every factorial run of the sheet carries its whole plot.
 fn strata_of(
     project: &Project,
@@ -526,6 +582,7 @@ fn strata_of(
         of_effect,
         lenth,
         whole_plots: distinct.len(),
+        anova: None,
     })
 }
 

@@ -191,7 +191,24 @@ fn add_strata(obj: &mut Value, strata: &super::Strata) {
             },
         );
     }
+    let anova = match &strata.anova {
+        None => Value::Null,
+        Some(Err(why)) => json!({ "note": why }),
+        Some(Ok(a)) => json!({
+            "whole_plot_error": { "ss": a.whole_plot_error.ss, "df": a.whole_plot_error.df, "ms": a.whole_plot_error.ms },
+            "subplot_error": { "ss": a.subplot_error.ss, "df": a.subplot_error.df, "ms": a.subplot_error.ms },
+            "terms": a.terms.iter().map(|t| json!({
+                "term": t.term.label(),
+                "stratum": t.stratum.key(),
+                "coefficient": t.coefficient,
+                "ss": t.ss,
+                "f": t.f,
+                "p": t.p,
+            })).collect::<Vec<_>>(),
+        }),
+    };
     if let Some(map) = obj.as_object_mut() {
+        map.insert("split_plot_anova".into(), anova);
         map.insert("lenth_by_stratum".into(), Value::Object(by));
         map.insert("whole_plots".into(), Value::from(strata.whole_plots));
     }

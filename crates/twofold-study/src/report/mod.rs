@@ -275,6 +275,32 @@ impl Strata {
             "Split-plot study with {} whole plots: each stratum's effects are judged against their own Lenth margins (Loeppky & Sitter 2002).",
             self.whole_plots
         )];
+        match &self.anova {
+            Some(Ok(a)) => {
+                let num = |x: f64| crate::numbers::fmt_num(x, 4);
+                out.push(format!(
+                    "Replicated whole plots: whole-plot error MS {} on {} df, subplot error MS {} on {} df.",
+                    num(a.whole_plot_error.ms),
+                    a.whole_plot_error.df,
+                    num(a.subplot_error.ms),
+                    a.subplot_error.df
+                ));
+                for t in &a.terms {
+                    out.push(format!(
+                        "{} ({}): F = {}, p = {}.",
+                        t.term.label(),
+                        match t.stratum {
+                            Stratum::WholePlot => "against the whole-plot error",
+                            Stratum::Subplot => "against the subplot error",
+                        },
+                        num(t.f),
+                        t.p.map_or_else(|| "—".to_string(), |p| crate::numbers::fmt_sig(p, 3))
+                    ));
+                }
+            }
+            Some(Err(why)) => out.push(format!("No split-plot analysis of variance: {why}.")),
+            None => {}
+        }
         for (stratum, l) in &self.lenth {
             let terms: Vec<String> = table
                 .effects
@@ -313,6 +339,9 @@ pub struct Strata {
     pub lenth: Vec<(twofold_core::splitplot::Stratum, Result<Lenth, String>)>,
     /// Whole plots in the sheet.
     pub whole_plots: usize,
+    /// With replicated whole plots: the fitted terms tested against their stratum's error
+    /// (Bisgaard 2000), or why not; `None` without replicated whole plots.
+    pub anova: Option<Result<twofold_core::splitplot::SplitPlotAnova, String>>,
 }
 
 /// What the window says while the engineer has chosen no terms.

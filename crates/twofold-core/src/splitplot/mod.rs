@@ -26,6 +26,9 @@ use std::collections::BTreeMap;
 use crate::lenth::{Lenth, LenthError, lenth};
 use crate::term::Term;
 
+mod anova;
+pub use anova::{SplitPlotAnova, SplitPlotError, StratumError, TermTest, split_plot_anova};
+
 /// Which error an effect is judged against.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord)]
 pub enum Stratum {
