@@ -679,9 +679,9 @@ fn replicated_whole_plots_test_each_term_against_its_own_stratum_error() {
     assert_eq!(anova["subplot_error"]["df"], 6, "16 runs - 8 plots - C, AC");
     // The second route.
     let n = rows.len() as f64;
-    let coef = |f: &dyn Fn(&(i32, i32, i32, usize, f64)) -> i32| {
-        rows.iter().map(|r| f64::from(f(r)) * r.4).sum::<f64>() / n
-    };
+    type Run = (i32, i32, i32, usize, f64);
+    let coef =
+        |f: &dyn Fn(&Run) -> i32| rows.iter().map(|r| f64::from(f(r)) * r.4).sum::<f64>() / n;
     let (ba, bb, bc, bac) = (
         coef(&|r| r.0),
         coef(&|r| r.1),
