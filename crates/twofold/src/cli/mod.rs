@@ -15,6 +15,7 @@ pub mod best;
 pub mod export;
 pub mod plan;
 mod plan_power;
+mod plan_require;
 
 /// Exit code for bad input.
 pub const EXIT_BAD_INPUT: i32 = 2;
