@@ -598,3 +598,94 @@ fn hard_to_change_factors_group_the_runs_into_whole_plots() {
     assert_eq!(code, 2);
     assert!(err.contains("easy to change"), "{err}");
 }
+
+/// `--require`: the design keeps the named interactions clear, the JSON says so, and requests
+/// that cannot be met exit 2 with one line.
+///
+/// Sources: Montgomery 2017, Example 8-2 (the 2^(5-1) with I = ABCDE, resolution V, so every
+/// two-factor interaction is clear); the table of selected designs (the 2^(6-2) with E = ABC,
+/// F = BCD leaves no two-factor interaction clear). The run-size bounds are counted by hand: a
+/// clear interaction needs a contrast of its own besides the k main effects (k + r ≤ N − 1),
+/// and a design with one has at most N/2 factors (for a contrast s outside the design the other
+/// columns pair up as {x, x·s}, and only one pair may lie wholly in the design).
+#[test]
+fn required_interactions_are_kept_clear() {
+    let j = plan_json(&["--factors", "5", "--require", "CE", "--seed", "1"]);
+    assert_eq!(
+        j["base_runs"], 16,
+        "a clear interaction needs k ≤ N/2: 5 > 8/2"
+    );
+    assert_eq!(j["defining_relation"], serde_json::json!(["I=ABCDE"]));
+    assert_eq!(j["required"], serde_json::json!(["CE"]));
+    assert_eq!(j["required_clear"], true);
+    assert_eq!(j["proven_minimum_aberration"], true);
+
+    let j = plan_json(&["--factors", "7", "--require", "ce, AB", "--seed", "1"]);
+    assert_eq!(j["base_runs"], 16, "7 + 2 > 8 − 1 rules out 8 runs");
+    assert_eq!(j["required"], serde_json::json!(["AB", "CE"]));
+    assert_eq!(j["required_clear"], true);
+    let clear = j["clear_two_factor_interactions"].as_array().unwrap();
+    for t in ["AB", "CE"] {
+        assert!(clear.contains(&Value::from(t)), "{t} in {clear:?}");
+        // Its aliases up to three letters hold no main effect and no two-factor interaction.
+        for alias in j["aliases"][t].as_array().unwrap() {
+            let letters = alias.as_str().unwrap().trim_start_matches('-').len();
+            assert!(letters >= 3, "{t} = {alias}");
+        }
+    }
+
+    // Given generators are kept, and the output says whether they keep the requirement.
+    let j = plan_json(&[
+        "--factors",
+        "6",
+        "--runs",
+        "16",
+        "--generators",
+        "E=ABC,F=BCD",
+        "--require",
+        "AB",
+    ]);
+    assert_eq!(j["required_clear"], false);
+    assert_eq!(j["generators"], serde_json::json!(["E=ABC", "F=BCD"]));
+    // Without --require the keys are absent.
+    let j = plan_json(&["--factors", "5", "--runs", "16"]);
+    assert!(j.get("required").is_none() && j.get("required_clear").is_none());
+
+    let (code, out, _) = run(&["plan", "--factors", "7", "--require", "AB,CE"]);
+    assert_eq!(code, 0);
+    assert!(
+        out.contains(
+            "Required interactions: AB, CE (each clear of main effects and other two-factor interactions)"
+        ),
+        "{out}"
+    );
+
+    let cases: &[(&[&str], &str)] = &[
+        (
+            &["plan", "--factors", "9", "--runs", "16", "--require", "AB"],
+            "error: no 16-run design keeps AB clear of other two-factor interactions; 32 runs do",
+        ),
+        (
+            &["plan", "--factors", "5", "--require", "AQ"],
+            "error: --require: required interaction `AQ`: `Q` in `AQ` is beyond the last factor `E`",
+        ),
+        (
+            &["plan", "--factors", "5", "--require", "AB,ABC"],
+            "error: --require: required interaction `ABC` is not a two-factor interaction (it has 3 letters)",
+        ),
+        (
+            &["plan", "--factors", "5", "--require", "A"],
+            "error: --require: required interaction `A` is not a two-factor interaction (it has 1 letter)",
+        ),
+        (
+            &["plan", "--factors", "5", "--require", ","],
+            "error: --require: no required interaction given (name them as `AB,CE`)",
+        ),
+    ];
+    for (args, line) in cases {
+        let (code, out, err) = run(args);
+        assert_eq!(code, 2, "{args:?}: {err}");
+        assert!(out.is_empty(), "{args:?}");
+        assert_eq!(err.trim_end(), *line, "{args:?}");
+    }
+}

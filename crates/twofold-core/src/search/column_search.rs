@@ -63,6 +63,9 @@ pub(super) enum PairBound {
 pub(super) enum RelabellingSet {
     /// All q! permutations (q ≤ 7), else the transpositions.
     Default,
+    /// The same, whatever the number of generators: for searches that test every partial
+    /// design, not only those with three or more columns still to come.
+    Every,
     /// Only the transpositions of two basic factors.
     #[cfg(test)]
     Swaps,
@@ -117,45 +120,47 @@ impl ColumnSearch {
         // The test only runs where three or more columns are still to come (see `dfs`), so
         // with p ≤ 3 no table is needed.
         let p = k - q;
-        let relabellings =
-            if q <= ALL_RELABELLINGS_MAX_BASIC && set == RelabellingSet::Default && p >= 4 {
-                let perms = permutations(q);
-                let ranks = q + columns.len();
-                let count = perms.len() - 1;
-                let mut images = vec![0u32; count * ranks];
-                let mut by_mask = vec![0u32; size];
-                // perms[0] is the identity: it never gives a smaller image.
-                for (pi, perm) in perms[1..].iter().enumerate() {
-                    for m in 1..size {
-                        let low = m.trailing_zeros() as usize;
-                        by_mask[m] = by_mask[m & (m - 1)] | 1 << perm[low];
-                    }
-                    for rank in 0..ranks {
-                        let mask = if rank < q {
-                            1usize << rank
-                        } else {
-                            columns[rank - q] as usize
-                        };
-                        images[rank * count + pi] = rank_of[by_mask[mask] as usize];
-                    }
+        let every = set == RelabellingSet::Every;
+        let relabellings = if q <= ALL_RELABELLINGS_MAX_BASIC
+            && (every || set == RelabellingSet::Default && p >= 4)
+        {
+            let perms = permutations(q);
+            let ranks = q + columns.len();
+            let count = perms.len() - 1;
+            let mut images = vec![0u32; count * ranks];
+            let mut by_mask = vec![0u32; size];
+            // perms[0] is the identity: it never gives a smaller image.
+            for (pi, perm) in perms[1..].iter().enumerate() {
+                for m in 1..size {
+                    let low = m.trailing_zeros() as usize;
+                    by_mask[m] = by_mask[m & (m - 1)] | 1 << perm[low];
                 }
-                Relabellings::Table { count, images }
+                for rank in 0..ranks {
+                    let mask = if rank < q {
+                        1usize << rank
+                    } else {
+                        columns[rank - q] as usize
+                    };
+                    images[rank * count + pi] = rank_of[by_mask[mask] as usize];
+                }
+            }
+            Relabellings::Table { count, images }
+        } else {
+            let mut pairs = Vec::new();
+            let basic = if p >= 4 || every { q as u32 } else { 0 };
+            #[cfg(test)]
+            let basic = if set == RelabellingSet::Nothing {
+                0
             } else {
-                let mut pairs = Vec::new();
-                let basic = if p >= 4 { q as u32 } else { 0 };
-                #[cfg(test)]
-                let basic = if set == RelabellingSet::Nothing {
-                    0
-                } else {
-                    basic
-                };
-                for i in 0..basic {
-                    for j in i + 1..basic {
-                        pairs.push((i, j));
-                    }
-                }
-                Relabellings::Swaps { pairs }
+                basic
             };
+            for i in 0..basic {
+                for j in i + 1..basic {
+                    pairs.push((i, j));
+                }
+            }
+            Relabellings::Swaps { pairs }
+        };
         let width = k + 1;
         let mut search = ColumnSearch {
             q,
@@ -176,6 +181,23 @@ impl ColumnSearch {
             search.add(1 << i);
         }
         search
+    }
+
+    /// The column (bit set over the basic factors) of rank `rank` (basic factors first).
+    pub(super) fn column_of(&self, rank: u32) -> u32 {
+        let rank = rank as usize;
+        if rank < self.q {
+            1 << rank
+        } else {
+            self.columns[rank - self.q]
+        }
+    }
+
+    /// Ranks of the interaction columns, in search order.
+    pub(super) fn candidate_ranks(&self) -> Vec<u32> {
+        (0..self.columns.len())
+            .map(|i| (self.q + i) as u32)
+            .collect()
     }
 
     pub(super) fn relabelling_count(&self) -> usize {

@@ -64,9 +64,11 @@ use std::time::{Duration, Instant};
 
 mod code_search;
 mod column_search;
+pub mod required;
 
 use code_search::CodeSearch;
 use column_search::ColumnSearch;
+pub use required::{RequiredError, RequiredOutcome, design_keeping_clear, parse_required};
 
 /// How long a search may run before it returns the best design found so far.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]

@@ -18,6 +18,7 @@ use twofold_core::foldover::{FoldKind, FoldOver, fold_over};
 use twofold_core::ofat;
 
 use super::plan_power::{PlanPower, plan_power};
+use super::plan_require;
 use twofold_core::plan::{Blocking, Plan, PlanSpec, build_fold_over_plan, build_plan};
 use twofold_core::search::{SearchBudget, minimum_aberration};
 use twofold_core::term::{LETTERS, MAX_FACTORS, Term, factor_index};
@@ -93,6 +94,11 @@ pub struct PlanArgs {
     /// An effect size to find: adds the replicates it needs (with --sigma)
     #[arg(long, value_name = "D", allow_hyphen_values = true)]
     pub effect: Option<String>,
+    /// Two-factor interactions that must be clear of main effects and other two-factor
+    /// interactions, e.g. "AB,CE": the design of least aberration that keeps them clear, in the
+    /// fewest runs unless --runs is given (with --generators, says whether those keep them clear)
+    #[arg(long, value_name = "LIST")]
+    pub require: Option<String>,
     /// Model terms the power is figured for, e.g. A,B,C,AB (with --sigma) [default: the main
     /// effects]
     #[arg(long = "model-terms", value_name = "LIST")]
@@ -127,6 +133,7 @@ struct Planned {
     centre_points: usize,
     replicates: usize,
     power: Option<PlanPower>,
+    required: Vec<Term>,
 }
 
 /// Runs `twofold plan`.
@@ -208,7 +215,11 @@ fn compute(a: &PlanArgs) -> Result<Planned, PlanInputError> {
             })?,
         None => 2.0,
     };
+    let required = plan_require::parse(a.require.as_deref(), k).map_err(invalid)?;
     let (design, proven) = match a.generators.as_deref() {
+        None if !required.is_empty() => {
+            plan_require::design(k, &required, runs, search_seconds).map_err(invalid)?
+        }
         Some(g) => (
             FractionalDesign::from_text(k, runs, g).map_err(|e| invalid(e.to_string()))?,
             None,
@@ -305,6 +316,7 @@ fn compute(a: &PlanArgs) -> Result<Planned, PlanInputError> {
         centre_points,
         replicates,
         power,
+        required,
     })
 }
 
@@ -411,7 +423,7 @@ fn to_json(p: &Planned) -> Value {
             "repeats_original": f.repeats_original,
         })
     });
-    json!({
+    let mut plan = json!({
         "family": "regular",
         "factors": LETTERS[..k].iter().map(|c| c.to_string()).collect::<Vec<_>>(),
         "factor_names": p.names,
@@ -436,7 +448,9 @@ fn to_json(p: &Planned) -> Value {
         "fold_over": fold,
         "power": p.power.as_ref().map(PlanPower::json),
         "runs": runs,
-    })
+    });
+    plan_require::add_json(&mut plan, &p.required, &p.report);
+    plan
 }
 
 fn write_csv(p: &Planned, out: &mut dyn Write) -> std::io::Result<()> {
@@ -530,6 +544,9 @@ fn write_text(p: &Planned, out: &mut dyn Write) -> std::io::Result<()> {
             "Minimum aberration: not proven (the search ran out of time; best design found)"
         )?,
         None => {}
+    }
+    if let Some(line) = plan_require::text_line(&p.required, r) {
+        writeln!(out, "{line}")?;
     }
     let warned = r.main_effects_aliased_with_interactions();
     if !warned.is_empty() {
