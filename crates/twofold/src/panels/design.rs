@@ -6,6 +6,7 @@
 //! many factors, so in the window it runs on a worker thread and the table says "searching".
 
 mod aliases;
+mod partial;
 pub mod power;
 pub mod screening;
 
@@ -56,7 +57,7 @@ pub struct DesignPane {
     /// Alias report of the draft, cached for one (factor count, generators) key.
     preview: Option<(PreviewKey, Result<AliasReport, String>)>,
     /// Partial aliasing of a screening draft in words, cached for one (factors, runs) key.
-    screening_preview: Option<((usize, usize), Vec<String>)>,
+    screening_preview: Option<partial::Preview>,
     /// A run size was just picked: the button that makes the run sheet takes the keyboard, so
     /// choosing and confirming are two key presses.
     focus_make: bool,

@@ -9,55 +9,6 @@ use crate::panels::widgets::warning_box;
 use twofold_core::alias::{AliasReport, chain_label, roman};
 use twofold_study::project::{DesignSettings, Project};
 
-/// The partial aliasing of an `n`-run screening design for `k` factors, one line per main
-/// effect (the core's alias matrix).
-fn screening_preview(pane: &mut DesignPane, ui: &mut Ui, k: usize, n: usize) {
-    if pane.screening_preview.as_ref().map(|p| p.0) != Some((k, n)) {
-        let lines = match twofold_core::screening::plackett_burman(n, k) {
-            Err(e) => vec![e.to_string()],
-            Ok(d) => match twofold_core::screening::partial_aliases(&d.rows) {
-                None => vec!["the main effects are not estimable".to_string()],
-                Some(list) => list
-                    .iter()
-                    .map(|p| {
-                        let mut sizes: Vec<String> = p
-                            .aliases
-                            .iter()
-                            .map(|(_, c)| twofold_study::numbers::fmt_sig(c.abs(), 2))
-                            .collect();
-                        sizes.sort();
-                        sizes.dedup();
-                        let shown: Vec<String> =
-                            p.aliases.iter().take(6).map(|(t, _)| t.label()).collect();
-                        format!(
-                            "{}: partially aliased with {} two-factor interactions ({}{}), coefficients ±{}",
-                            p.term.label(),
-                            p.aliases.len(),
-                            shown.join(", "),
-                            if p.aliases.len() > 6 { ", …" } else { "" },
-                            sizes.join(" or ±")
-                        )
-                    })
-                    .collect(),
-            },
-        };
-        pane.screening_preview = Some(((k, n), lines));
-    }
-    ui.label(
-        RichText::new("Alias structure of this design")
-            .strong()
-            .size(17.0),
-    );
-    ui.label(format!(
-        "Plackett–Burman screening design of {n} runs: every main effect is estimated clear of the other main effects, and shares part of its estimate with two-factor interactions. Analyse main effects only; a fold-over separates them from the interactions."
-    ));
-    if let Some((_, lines)) = &pane.screening_preview {
-        for l in lines {
-            ui.label(l);
-        }
-    }
-}
-
 pub(super) fn alias_preview(
     pane: &mut DesignPane,
     ui: &mut Ui,
@@ -70,7 +21,7 @@ pub(super) fn alias_preview(
         && super::screening::is_screening(draft, n)
         && twofold_core::screening::SCREENING_RUNS.contains(&n)
     {
-        screening_preview(pane, ui, k, n);
+        super::partial::show(pane, ui, view, k, n);
         return;
     }
     let key: PreviewKey = (k, draft.base_runs, draft.generators.clone());
