@@ -8,6 +8,7 @@
 mod aliases;
 mod partial;
 pub mod power;
+pub mod required;
 pub mod screening;
 
 use egui::{Grid, RichText, Ui};
@@ -58,6 +59,8 @@ pub struct DesignPane {
     preview: Option<(PreviewKey, Result<AliasReport, String>)>,
     /// Partial aliasing of a screening draft in words, cached for one (factors, runs) key.
     screening_preview: Option<partial::Preview>,
+    /// Interactions that must stay clear, and the design found for them.
+    required: required::Required,
     /// A run size was just picked: the button that makes the run sheet takes the keyboard, so
     /// choosing and confirming are two key presses.
     focus_make: bool,
@@ -165,6 +168,7 @@ impl Pane for DesignPane {
             .show(ui, |ui| {
                 ui.label(RichText::new(format!("Run sizes for {k} factors").as_str()).strong());
                 options_table(self, ui, view, k, &mut draft);
+                required::row(self, ui, view, k, &mut draft);
                 power::power_row(ui, view, out);
                 ui.add_space(6.0);
                 generators_row(self, ui, view, k, &mut draft);
