@@ -113,6 +113,61 @@ pub fn split_plot_order(whole_plot: &[usize], seed: u64, randomise: bool) -> Vec
     out
 }
 
+/// A split-plot layout of a plan's runs.
+#[derive(Debug, Clone, PartialEq)]
+pub struct WholePlotLayout {
+    /// Run indices in the order to run them.
+    pub order: Vec<usize>,
+    /// Whole plot of each run (by index), 1-based, numbered in the order they are run.
+    pub whole_plot: Vec<usize>,
+    /// Whole plots: the settings of the hard-to-change factors made.
+    pub resets: usize,
+    /// Settings made on average when the same runs are completely randomised.
+    pub resets_if_randomised: f64,
+}
+
+/// Groups runs (coded `rows` with their `replicate`) into whole plots of the hard-to-change
+/// factors `htc` — each replicate sets them anew, so its whole plots are its own (replicated
+/// whole plots give the whole-plot effects an error of their own) — and orders them (see
+/// [`split_plot_order`]).
+pub fn whole_plot_layout(
+    rows: &[Vec<i8>],
+    replicate: &[u32],
+    htc: &[usize],
+    seed: u64,
+    randomise: bool,
+) -> WholePlotLayout {
+    let k = rows.first().map_or(0, Vec::len);
+    let keyed: Vec<Vec<i8>> = rows
+        .iter()
+        .zip(replicate)
+        .map(|(r, &rep)| {
+            let mut key = r.clone();
+            key.push(i8::try_from(rep).unwrap_or(i8::MAX));
+            key
+        })
+        .collect();
+    let mut keys = htc.to_vec();
+    keys.push(k);
+    let wp = whole_plots_of(&keyed, &keys);
+    let order = split_plot_order(&wp, seed, randomise);
+    let mut number = vec![0usize; wp.iter().copied().max().map_or(0, |m| m + 1)];
+    let mut next = 1;
+    for &i in &order {
+        if number[wp[i]] == 0 {
+            number[wp[i]] = next;
+            next += 1;
+        }
+    }
+    WholePlotLayout {
+        whole_plot: wp.iter().map(|&w| number[w]).collect(),
+        order,
+        resets: next - 1,
+        // A random order resets whenever the hard-to-change setting itself changes.
+        resets_if_randomised: expected_resets_randomised(&whole_plots_of(rows, htc)),
+    }
+}
+
 /// The stratum of `term` in the plan with coded `rows` grouped by `whole_plot`.
 pub fn stratum_of(term: Term, rows: &[Vec<i8>], whole_plot: &[usize]) -> Stratum {
     let mut value: BTreeMap<usize, i8> = BTreeMap::new();

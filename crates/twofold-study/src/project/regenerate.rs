@@ -57,7 +57,6 @@ fn into_whole_plots(
     design: &DesignSettings,
     runs: &mut [RunRecord],
 ) -> Result<(), PlanError> {
-    use twofold_core::splitplot::{split_plot_order, whole_plots_of};
     let htc: Vec<usize> = project
         .factors
         .iter()
@@ -79,30 +78,18 @@ fn into_whole_plots(
             "hard-to-change factors with blocks or a fold-over are not offered yet: plan the whole plots unblocked".into(),
         ));
     }
-    // Each replicate sets the hard-to-change factors anew: its whole plots are its own
-    // (replicated whole plots give the whole-plot effects an error of their own).
-    let k = project.factors.len();
-    let rows: Vec<Vec<i8>> = runs
-        .iter()
-        .map(|r| {
-            let mut key = r.levels.clone();
-            key.push(i8::try_from(r.replicate).unwrap_or(i8::MAX));
-            key
-        })
-        .collect();
-    let mut keys = htc.clone();
-    keys.push(k);
-    let wp = whole_plots_of(&rows, &keys);
-    let order = split_plot_order(&wp, design.seed, design.randomize);
-    let mut number = vec![0u32; wp.iter().copied().max().map_or(0, |m| m + 1)];
-    let mut next = 1u32;
-    for (position, &i) in order.iter().enumerate() {
-        if number[wp[i]] == 0 {
-            number[wp[i]] = next;
-            next += 1;
-        }
+    let rows: Vec<Vec<i8>> = runs.iter().map(|r| r.levels.clone()).collect();
+    let replicate: Vec<u32> = runs.iter().map(|r| r.replicate).collect();
+    let layout = twofold_core::splitplot::whole_plot_layout(
+        &rows,
+        &replicate,
+        &htc,
+        design.seed,
+        design.randomize,
+    );
+    for (position, &i) in layout.order.iter().enumerate() {
         runs[i].run_order = u32::try_from(position + 1).unwrap_or(u32::MAX);
-        runs[i].whole_plot = Some(number[wp[i]]);
+        runs[i].whole_plot = u32::try_from(layout.whole_plot[i]).ok();
     }
     Ok(())
 }
@@ -166,9 +153,19 @@ pub(crate) fn plan_runs(
         None => build_plan(&spec)?,
         Some(kind) => build_fold_over_plan(&spec, &fold_over(&spec.design, kind)?)?,
     };
+    let out = records(project, design, plan.runs)?;
+    Ok((out, used))
+}
+
+/// Empty run records of the planned `runs` for the project's responses, in standard order,
+/// grouped into whole plots when factors are hard to change.
+fn records(
+    project: &Project,
+    design: &DesignSettings,
+    runs: Vec<twofold_core::plan::PlannedRun>,
+) -> Result<Vec<RunRecord>, PlanError> {
     let responses = project.responses.len();
-    let mut out: Vec<RunRecord> = plan
-        .runs
+    let mut out: Vec<RunRecord> = runs
         .into_iter()
         .map(|r| RunRecord {
             // The core caps a plan at 2^20 runs, well inside u32.
@@ -187,7 +184,7 @@ pub(crate) fn plan_runs(
         .collect();
     out.sort_by_key(|r| r.std_order);
     into_whole_plots(project, design, &mut out)?;
-    Ok((out, used))
+    Ok(out)
 }
 
 /// The fraction `design` names for `k` factors (without its fold-over): from the generators,
@@ -252,25 +249,7 @@ fn screening_sheet(
         design.randomize,
         fold,
     );
-    let responses = project.responses.len();
-    let mut out: Vec<RunRecord> = runs
-        .into_iter()
-        .map(|r| RunRecord {
-            std_order: u32::try_from(r.std_order).unwrap_or(u32::MAX),
-            run_order: u32::try_from(r.run_order).unwrap_or(u32::MAX),
-            block: r.block,
-            centre: r.centre,
-            replicate: r.replicate,
-            levels: r.levels,
-            values: vec![Cell::default(); responses],
-            status: RunStatus::ToDo,
-            note: String::new(),
-            entered_at: None,
-            whole_plot: None,
-        })
-        .collect();
-    out.sort_by_key(|r| r.std_order);
-    into_whole_plots(project, design, &mut out)?;
+    let out = records(project, design, runs)?;
     Ok((out, design.clone()))
 }
 

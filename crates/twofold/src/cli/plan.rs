@@ -454,6 +454,22 @@ fn to_json(p: &Planned) -> Value {
 }
 
 fn write_csv(p: &Planned, out: &mut dyn Write) -> std::io::Result<()> {
+    write_runs_csv(
+        &p.names,
+        &p.plan.runs,
+        p.split.as_ref().map(|s| s.whole_plot.as_slice()),
+        out,
+    )
+}
+
+/// The run sheet as CSV, one row per run in the order given (also for screening designs), with
+/// a `whole_plot` column when whole plots are given.
+pub(crate) fn write_runs_csv(
+    names: &[String],
+    runs: &[twofold_core::plan::PlannedRun],
+    whole_plot: Option<&[usize]>,
+    out: &mut dyn Write,
+) -> std::io::Result<()> {
     let mut w = csv::Writer::from_writer(out);
     let mut header = vec![
         "run_order".to_string(),
@@ -462,16 +478,16 @@ fn write_csv(p: &Planned, out: &mut dyn Write) -> std::io::Result<()> {
         "centre".into(),
         "replicate".into(),
     ];
-    if p.split.is_some() {
+    if whole_plot.is_some() {
         header.push("whole_plot".into());
     }
     header.extend(
-        p.names
+        names
             .iter()
             .map(|n| twofold_study::interchange::guard(n).into_owned()),
     );
     w.write_record(&header).map_err(std::io::Error::other)?;
-    for (n, r) in p.plan.runs.iter().enumerate() {
+    for (n, r) in runs.iter().enumerate() {
         let mut row = vec![
             r.run_order.to_string(),
             r.std_order.to_string(),
@@ -479,12 +495,8 @@ fn write_csv(p: &Planned, out: &mut dyn Write) -> std::io::Result<()> {
             if r.centre { "yes" } else { "no" }.to_string(),
             r.replicate.to_string(),
         ];
-        if let Some(s) = &p.split {
-            row.push(
-                s.whole_plot
-                    .get(n)
-                    .map_or(String::new(), ToString::to_string),
-            );
+        if let Some(wp) = whole_plot {
+            row.push(wp.get(n).map_or(String::new(), ToString::to_string));
         }
         row.extend(r.levels.iter().map(|v| v.to_string()));
         w.write_record(&row).map_err(std::io::Error::other)?;

@@ -102,18 +102,22 @@ fn model_term_count(list: Option<&str>, factors: usize) -> Result<usize, String>
     Ok(terms.len())
 }
 
+/// The `power` object of `plan --json` (also for screening designs).
+pub(crate) fn power_json(p: &DesignPower) -> Value {
+    json!({
+        "sigma": p.sigma,
+        "alpha": p.alpha,
+        "power": p.power,
+        "error_df": p.error_df,
+        "detectable_effect": p.detectable_effect,
+        "replicates_needed": p.replicates_needed,
+    })
+}
+
 impl PlanPower {
     /// The `power` object of `plan --json`.
     pub(crate) fn json(&self) -> Value {
-        let p = &self.0;
-        json!({
-            "sigma": p.sigma,
-            "alpha": p.alpha,
-            "power": p.power,
-            "error_df": p.error_df,
-            "detectable_effect": p.detectable_effect,
-            "replicates_needed": p.replicates_needed,
-        })
+        power_json(&self.0)
     }
 
     /// Lines of the text output.

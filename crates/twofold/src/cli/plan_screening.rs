@@ -203,14 +203,7 @@ fn to_json(s: &Screening) -> Value {
         "sum_of_squared_j3": s.b3,
         "partial_aliases": aliases_json(&s.aliases),
         "seed": s.seed,
-        "power": s.power.as_ref().and_then(|p| p.as_ref().ok()).map(|p| json!({
-            "sigma": p.sigma,
-            "alpha": p.alpha,
-            "power": p.power,
-            "error_df": p.error_df,
-            "detectable_effect": p.detectable_effect,
-            "replicates_needed": p.replicates_needed,
-        })),
+        "power": s.power.as_ref().and_then(|p| p.as_ref().ok()).map(super::plan_power::power_json),
         "runs": runs,
     })
 }
@@ -285,32 +278,7 @@ fn write_text(s: &Screening, out: &mut dyn Write) -> std::io::Result<()> {
 }
 
 fn write_csv(s: &Screening, out: &mut dyn Write) -> std::io::Result<()> {
-    let mut w = csv::Writer::from_writer(out);
-    let mut header = vec![
-        "run_order".to_string(),
-        "std_order".into(),
-        "block".into(),
-        "centre".into(),
-        "replicate".into(),
-    ];
-    header.extend(
-        s.names
-            .iter()
-            .map(|n| twofold_study::interchange::guard(n).into_owned()),
-    );
-    w.write_record(&header).map_err(std::io::Error::other)?;
-    for r in &s.sheet {
-        let mut row = vec![
-            r.run_order.to_string(),
-            r.std_order.to_string(),
-            r.block.to_string(),
-            if r.centre { "yes" } else { "no" }.to_string(),
-            r.replicate.to_string(),
-        ];
-        row.extend(r.levels.iter().map(|v| v.to_string()));
-        w.write_record(&row).map_err(std::io::Error::other)?;
-    }
-    w.flush()
+    super::plan::write_runs_csv(&s.names, &s.sheet, None, out)
 }
 
 /// Runs the screening branch of `plan` with the checked factor names and seed.

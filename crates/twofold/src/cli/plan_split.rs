@@ -4,9 +4,7 @@
 
 use serde_json::{Value, json};
 use twofold_core::plan::Plan;
-use twofold_core::splitplot::{
-    Stratum, expected_resets_randomised, split_plot_order, stratum_of, whole_plots_of,
-};
+use twofold_core::splitplot::{Stratum, stratum_of, whole_plot_layout};
 use twofold_core::term::{LETTERS, factor_index};
 
 /// The split-plot layout of a plan.
@@ -57,35 +55,16 @@ pub(crate) fn split(plan: &mut Plan, htc: &[usize], seed: u64, randomise: bool) 
     let mut runs = plan.runs.clone();
     runs.sort_by_key(|r| r.std_order);
     let rows: Vec<Vec<i8>> = runs.iter().map(|r| r.levels.clone()).collect();
-    // Each replicate sets the hard-to-change factors anew (its whole plots are its own).
-    let keyed: Vec<Vec<i8>> = runs
-        .iter()
-        .map(|r| {
-            let mut key = r.levels.clone();
-            key.push(i8::try_from(r.replicate).unwrap_or(i8::MAX));
-            key
-        })
-        .collect();
-    let mut keys = htc.to_vec();
-    keys.push(k);
-    let wp = whole_plots_of(&keyed, &keys);
-    let order = split_plot_order(&wp, seed, randomise);
-    // Whole plots numbered in the order they are run.
-    let mut number = vec![0usize; wp.iter().copied().max().map_or(0, |m| m + 1)];
-    let mut next = 1;
-    for &i in &order {
-        if number[wp[i]] == 0 {
-            number[wp[i]] = next;
-            next += 1;
-        }
-    }
+    let replicate: Vec<u32> = runs.iter().map(|r| r.replicate).collect();
+    let layout = whole_plot_layout(&rows, &replicate, htc, seed, randomise);
+    let wp: Vec<usize> = layout.whole_plot.clone();
     let mut reordered = Vec::with_capacity(runs.len());
     let mut whole_plot = Vec::with_capacity(runs.len());
-    for (position, &i) in order.iter().enumerate() {
+    for (position, &i) in layout.order.iter().enumerate() {
         let mut r = runs[i].clone();
         r.run_order = position + 1;
         reordered.push(r);
-        whole_plot.push(number[wp[i]]);
+        whole_plot.push(wp[i]);
     }
     plan.runs = reordered;
     let mut whole_plot_terms = Vec::new();
@@ -100,9 +79,8 @@ pub(crate) fn split(plan: &mut Plan, htc: &[usize], seed: u64, randomise: bool) 
     SplitPlot {
         factors: htc.to_vec(),
         whole_plot,
-        resets: next - 1,
-        // A random order resets whenever the hard-to-change setting itself changes.
-        resets_randomised: expected_resets_randomised(&whole_plots_of(&rows, htc)),
+        resets: layout.resets,
+        resets_randomised: layout.resets_if_randomised,
         whole_plot_terms,
         subplot_terms,
     }
