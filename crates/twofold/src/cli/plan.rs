@@ -400,21 +400,7 @@ fn to_json(p: &Planned) -> Value {
             Value::from(members)
         })
         .collect();
-    let runs: Vec<Value> = p
-        .plan
-        .runs
-        .iter()
-        .map(|r| {
-            json!({
-                "std_order": r.std_order,
-                "run_order": r.run_order,
-                "block": r.block,
-                "centre": r.centre,
-                "replicate": r.replicate,
-                "levels": r.levels,
-            })
-        })
-        .collect();
+    let runs = runs_json(&p.plan.runs);
     let fold = p.fold.as_ref().map(|f| {
         json!({
             "kind": match f.kind { FoldKind::Full => "full".to_string(), FoldKind::Factor(i) => LETTERS[i].to_string() },
@@ -451,6 +437,22 @@ fn to_json(p: &Planned) -> Value {
     });
     plan_require::add_json(&mut plan, &p.required, &p.report);
     plan
+}
+
+/// The `runs` array of `plan --json`: each run's orders, block, centre flag, replicate, levels.
+pub(crate) fn runs_json(runs: &[twofold_core::plan::PlannedRun]) -> Vec<Value> {
+    runs.iter()
+        .map(|r| {
+            json!({
+                "std_order": r.std_order,
+                "run_order": r.run_order,
+                "block": r.block,
+                "centre": r.centre,
+                "replicate": r.replicate,
+                "levels": r.levels,
+            })
+        })
+        .collect()
 }
 
 fn write_csv(p: &Planned, out: &mut dyn Write) -> std::io::Result<()> {

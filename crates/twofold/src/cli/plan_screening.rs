@@ -173,20 +173,7 @@ fn aliases_json(list: &[PartialAliases]) -> Value {
 
 fn to_json(s: &Screening) -> Value {
     let k = s.names.len();
-    let runs: Vec<Value> = s
-        .sheet
-        .iter()
-        .map(|r| {
-            json!({
-                "std_order": r.std_order,
-                "run_order": r.run_order,
-                "block": r.block,
-                "centre": r.centre,
-                "replicate": r.replicate,
-                "levels": r.levels,
-            })
-        })
-        .collect();
+    let runs = super::plan::runs_json(&s.sheet);
     json!({
         "family": "plackett_burman",
         "factors": LETTERS[..k].iter().map(|c| c.to_string()).collect::<Vec<_>>(),
