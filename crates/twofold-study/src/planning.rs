@@ -102,6 +102,20 @@ pub fn design_power(
 ) -> Option<Result<DesignPower, String>> {
     let sigma = settings.sigma?;
     let (alpha, power) = (settings.alpha, settings.power);
+    // A named model: its distinct terms (labels that do not read as terms are not counted; the
+    // field that takes them says so).
+    let mut counts = *counts;
+    if !settings.model_labels().is_empty() {
+        let mut terms: Vec<twofold_core::term::Term> = settings
+            .model_labels()
+            .into_iter()
+            .filter_map(|t| twofold_core::term::Term::parse(t, counts.terms.max(1)).ok())
+            .collect();
+        terms.sort();
+        terms.dedup();
+        counts.terms = terms.len();
+    }
+    let counts = &counts;
     let now = counts.spec(sigma, alpha, counts.replicates);
     let compute = || -> Result<DesignPower, String> {
         let detectable_effect = now.detectable_effect(power).map_err(|e| e.to_string())?;

@@ -132,3 +132,36 @@ fn the_design_options_show_the_smallest_effect_for_the_typed_sigma() {
     let cell = fmt_sig(p.detectable_effect, 3);
     assert!(h.query_by_label(&cell).is_some(), "{cell} in the table");
 }
+
+#[test]
+fn a_named_model_counts_its_terms_in_the_error_df() {
+    let demo = demo_project();
+    let mut h = harness(TwofoldApp::new_for_test(demo.clone()));
+    h.state_mut().set_step(Step::Design);
+    settle(&mut h);
+    h.get_by_label("process standard deviation").click();
+    h.run();
+    h.get_by_label("process standard deviation")
+        .type_text("2.5");
+    settle(&mut h);
+    let field = twofold_app::panels::design::power::MODEL_FIELD;
+    h.get_by_label(field).click();
+    h.run();
+    h.get_by_label(field).type_text("A, B, C, D, AB, AC, ");
+    settle(&mut h);
+    // What was typed stays as typed, trailing separator included.
+    assert_eq!(
+        h.state().project().power.model_terms,
+        "A, B, C, D, AB, AC, "
+    );
+    // 18 runs − 1 − 6 terms = 11 error df, as the engine counts it.
+    let settings = h.state().project().power.clone();
+    let counts = RunCounts::of(&demo.design, 4, 16);
+    let p = match design_power(&counts, &settings) {
+        Some(Ok(p)) => p,
+        other => panic!("{other:?}"),
+    };
+    assert_eq!(p.error_df, 11);
+    let cell = fmt_sig(p.detectable_effect, 3);
+    assert!(h.query_by_label(&cell).is_some(), "{cell} in the table");
+}

@@ -13,12 +13,17 @@ pub(super) fn detectable_words(project: &Project) -> Option<String> {
     Some(match project_power(project)? {
         Ok(p) => {
             let mut s = format!(
-                "an effect of {} is found with probability {} (σ = {}, two-sided test at α = {}, {} error df, main-effects model)",
+                "an effect of {} is found with probability {} (σ = {}, two-sided test at α = {}, {} error df, {})",
                 fmt_sig(p.detectable_effect, 3),
                 fmt_sig(p.power, 2),
                 fmt_sig(p.sigma, 4),
                 fmt_sig(p.alpha, 3),
-                p.error_df
+                p.error_df,
+                if project.power.model_labels().is_empty() {
+                    "main-effects model".to_string()
+                } else {
+                    format!("model {}", project.power.model_labels().join(", "))
+                }
             );
             if let (Some(d), Some(r)) = (p.effect, p.replicates_needed) {
                 s.push_str(&format!(

@@ -162,7 +162,7 @@ fn shape_words(shape: f64) -> String {
 }
 
 /// What the power of a design rests on, typed in the design step.
-#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct PowerSettings {
     /// Process standard deviation σ in the units of the response planned for; `None`: not known
     /// yet.
@@ -177,6 +177,10 @@ pub struct PowerSettings {
     /// An effect size the engineer cares about (replicates needed for it); `None`: not given.
     #[serde(default)]
     pub effect: Option<f64>,
+    /// The model the test is made in, as typed: term labels separated by commas or spaces
+    /// (`A, B, AB`); empty: the main effects.
+    #[serde(default, skip_serializing_if = "String::is_empty")]
+    pub model_terms: String,
 }
 
 fn default_alpha() -> f64 {
@@ -195,11 +199,21 @@ impl Default for PowerSettings {
             alpha: DEFAULT_ALPHA,
             power: DEFAULT_POWER,
             effect: None,
+            model_terms: String::new(),
         }
     }
 }
 
 impl PowerSettings {
+    /// The labels of the named model, as typed (empty: the main effects).
+    pub fn model_labels(&self) -> Vec<&str> {
+        self.model_terms
+            .split([',', ' ', ';'])
+            .map(str::trim)
+            .filter(|s| !s.is_empty())
+            .collect()
+    }
+
     /// Whether nothing was typed (not written to the file).
     pub fn is_default(&self) -> bool {
         *self == PowerSettings::default()

@@ -75,6 +75,7 @@ pub(crate) fn plan_power(
         alpha,
         power,
         effect,
+        model_terms: String::new(),
     };
     match design_power(&counts, &settings) {
         Some(Ok(p)) => Ok(Some(PlanPower(

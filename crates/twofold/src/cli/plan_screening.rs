@@ -127,6 +127,7 @@ fn compute(a: &PlanArgs, names: Vec<String>, seed: u64) -> Result<Screening, Str
                             })?,
                     ),
                 },
+                model_terms: String::new(),
             };
             design_power(&counts, &settings)
         }

@@ -115,7 +115,7 @@ impl Pane for ModelPane {
                 out.push(Command::Edit(twofold_study::project::Edit::SetPower(
                     twofold_study::project::PowerSettings {
                         sigma: Some(s),
-                        ..view.project.power
+                        ..view.project.power.clone()
                     },
                 )));
             }

@@ -5,19 +5,22 @@
 
 use egui::Ui;
 
-use crate::panels::widgets::number_field;
+use crate::panels::widgets::{number_field, text_field};
 use crate::panels::{Command, View};
 use twofold_study::numbers::fmt_sig;
 use twofold_study::planning::{RunCounts, design_power};
 use twofold_study::project::{DesignSettings, Edit, PowerSettings};
+
+/// Accessible name of the field naming the model the power is figured in.
+pub const MODEL_FIELD: &str = "model terms of the power figures";
 
 /// Accessible name of the process standard deviation field.
 pub const SIGMA_FIELD: &str = "process standard deviation";
 
 /// The row where σ, α, the power and an effect of interest are typed.
 pub(super) fn power_row(ui: &mut Ui, view: &View<'_>, out: &mut Vec<Command>) {
-    let settings = view.project.power;
-    let mut next = settings;
+    let settings = view.project.power.clone();
+    let mut next = settings.clone();
     let id = ui.scope_id().with("power_row");
     ui.horizontal_wrapped(|ui| {
         ui.label("Process standard deviation σ");
@@ -46,13 +49,41 @@ pub(super) fn power_row(ui: &mut Ui, view: &View<'_>, out: &mut Vec<Command>) {
         {
             next.effect = Some(v);
         }
+        ui.label("  model");
+        if let Some(t) = text_field(
+            ui,
+            id.with("model"),
+            &settings.model_terms,
+            120.0,
+            "main effects",
+        ) {
+            next.model_terms = t;
+        }
+        if let Some(r) = ui.ctx().read_response(id.with("model")) {
+            let _ = r.accessible_name(MODEL_FIELD);
+        }
         if settings.sigma.is_some() && ui.small_button("clear").clicked() {
             next = PowerSettings::default();
         }
     });
     ui.weak(
-        "σ in the units of the response you plan for: from repeat measurements, or an earlier study's residual SD (\"Plan with this SD\" on \"Can the model be trusted?\"); the tables above then show the smallest effect each design finds with that power (two-sided t test of one effect, main-effects model).",
+        "σ in the units of the response you plan for: from repeat measurements, or an earlier study's residual SD (\"Plan with this SD\" on \"Can the model be trusted?\"); the tables above then show the smallest effect each design finds with that power (two-sided t test of one effect in the main-effects model, or in the model named, e.g. A, B, C, AB).",
     );
+    let k = view.project.factors.len();
+    let unreadable: Vec<&str> = next
+        .model_labels()
+        .into_iter()
+        .filter(|t| twofold_core::term::Term::parse(t, k).is_err())
+        .collect();
+    if !unreadable.is_empty() {
+        ui.colored_label(
+            view.pal.error,
+            format!(
+                "Not terms of these factors (left out of the count): {}",
+                unreadable.join(", ")
+            ),
+        );
+    }
     let bad = |p: f64| !(p > 0.0 && p < 1.0);
     if next.sigma.is_some_and(|s| s <= 0.0) || bad(next.alpha) || bad(next.power) {
         ui.colored_label(
