@@ -95,4 +95,6 @@ fn a_hard_to_change_factor_groups_the_sheet_and_splits_the_effects() {
             .count()
             > 0
     );
+    // The pooled margins of the bars are named as such.
+    assert!(h.query_all_by_label_contains("pool both strata").count() > 0);
 }

@@ -96,6 +96,9 @@ pub fn response_summary(project: &Project, results: &Report, goal: Goal) -> Resp
     let mut all: Vec<String> = results.warnings.iter().map(|w| w.text.clone()).collect();
     if let (Some(strata), Ok(table)) = (&results.strata, &results.effects) {
         all.extend(strata.sentences(table));
+        all.push(
+            "The effect ranking's Lenth marks pool both strata: judge whole-plot and subplot effects by their own margins above.".to_string(),
+        );
     }
     for w in warnings {
         if !all.contains(&w) {

@@ -118,6 +118,9 @@ fn build(view: &View<'_>, res: &Report) -> Option<Built> {
     })
 }
 
+/// Said beside a split-plot study's effects: the bars and the half-normal plot pool both strata.
+pub const POOLED_NOTE: &str = "The ME and SME lines of the bars and the half-normal plot pool both strata: judge whole-plot and subplot effects by their own margins above.";
+
 impl Pane for EffectsPane {
     fn ui(&mut self, ui: &mut Ui, view: &View<'_>, out: &mut Vec<Command>) {
         let Self { built } = self;
@@ -162,6 +165,7 @@ impl Pane for EffectsPane {
             for line in strata.sentences(table) {
                 ui.label(RichText::new(line).color(pal.ink));
             }
+            warning_box(ui, &pal, POOLED_NOTE);
         }
         let toggle = |term: Term, out: &mut Vec<Command>| {
             out.push(Command::Edit(Edit::ToggleTerm {
