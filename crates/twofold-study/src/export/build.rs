@@ -234,10 +234,7 @@ fn design_facts(project: &Project, warnings: &mut Vec<String>) -> DesignFacts {
         tangled_chains: 0,
         seed: d.randomize.then_some(d.seed),
         detectable: None,
-        screening_runs: d
-            .base_runs
-            .map(|n| n as usize)
-            .filter(|n| twofold_core::screening::SCREENING_RUNS.contains(n)),
+        screening_runs: d.screening_runs(),
     };
     if let Some(n) = facts.screening_runs {
         warnings.push(format!(

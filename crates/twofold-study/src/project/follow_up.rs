@@ -119,9 +119,7 @@ impl Project {
             return Err(FollowUpError::Outdated);
         }
         let mut d = self.design.clone();
-        let screening = d
-            .base_runs
-            .is_some_and(|n| twofold_core::screening::SCREENING_RUNS.contains(&(n as usize)));
+        let screening = d.screening_runs().is_some();
         match follow_up {
             FollowUp::FoldOver(kind) if screening => {
                 if d.fold.is_some() {

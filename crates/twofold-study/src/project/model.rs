@@ -207,6 +207,16 @@ fn default_true() -> bool {
     true
 }
 
+impl DesignSettings {
+    /// The run size when the settings name a Plackett–Burman screening design (a run size of
+    /// [`twofold_core::screening::SCREENING_RUNS`]); `None` for a regular design.
+    pub fn screening_runs(&self) -> Option<usize> {
+        self.base_runs
+            .map(|n| n as usize)
+            .filter(|n| twofold_core::screening::SCREENING_RUNS.contains(n))
+    }
+}
+
 impl Default for DesignSettings {
     /// A full factorial, one replicate, no blocks, no centre points, randomised from seed 1.
     fn default() -> Self {

@@ -120,9 +120,7 @@ pub(crate) fn plan_runs(
         return Err(PlanError::Invalid(p.message));
     }
     let k = project.factors.len();
-    if let Some(n) = design.base_runs.map(|n| n as usize)
-        && twofold_core::screening::SCREENING_RUNS.contains(&n)
-    {
+    if let Some(n) = design.screening_runs() {
         return screening_sheet(project, design, n);
     }
     let fraction = fraction_of(k, design)?;

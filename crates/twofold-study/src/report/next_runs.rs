@@ -319,12 +319,7 @@ pub fn next_runs(project: &Project, report: Option<&Report>) -> Vec<NextRun> {
             ));
         }
     }
-    let screening = project
-        .design
-        .base_runs
-        .map(|n| n as usize)
-        .filter(|n| twofold_core::screening::SCREENING_RUNS.contains(n));
-    if let Some(n) = screening
+    if let Some(n) = project.design.screening_runs()
         && project.design.fold.is_none()
     {
         // The mirror image of a screening design cancels every partial alias of a main effect

@@ -59,6 +59,8 @@ pub struct DesignPane {
     preview: Option<(PreviewKey, Result<AliasReport, String>)>,
     /// Partial aliasing of a screening draft in words, cached for one (factors, runs) key.
     screening_preview: Option<partial::Preview>,
+    /// The power column, computed once per (power settings, draft, factors).
+    power_cells: power::PowerCells,
     /// Interactions that must stay clear, and the design found for them.
     required: required::Required,
     /// A run size was just picked: the button that makes the run sheet takes the keyboard, so
@@ -373,7 +375,7 @@ fn options_table(
                     label.on_hover_text("Best found in the time allowed; not proven minimum aberration.");
                 }
                 if let Some((text, tip)) =
-                    power::power_cell(&view.project.power, draft, k, o.runs)
+                    pane.power_cells.cell(&view.project.power, draft, k, o.runs)
                 {
                     ui.label(text).on_hover_text(tip);
                 }

@@ -17,9 +17,8 @@ pub(super) fn alias_preview(
     draft: &DesignSettings,
 ) {
     let pal = view.pal;
-    if let Some(n) = draft.base_runs.map(|n| n as usize)
+    if let Some(n) = draft.screening_runs()
         && super::screening::is_screening(draft, n)
-        && twofold_core::screening::SCREENING_RUNS.contains(&n)
     {
         super::partial::show(pane, ui, view, k, n);
         return;

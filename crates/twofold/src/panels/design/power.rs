@@ -104,9 +104,46 @@ pub(super) fn power_heading(settings: &PowerSettings) -> Option<String> {
     ))
 }
 
+/// The text and hover text of one option's cell.
+type CellText = Option<(String, String)>;
+
+/// The power cells of the options, computed once for a (power settings, draft, factors) key:
+/// each takes a noncentral-t root search, too slow to repeat every frame.
+#[derive(Debug, Default)]
+pub(super) struct PowerCells {
+    key: Option<(PowerSettings, DesignSettings, usize)>,
+    cells: Vec<(usize, CellText)>,
+}
+
+impl PowerCells {
+    /// The cell of the option of `runs` runs (see [`power_cell`]).
+    pub(super) fn cell(
+        &mut self,
+        settings: &PowerSettings,
+        draft: &DesignSettings,
+        factors: usize,
+        runs: usize,
+    ) -> CellText {
+        let fresh = self
+            .key
+            .as_ref()
+            .is_some_and(|(s, d, k)| s == settings && d == draft && *k == factors);
+        if !fresh {
+            self.key = Some((settings.clone(), draft.clone(), factors));
+            self.cells.clear();
+        }
+        if let Some((_, c)) = self.cells.iter().find(|(n, _)| *n == runs) {
+            return c.clone();
+        }
+        let c = power_cell(settings, draft, factors, runs);
+        self.cells.push((runs, c.clone()));
+        c
+    }
+}
+
 /// The cell of one option: the smallest effect seen, and the replicates an effect of interest
 /// needs.
-pub(super) fn power_cell(
+fn power_cell(
     settings: &PowerSettings,
     draft: &DesignSettings,
     factors: usize,

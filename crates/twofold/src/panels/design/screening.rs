@@ -109,7 +109,7 @@ fn row(
         "Measuring one factor at a time would need about {equivalent} runs for the same precision of every main effect."
     ));
     ui.label("Plackett–Burman (screening)");
-    if let Some((text, tip)) = power::power_cell(&view.project.power, draft, k, n) {
+    if let Some((text, tip)) = pane.power_cells.cell(&view.project.power, draft, k, n) {
         ui.label(text).on_hover_text(tip);
     }
     ui.end_row();
