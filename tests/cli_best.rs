@@ -19,8 +19,9 @@ fn run(args: &[&str]) -> (i32, String, String) {
 /// Bond = 50 + 4A + 3C + 6AC + 0.25·ABC (a wobble orthogonal to the model, so the fit of A, C, AC
 /// has residual df and the same coefficients),
 /// Haze = 10 + 2A − B.
-fn table() -> std::path::PathBuf {
-    let dir = std::env::temp_dir().join(format!("twofold-best-{}", std::process::id()));
+/// Each test writes its own file (tests run in parallel in one process).
+fn table(tag: &str) -> std::path::PathBuf {
+    let dir = std::env::temp_dir().join(format!("twofold-best-{}-{tag}", std::process::id()));
     if let Err(e) = std::fs::create_dir_all(&dir) {
         panic!("temp dir: {e}");
     }
@@ -48,7 +49,7 @@ fn spread_goal_finds_the_hand_derived_flat_setting() {
     // formula is already in coefficients), zero at A = −0.5. Maximising the mean (40..60) with a
     // spread of at most 2 gives A = −0.5 and D = √((8/20)·1) = √0.4 (derived by hand in the core's
     // tests); B does not matter for Bond and is left where the search puts it.
-    let csv = table();
+    let csv = table("flat");
     let path = csv.to_string_lossy().into_owned();
     let (code, out, err) = run(&[
         "best",
@@ -86,7 +87,7 @@ fn spread_goal_finds_the_hand_derived_flat_setting() {
 
 #[test]
 fn several_settings_come_best_first_with_every_key() {
-    let csv = table();
+    let csv = table("keys");
     let path = csv.to_string_lossy().into_owned();
     let (code, out, err) = run(&[
         "best",
@@ -126,7 +127,7 @@ fn several_settings_come_best_first_with_every_key() {
 
 #[test]
 fn bad_goals_exit_2_with_one_line() {
-    let csv = table();
+    let csv = table("bad");
     let path = csv.to_string_lossy().into_owned();
     let cases: &[(&str, &str)] = &[
         ("Strength=max:1:2", "unknown response `Strength`"),
