@@ -735,3 +735,52 @@ fn replicated_whole_plots_test_each_term_against_its_own_stratum_error() {
         "F C",
     );
 }
+
+#[test]
+fn replicated_split_plot_agrees_with_statsmodels() {
+    // Reference: `fixtures/make_splitplot_fixture.py` (statsmodels OLS for each stratum's
+    // error, MixedLM REML for each term's F; the script and its JSON are kept side by side).
+    // Invented study: A, B hard to change (eight whole plots), C, D changed inside each.
+    let fixture: Value = serde_json::from_str(include_str!("fixtures/statsmodels_splitplot.json"))
+        .expect("fixture parses");
+    let csv = TempCsv::new(fixture["csv"].as_str().expect("csv text"));
+    let terms = fixture["terms_arg"].as_str().expect("terms");
+    let j = analyze_json(&csv, &["--terms", terms]);
+    let anova = &j["split_plot_anova"];
+    for key in ["whole_plot_error", "subplot_error"] {
+        assert_eq!(anova[key]["df"], fixture[key]["df"], "{key} df");
+        assert_close(
+            anova[key]["ss"].as_f64().unwrap(),
+            fixture[key]["ss"].as_f64().unwrap(),
+            1e-8,
+            key,
+        );
+    }
+    let expected = fixture["terms"].as_array().expect("terms");
+    assert_eq!(expected.len(), 7);
+    for e in expected {
+        let t = e["term"].as_str().unwrap();
+        let got = anova["terms"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .find(|x| x["term"] == t)
+            .unwrap_or_else(|| panic!("{t} missing"));
+        assert_eq!(got["stratum"], e["stratum"], "{t}");
+        // REML estimates agree with least squares to the optimiser's tolerance.
+        assert_close(
+            got["coefficient"].as_f64().unwrap(),
+            e["coefficient"].as_f64().unwrap(),
+            1e-6,
+            t,
+        );
+        let f = e["f"].as_f64().unwrap();
+        assert_close(got["f"].as_f64().unwrap(), f, 1e-6 * f.max(1.0), t);
+        assert_close(
+            got["p"].as_f64().unwrap(),
+            e["p"].as_f64().unwrap(),
+            1e-6,
+            t,
+        );
+    }
+}
