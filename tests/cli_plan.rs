@@ -599,6 +599,66 @@ fn hard_to_change_factors_group_the_runs_into_whole_plots() {
     assert!(err.contains("easy to change"), "{err}");
 }
 
+/// `--hard-to-change` with `--runs`: the fraction is chosen among split-plot fractions. Three
+/// hard-to-change factors of four in eight runs: the ordinary minimum-aberration fraction
+/// (I = ABCD) would give every run its own setting of A, B, C (eight resets, no split plot); the
+/// split-plot fraction keeps four whole plots and pays with I = ABC, resolution III (worked by
+/// hand; criterion of Huang, Chen & Voelkel 1998 and Bingham & Sitter 1999).
+#[test]
+fn hard_to_change_factors_choose_a_split_plot_fraction() {
+    let j = plan_json(&[
+        "--factors",
+        "4",
+        "--runs",
+        "8",
+        "--hard-to-change",
+        "A,B,C",
+        "--seed",
+        "5",
+    ]);
+    assert_eq!(j["resets"], 4);
+    assert_eq!(j["word_length_pattern"], serde_json::json!([1, 0]));
+    assert_eq!(j["split_plot_fraction"]["whole_plots_per_replicate"], 4);
+    assert_eq!(j["split_plot_fraction"]["proven"], true);
+    let runs = j["runs"].as_array().unwrap();
+    for w in 1..=4u64 {
+        let d: Vec<i64> = runs
+            .iter()
+            .filter(|r| r["whole_plot"] == w)
+            .map(|r| r["levels"][3].as_i64().unwrap())
+            .collect();
+        // Two runs per whole plot, D at both levels inside it.
+        assert_eq!(d.len(), 2, "whole plot {w}");
+        assert_ne!(d[0], d[1], "whole plot {w}");
+    }
+    // One hard-to-change factor of six in 16 runs: two whole plots per replicate are all
+    // there can be, and asking for four says so.
+    let (code, _, err) = run(&[
+        "plan",
+        "--factors",
+        "6",
+        "--runs",
+        "16",
+        "--hard-to-change",
+        "A",
+        "--whole-plots",
+        "4",
+    ]);
+    assert_eq!(code, 2);
+    assert!(err.contains("possible: 2"), "{err}");
+    let (code, _, err) = run(&[
+        "plan",
+        "--factors",
+        "6",
+        "--runs",
+        "16",
+        "--whole-plots",
+        "4",
+    ]);
+    assert_eq!(code, 2);
+    assert!(err.contains("--hard-to-change"), "{err}");
+}
+
 /// `--require`: the design keeps the named interactions clear, the JSON says so, and requests
 /// that cannot be met exit 2 with one line.
 ///

@@ -98,3 +98,52 @@ fn a_hard_to_change_factor_groups_the_sheet_and_splits_the_effects() {
     // The pooled margins of the bars are named as such.
     assert!(h.query_all_by_label_contains("pool both strata").count() > 0);
 }
+
+#[test]
+fn a_split_plot_fraction_is_offered_and_keeps_the_hard_factors_in_whole_plots() {
+    // Three hard-to-change factors of four in a half fraction. The regular 8-run option
+    // (D = ABC) holds Load fixed in every whole plot as well; the split-plot table offers 8 runs in four
+    // whole plots (C = ±AB, resolution III: worked by hand, see the core's fraction tests).
+    let mut p = four_factors();
+    for f in &mut p.factors[..3] {
+        f.hard_to_change = true;
+    }
+    let mut h = Harness::builder()
+        .with_size([1600.0, 3000.0])
+        .build_ui_state(
+            |ui, app: &mut TwofoldApp| app.ui_in(ui),
+            TwofoldApp::new_for_test(p),
+        );
+    h.state_mut().set_step(Step::Design);
+    settle(&mut h);
+    h.get_by_label("use 8 runs").click();
+    settle(&mut h);
+    assert!(
+        h.query_all_by_label_contains("holds Load fixed in every whole plot")
+            .count()
+            > 0,
+        "the regular half fraction (D = ABC) is no split plot for A, B, C"
+    );
+    h.get_by_label("use 8 runs in 4 whole plots").click();
+    settle(&mut h);
+    assert_eq!(
+        h.query_all_by_label_contains("fixed in every whole plot")
+            .count(),
+        0
+    );
+    assert!(
+        h.query_all_by_label_contains("grouped into 4 whole plots")
+            .count()
+            > 0
+    );
+    h.get_by_label("Apply and remake the run sheet").click();
+    settle(&mut h);
+    let p = h.state().project();
+    assert_eq!(p.runs.len(), 8);
+    for w in 1..=4 {
+        let plot: Vec<_> = p.runs.iter().filter(|r| r.whole_plot == Some(w)).collect();
+        assert_eq!(plot.len(), 2, "whole plot {w}");
+        assert_ne!(plot[0].levels[3], plot[1].levels[3], "Load changes inside");
+        assert_eq!(plot[0].levels[..3], plot[1].levels[..3]);
+    }
+}

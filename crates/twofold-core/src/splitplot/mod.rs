@@ -27,6 +27,7 @@ use crate::lenth::{Lenth, LenthError, lenth};
 use crate::term::Term;
 
 mod anova;
+pub mod fraction;
 pub use anova::{SplitPlotAnova, SplitPlotError, StratumError, TermTest, split_plot_anova};
 
 /// Which error an effect is judged against.

@@ -136,7 +136,11 @@ impl Project {
                 if d.fold.is_some() {
                     return Err(FollowUpError::AlreadyFolded);
                 }
-                let fraction = fraction_of(self.factors.len(), &d)?;
+                let fraction = fraction_of(
+                    self.factors.len(),
+                    &d,
+                    &super::regenerate::hard_to_change_of(self),
+                )?;
                 let fold = fold_over(&fraction, kind).map_err(PlanError::from)?;
                 if fold.repeats_original {
                     return Err(FollowUpError::RepeatsRuns);

@@ -123,7 +123,7 @@ pub(crate) fn plan_runs(
     if let Some(n) = design.screening_runs() {
         return screening_sheet(project, design, n);
     }
-    let fraction = fraction_of(k, design)?;
+    let fraction = fraction_of(k, design, &hard_to_change_of(project))?;
     let blocking = match &design.blocks {
         BlockChoice::Count(n) if *n <= 1 => Blocking::None,
         BlockChoice::Count(n) => Blocking::Count(*n as usize),
@@ -191,19 +191,39 @@ fn records(
 pub(crate) fn fraction_of(
     k: usize,
     design: &DesignSettings,
+    hard_to_change: &[usize],
 ) -> Result<twofold_core::design::FractionalDesign, PlanError> {
     use twofold_core::design::FractionalDesign;
     use twofold_core::search::{SearchBudget, minimum_aberration};
+    use twofold_core::splitplot::fraction::split_plot_fraction;
     let runs = design.base_runs.map(|r| r as usize);
     let full = 1usize.checked_shl(k as u32).unwrap_or(usize::MAX);
     Ok(if design.generators.iter().all(|g| g.trim().is_empty()) {
         match runs {
+            // Hard-to-change factors: the fraction of least aberration among split-plot
+            // fractions (whole plots as many as the run size allows).
+            Some(n) if n != full && !hard_to_change.is_empty() => {
+                split_plot_fraction(k, hard_to_change, n, None, &SearchBudget::default())
+                    .map_err(|e| PlanError::Invalid(e.to_string()))?
+                    .design
+            }
             Some(n) if n != full => minimum_aberration(k, n, &SearchBudget::default())?.design,
             _ => FractionalDesign::full(k)?,
         }
     } else {
         FractionalDesign::from_text(k, runs, &design.generators.join(","))?
     })
+}
+
+/// The hard-to-change factors of `project` (0-based).
+pub(crate) fn hard_to_change_of(project: &Project) -> Vec<usize> {
+    project
+        .factors
+        .iter()
+        .enumerate()
+        .filter(|(_, f)| f.hard_to_change)
+        .map(|(i, _)| i)
+        .collect()
 }
 
 /// The sheet of a Plackett–Burman screening design of `n` runs (no generators, one block, no

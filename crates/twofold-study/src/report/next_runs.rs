@@ -81,7 +81,12 @@ fn letter(f: usize) -> char {
 fn current_design(
     project: &Project,
 ) -> Option<(twofold_core::design::FractionalDesign, AliasReport)> {
-    let fraction = fraction_of(project.factors.len(), &project.design).ok()?;
+    let fraction = fraction_of(
+        project.factors.len(),
+        &project.design,
+        &crate::project::regenerate::hard_to_change_of(project),
+    )
+    .ok()?;
     let design = match project.design.fold {
         None => fraction.clone(),
         Some(kind) => fold_over(&fraction, kind).ok()?.combined,

@@ -21,6 +21,7 @@ use super::plan_power::{PlanPower, plan_power};
 use super::plan_require;
 use twofold_core::plan::{Blocking, Plan, PlanSpec, build_fold_over_plan, build_plan};
 use twofold_core::search::{SearchBudget, minimum_aberration};
+use twofold_core::splitplot::fraction::split_plot_fraction;
 use twofold_core::term::{LETTERS, MAX_FACTORS, Term, factor_index};
 
 /// The long description shown by `--help`.
@@ -76,6 +77,11 @@ pub struct PlanArgs {
     /// into whole plots in which they stay fixed
     #[arg(long = "hard-to-change", value_name = "LIST")]
     pub hard_to_change: Option<String>,
+    /// Whole plots per replicate with --hard-to-change and --runs (2, 4, 8, ...): the fraction of
+    /// least aberration among split-plot fractions with that many resets [default: the most the
+    /// run size allows, at most one per setting of the hard-to-change factors]
+    #[arg(long = "whole-plots", value_name = "W", value_parser = whole_number::<usize>)]
+    pub whole_plots: Option<usize>,
     /// Add the fold-over: `full` (all signs reversed) or one factor letter (that factor reversed)
     #[arg(long, value_name = "full|A")]
     pub fold: Option<String>,
@@ -216,6 +222,14 @@ fn compute(a: &PlanArgs) -> Result<Planned, PlanInputError> {
         None => 2.0,
     };
     let required = plan_require::parse(a.require.as_deref(), k).map_err(invalid)?;
+    let htc = match a.hard_to_change.as_deref() {
+        Some(list) => Some(super::plan_split::parse_factors(list, &names).map_err(invalid)?),
+        None if a.whole_plots.is_some() => {
+            return Err(invalid("--whole-plots goes with --hard-to-change"));
+        }
+        None => None,
+    };
+    let mut split_fraction = None;
     let (design, proven) = match a.generators.as_deref() {
         None if !required.is_empty() => {
             plan_require::design(k, &required, runs, search_seconds).map_err(invalid)?
@@ -237,12 +251,25 @@ fn compute(a: &PlanArgs) -> Result<Planned, PlanInputError> {
                 let budget = SearchBudget {
                     time: Duration::from_secs_f64(search_seconds),
                 };
-                let outcome =
-                    minimum_aberration(k, n, &budget).map_err(|e| invalid(e.to_string()))?;
-                (outcome.design, Some(outcome.proven_minimum_aberration))
+                if let Some(htc) = &htc {
+                    let f = split_plot_fraction(k, htc, n, a.whole_plots, &budget)
+                        .map_err(|e| invalid(format!("--hard-to-change: {e}")))?;
+                    let out = (f.design.clone(), Some(f.proven_minimum_aberration));
+                    split_fraction = Some(f);
+                    out
+                } else {
+                    let outcome =
+                        minimum_aberration(k, n, &budget).map_err(|e| invalid(e.to_string()))?;
+                    (outcome.design, Some(outcome.proven_minimum_aberration))
+                }
             }
         },
     };
+    if a.whole_plots.is_some() && split_fraction.is_none() {
+        return Err(invalid(
+            "--whole-plots chooses among split-plot fractions: give --runs below the full factorial and no --generators",
+        ));
+    }
     let centre_points: usize = a.centre_points.unwrap_or(0);
     let replicates: usize = a.replicates.unwrap_or(1);
     if replicates == 0 {
@@ -281,21 +308,17 @@ fn compute(a: &PlanArgs) -> Result<Planned, PlanInputError> {
         Some(f) => build_fold_over_plan(&spec, f),
     }
     .map_err(|e| invalid(e.to_string()))?;
-    let split = match a.hard_to_change.as_deref() {
+    let split = match htc {
         None => None,
-        Some(list) => {
+        Some(htc) => {
             if plan.block_count > 1 {
                 return Err(invalid(
                     "--hard-to-change: blocks and whole plots together are not offered yet; plan it unblocked",
                 ));
             }
-            let htc = super::plan_split::parse_factors(list, &names).map_err(invalid)?;
-            Some(super::plan_split::split(
-                &mut plan,
-                &htc,
-                seed,
-                !a.standard_order,
-            ))
+            let mut s = super::plan_split::split(&mut plan, &htc, seed, !a.standard_order);
+            s.fraction = split_fraction.map(|f| (f.whole_plots, f.proven_minimum_aberration));
+            Some(s)
         }
     };
     let report = match &fold {

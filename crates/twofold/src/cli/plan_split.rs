@@ -21,7 +21,13 @@ pub(crate) struct SplitPlot {
     pub whole_plot_terms: Vec<String>,
     /// The others.
     pub subplot_terms: Vec<String>,
+    /// When the fraction was chosen for the split-plot structure: its whole plots per replicate
+    /// and whether the search proved it of minimum aberration among such fractions.
+    pub fraction: Option<(usize, bool)>,
 }
+
+/// How the fraction of a split-plot plan is chosen, in words (JSON and text).
+pub(crate) const SPLIT_PLOT_CRITERION: &str = "least aberration among fractions that keep the hard-to-change factors fixed in each whole plot and change every other factor inside it (Huang, Chen & Voelkel 1998; Bingham & Sitter 1999)";
 
 /// The factors named in `list` (letters or names).
 pub(crate) fn parse_factors(list: &str, names: &[String]) -> Result<Vec<usize>, String> {
@@ -83,6 +89,7 @@ pub(crate) fn split(plan: &mut Plan, htc: &[usize], seed: u64, randomise: bool) 
         resets_randomised: layout.resets_if_randomised,
         whole_plot_terms,
         subplot_terms,
+        fraction: None,
     }
 }
 
@@ -112,6 +119,12 @@ impl SplitPlot {
             );
             o.insert("resets".into(), json!(self.resets));
             o.insert("resets_if_randomised".into(), json!(self.resets_randomised));
+            if let Some((w, proven)) = self.fraction {
+                o.insert(
+                    "split_plot_fraction".into(),
+                    json!({ "whole_plots_per_replicate": w, "criterion": SPLIT_PLOT_CRITERION, "proven": proven }),
+                );
+            }
         }
     }
 
@@ -127,8 +140,19 @@ impl SplitPlot {
         } else {
             ""
         };
+        let chosen = match self.fraction {
+            Some((w, proven)) => format!(
+                "\nFraction: {SPLIT_PLOT_CRITERION}, with {w} whole plots per replicate{}.",
+                if proven {
+                    ""
+                } else {
+                    " (best found in the time allowed, not proven)"
+                }
+            ),
+            None => String::new(),
+        };
         format!(
-            "Hard to change: {} — {} whole plots, so {} resets instead of about {:.1} in a completely random order.\nWhole-plot effects (judged against the whole-plot error): {}\nSubplot effects: {}{few}",
+            "Hard to change: {} — {} whole plots, so {} resets instead of about {:.1} in a completely random order.\nWhole-plot effects (judged against the whole-plot error): {}\nSubplot effects: {}{few}{chosen}",
             letters.join(", "),
             self.resets,
             self.resets,

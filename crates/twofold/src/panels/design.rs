@@ -10,6 +10,7 @@ mod partial;
 pub mod power;
 pub mod required;
 pub mod screening;
+pub mod split;
 
 use egui::{Grid, RichText, Ui};
 
@@ -63,6 +64,8 @@ pub struct DesignPane {
     power_cells: power::PowerCells,
     /// Interactions that must stay clear, and the design found for them.
     required: required::Required,
+    /// Split-plot fractions for the hard-to-change factors.
+    split: split::Split,
     /// A run size was just picked: the button that makes the run sheet takes the keyboard, so
     /// choosing and confirming are two key presses.
     focus_make: bool,
@@ -179,7 +182,7 @@ impl Pane for DesignPane {
                 ui.add_space(8.0);
                 let total = summary(ui, &draft, k, project, &pal);
                 fold_row(ui, &mut draft);
-                split_row(ui, project, &draft, k);
+                split_row(self, ui, view, &draft, k);
                 ui.add_space(4.0);
                 let unchanged =
                     draft == project.design && !project.runs.is_empty() && !project.runs_outdated;
@@ -228,8 +231,16 @@ fn has_design_errors(project: &Project, draft: &DesignSettings) -> bool {
 }
 
 /// With hard-to-change factors: how many whole plots (resets) the plan needs, against a
-/// completely random order of the same runs (`twofold_core::splitplot`).
-fn split_row(ui: &mut Ui, project: &Project, draft: &DesignSettings, k: usize) {
+/// completely random order of the same runs (`twofold_core::splitplot`), and a warning when the
+/// draft's fraction holds an easy factor fixed in every whole plot.
+fn split_row(
+    pane: &mut DesignPane,
+    ui: &mut Ui,
+    view: &View<'_>,
+    draft: &DesignSettings,
+    k: usize,
+) {
+    let project = view.project;
     let htc: Vec<&str> = project
         .factors
         .iter()
@@ -242,12 +253,15 @@ fn split_row(ui: &mut Ui, project: &Project, draft: &DesignSettings, k: usize) {
     let Some(runs) = base_runs(draft, k) else {
         return;
     };
+    let Some((settings, fixed)) = split::whole_plots_of_draft(&mut pane.split, project, draft, k)
+    else {
+        return;
+    };
     let reps = draft.replicates.max(1) as usize;
-    let settings = (1usize << htc.len().min(20)).min(runs);
     // The centre points, at the centre of every factor, are one whole plot more.
     let plots = settings * reps + usize::from(draft.centre_points_per_block > 0);
     // A random order resets whenever the hard-to-change setting itself changes.
-    let groups: Vec<usize> = (0..runs * reps).map(|i| i % settings).collect();
+    let groups: Vec<usize> = (0..runs * reps).map(|i| i % settings.max(1)).collect();
     let random = twofold_core::splitplot::expected_resets_randomised(&groups);
     ui.label(format!(
         "Hard to change: {} — the runs are grouped into {} whole plots, so {} resets instead of about {:.0} in a completely random order. Their effects are judged against the whole-plot error.",
@@ -256,6 +270,20 @@ fn split_row(ui: &mut Ui, project: &Project, draft: &DesignSettings, k: usize) {
         plots,
         random
     ));
+    if !fixed.is_empty() {
+        ui.colored_label(
+            view.pal.warn,
+            format!(
+                "This fraction holds {} fixed in every whole plot as well: pick a split-plot fraction above so that only the hard-to-change factors stay fixed.",
+                fixed.join(", ")
+            ),
+        );
+    } else if settings == runs {
+        ui.colored_label(
+            view.pal.warn,
+            "Every run has a whole plot of its own: no run shares a setting of the hard-to-change factors. Pick a split-plot fraction above with fewer whole plots.",
+        );
+    }
 }
 
 /// The fold-over added on the "What to run next" step, if any, with a way to leave it out.
@@ -384,6 +412,7 @@ fn options_table(
         });
     let regular_sizes: Vec<usize> = options.iter().map(|o| o.runs).collect();
     screening::table(pane, ui, view, k, draft, &regular_sizes);
+    split::table(pane, ui, view, k, draft);
 }
 
 fn generators_row(
