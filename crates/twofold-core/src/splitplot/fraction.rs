@@ -326,7 +326,7 @@ impl Search {
             return;
         }
         self.nodes += 1;
-        if self.nodes % 1024 == 0 && self.deadline.is_some_and(|d| Instant::now() >= d) {
+        if self.nodes.is_multiple_of(1024) && self.deadline.is_some_and(|d| Instant::now() >= d) {
             self.out_of_time = true;
         }
         if self.out_of_time {
