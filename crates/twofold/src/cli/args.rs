@@ -55,7 +55,7 @@ pub struct Cli {
 pub enum Command {
     /// Choose a design, show its aliasing and print the randomised run sheet.
     #[command(long_about = super::plan::LONG_ABOUT, after_help = super::plan::AFTER_HELP)]
-    Plan(PlanArgs),
+    Plan(Box<PlanArgs>),
     /// Effects, Lenth's margins, a model fit and its ANOVA for one response.
     #[command(
         long_about = super::analyze::LONG_ABOUT,
