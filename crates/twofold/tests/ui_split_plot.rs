@@ -6,6 +6,7 @@ use egui_kittest::kittest::Queryable;
 use twofold_app::app::TwofoldApp;
 use twofold_app::panels::Step;
 use twofold_study::project::{Cell, Edit, Factor, Project, ResponseDef, RunStatus};
+use twofold_study::report::Report;
 
 fn four_factors() -> Project {
     let mut p = Project::new("Oven study");
@@ -97,6 +98,29 @@ fn a_hard_to_change_factor_groups_the_sheet_and_splits_the_effects() {
     );
     // The pooled margins of the bars are named as such.
     assert!(h.query_all_by_label_contains("pool both strata").count() > 0);
+    // One half-normal plot per stratum, each point a term of that stratum only.
+    for title in [
+        "Half-normal plot: whole-plot effects",
+        "Half-normal plot: subplot effects",
+    ] {
+        assert!(h.query_all_by_label_contains(title).count() > 0, "{title}");
+    }
+    let p = h.state().project();
+    let report = Report::build(p, 0, 0, &p.responses[0].model);
+    let strata = report.strata.as_ref().expect("split-plot strata");
+    let counts: Vec<usize> = strata.half_normal.iter().map(|(_, p)| p.len()).collect();
+    // 16 runs, 15 effects: A, B, AB are whole-plot effects, the other 12 subplot effects.
+    assert_eq!(counts, vec![3, 12]);
+    // The page draws the same two plots from the same report.
+    let input = twofold_study::export::summary_input(p, &[&report], &Default::default());
+    let page = &input.responses[0].strata_half_normal;
+    assert_eq!(page.len(), 2);
+    assert_eq!(page[0].0, "Whole-plot effects");
+    assert_eq!(page[0].1.len(), 3);
+    assert_eq!(page[1].1.len(), 12);
+    let svg = twofold_study::export::summary_pages(&input, twofold_study::export::Paper::A4);
+    assert!(svg[0].contains("one per stratum"), "page heading");
+    assert!(svg[0].contains("Subplot effects"));
 }
 
 #[test]

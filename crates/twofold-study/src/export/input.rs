@@ -45,6 +45,10 @@ pub struct ResponseSummary {
     pub lenth: Option<LenthFacts>,
     /// Points of the half-normal plot.
     pub half_normal: Vec<HalfNormalPoint>,
+    /// A split-plot study: one half-normal plot per stratum (title, points, that stratum's own
+    /// Lenth facts), drawn instead of the pooled one.
+    #[serde(default)]
+    pub strata_half_normal: Vec<(String, Vec<HalfNormalPoint>, Option<LenthFacts>)>,
     /// Interaction plots, strongest first.
     pub interactions: Vec<InteractionPanel>,
     /// Sentence under the interaction plots saying which were chosen; empty for the default.

@@ -27,6 +27,7 @@ pub fn response_summary(project: &Project, results: &Report, goal: Goal) -> Resp
     let mut warnings = Vec::new();
 
     let (effects, half_normal) = effects_of(results);
+    let strata_half_normal = strata_half_normal(results, &half_normal);
     let lenth = results.lenth.as_ref().ok().map(|l| LenthFacts {
         pse: l.pse,
         me: l.me,
@@ -97,7 +98,7 @@ pub fn response_summary(project: &Project, results: &Report, goal: Goal) -> Resp
     if let (Some(strata), Ok(table)) = (&results.strata, &results.effects) {
         all.extend(strata.sentences(table));
         all.push(
-            "The effect ranking's Lenth marks pool both strata: judge whole-plot and subplot effects by their own margins above.".to_string(),
+            "The effect ranking's Lenth marks pool both strata: judge whole-plot and subplot effects by their own margins above and by each stratum's half-normal plot.".to_string(),
         );
     }
     for w in warnings {
@@ -116,6 +117,7 @@ pub fn response_summary(project: &Project, results: &Report, goal: Goal) -> Resp
         effects,
         lenth,
         half_normal,
+        strata_half_normal,
         interactions,
         interaction_note,
         anova,
@@ -169,6 +171,57 @@ fn effects_of(results: &Report) -> (Vec<EffectRow>, Vec<HalfNormalPoint>) {
         });
     }
     (effects, half)
+}
+
+/// The half-normal plot of each stratum of a split-plot study: the report's own points of that
+/// stratum (their positions from its effects alone) with the page's marking of model terms
+/// taken from the pooled points, and the stratum's Lenth facts.
+fn strata_half_normal(
+    results: &Report,
+    pooled: &[HalfNormalPoint],
+) -> Vec<(String, Vec<HalfNormalPoint>, Option<LenthFacts>)> {
+    use twofold_core::splitplot::Stratum;
+    let Some(strata) = &results.strata else {
+        return Vec::new();
+    };
+    strata
+        .half_normal
+        .iter()
+        .filter(|(_, pts)| !pts.is_empty())
+        .map(|(s, pts)| {
+            let title = match s {
+                Stratum::WholePlot => "Whole-plot effects",
+                Stratum::Subplot => "Subplot effects",
+            };
+            let points = pts
+                .iter()
+                .map(|p| {
+                    let label = p.term.label();
+                    let in_model = pooled.iter().any(|q| q.term == label && q.in_model);
+                    HalfNormalPoint {
+                        term: label,
+                        abs_effect: p.abs_effect,
+                        positive: p.effect >= 0.0,
+                        quantile: p.quantile,
+                        in_model,
+                    }
+                })
+                .collect();
+            let lenth = strata
+                .lenth
+                .iter()
+                .find(|(x, _)| x == s)
+                .and_then(|(_, l)| l.as_ref().ok())
+                .map(|l| LenthFacts {
+                    pse: l.pse,
+                    me: l.me,
+                    sme: l.sme,
+                    alpha: 0.05,
+                    df: l.df,
+                });
+            (title.to_string(), points, lenth)
+        })
+        .collect()
 }
 
 /// The best settings for `goal`, with the warnings they raise.

@@ -554,7 +554,7 @@ fn strata_of(
     project: &Project,
     table: &twofold_core::effects::EffectTable,
 ) -> Option<super::Strata> {
-    use twofold_core::splitplot::{lenth_by_stratum, stratum_of};
+    use twofold_core::splitplot::{Stratum, lenth_by_stratum, stratum_of};
     let factorial: Vec<&crate::project::RunRecord> =
         project.runs.iter().filter(|r| !r.centre).collect();
     if factorial.is_empty() || factorial.iter().any(|r| r.whole_plot.is_none()) {
@@ -565,7 +565,7 @@ fn strata_of(
         .iter()
         .map(|r| r.whole_plot.unwrap_or(0) as usize)
         .collect();
-    let of_effect = table
+    let of_effect: Vec<Stratum> = table
         .effects
         .iter()
         .map(|e| stratum_of(e.term, &rows, &wp))
@@ -578,10 +578,24 @@ fn strata_of(
     let mut distinct = wp.clone();
     distinct.sort_unstable();
     distinct.dedup();
+    let half_normal = [Stratum::WholePlot, Stratum::Subplot]
+        .into_iter()
+        .map(|s| {
+            let own: Vec<twofold_core::effects::Effect> = table
+                .effects
+                .iter()
+                .zip(&of_effect)
+                .filter(|(_, t)| **t == s)
+                .map(|(e, _)| e.clone())
+                .collect();
+            (s, half_normal(&own))
+        })
+        .collect();
     Some(super::Strata {
         of_effect,
         lenth,
         whole_plots: distinct.len(),
+        half_normal,
         anova: None,
     })
 }

@@ -339,6 +339,12 @@ pub struct Strata {
     pub lenth: Vec<(twofold_core::splitplot::Stratum, Result<Lenth, String>)>,
     /// Whole plots in the sheet.
     pub whole_plots: usize,
+    /// The half-normal plot of each stratum, from its own effects alone (Loeppky & Sitter 2002:
+    /// one plot per stratum, each read against its own Lenth margins).
+    pub half_normal: Vec<(
+        twofold_core::splitplot::Stratum,
+        Vec<twofold_core::halfnormal::HalfNormalPoint>,
+    )>,
     /// With replicated whole plots: the fitted terms tested against their stratum's error
     /// (Bisgaard 2000), or why not; `None` without replicated whole plots.
     pub anova: Option<Result<twofold_core::splitplot::SplitPlotAnova, String>>,

@@ -29,6 +29,40 @@ struct Built {
     half: HalfNormalPlot,
     /// Term of each half-normal point.
     half_terms: Vec<Term>,
+    /// A split-plot study: one half-normal plot per stratum (title, plot, term of each point),
+    /// each with its own stratum's Lenth margins.
+    strata_half: Vec<(String, HalfNormalPlot, Vec<Term>)>,
+}
+
+/// Half-normal plot data of `points` with the margins `lenth`.
+fn half_plot(
+    res: &Report,
+    points: &[twofold_core::halfnormal::HalfNormalPoint],
+    lenth: Option<&twofold_core::lenth::Lenth>,
+) -> (HalfNormalPlot, Vec<Term>) {
+    let plot = HalfNormalPlot {
+        points: points
+            .iter()
+            .map(|p| HalfNormalPoint {
+                label: p.term.label(),
+                abs_effect: p.abs_effect,
+                quantile: p.quantile,
+                positive: p.effect >= 0.0,
+                in_model: res.fitted(p.term),
+            })
+            .collect(),
+        pse: lenth.map(|l| l.pse),
+        me: lenth.map(|l| l.me),
+    };
+    (plot, points.iter().map(|p| p.term).collect())
+}
+
+/// Title of a stratum's half-normal plot.
+pub fn stratum_plot_title(stratum: twofold_core::splitplot::Stratum) -> &'static str {
+    match stratum {
+        twofold_core::splitplot::Stratum::WholePlot => "Half-normal plot: whole-plot effects",
+        twofold_core::splitplot::Stratum::Subplot => "Half-normal plot: subplot effects",
+    }
 }
 
 /// Accessible name of a term's entry in the term list.
@@ -93,33 +127,38 @@ fn build(view: &View<'_>, res: &Report) -> Option<Built> {
         })
         .collect();
     let bar_terms = order.iter().map(|&i| table.effects[i].term).collect();
-    let half = HalfNormalPlot {
-        points: res
-            .half_normal
-            .iter()
-            .map(|p| HalfNormalPoint {
-                label: p.term.label(),
-                abs_effect: p.abs_effect,
-                quantile: p.quantile,
-                positive: p.effect >= 0.0,
-                in_model: res.fitted(p.term),
-            })
-            .collect(),
-        pse,
-        me,
-    };
-    let half_terms = res.half_normal.iter().map(|p| p.term).collect();
+    let (half, half_terms) = half_plot(res, &res.half_normal, res.lenth.as_ref().ok());
+    let strata_half = res
+        .strata
+        .as_ref()
+        .map(|st| {
+            st.half_normal
+                .iter()
+                .filter(|(_, pts)| !pts.is_empty())
+                .map(|(s, pts)| {
+                    let lenth = st
+                        .lenth
+                        .iter()
+                        .find(|(x, _)| x == s)
+                        .and_then(|(_, l)| l.as_ref().ok());
+                    let (plot, terms) = half_plot(res, pts, lenth);
+                    (stratum_plot_title(*s).to_string(), plot, terms)
+                })
+                .collect()
+        })
+        .unwrap_or_default();
     Some(Built {
         key: (res.revision, res.response),
         bars: EffectBars { bars, me, sme },
         bar_terms,
         half,
         half_terms,
+        strata_half,
     })
 }
 
 /// Said beside a split-plot study's effects: the bars and the half-normal plot pool both strata.
-pub const POOLED_NOTE: &str = "The ME and SME lines of the bars and the half-normal plot pool both strata: judge whole-plot and subplot effects by their own margins above.";
+pub const POOLED_NOTE: &str = "The ME and SME lines of the bars pool both strata: judge whole-plot and subplot effects by their own margins above and by the half-normal plot of each stratum.";
 
 impl Pane for EffectsPane {
     fn ui(&mut self, ui: &mut Ui, view: &View<'_>, out: &mut Vec<Command>) {
@@ -186,14 +225,31 @@ impl Pane for EffectsPane {
                     {
                         toggle(t, out);
                     }
-                    cols[1].label(RichText::new("Half-normal plot").strong());
-                    cols[1].weak(format!(
-                        "{EFFECT_LEGEND}. Click a point or a bar to add or remove its term."
-                    ));
-                    if let Some(i) = built.half.show(&mut cols[1], &pal, 360.0)
-                        && let Some(&t) = built.half_terms.get(i)
-                    {
-                        toggle(t, out);
+                    if built.strata_half.is_empty() {
+                        cols[1].label(RichText::new("Half-normal plot").strong());
+                        cols[1].weak(format!(
+                            "{EFFECT_LEGEND}. Click a point or a bar to add or remove its term."
+                        ));
+                        if let Some(i) = built.half.show(&mut cols[1], &pal, 360.0)
+                            && let Some(&t) = built.half_terms.get(i)
+                        {
+                            toggle(t, out);
+                        }
+                    } else {
+                        cols[1].weak(format!(
+                            "{EFFECT_LEGEND}. Each stratum on its own plot, with its own Lenth line. Click a point or a bar to add or remove its term."
+                        ));
+                        for (title, plot, terms) in &built.strata_half {
+                            cols[1].label(RichText::new(title.as_str()).strong());
+                            let clicked = cols[1]
+                                .push_id(title.as_str(), |ui| plot.show(ui, &pal, 220.0))
+                                .inner;
+                            if let Some(i) = clicked
+                                && let Some(&t) = terms.get(i)
+                            {
+                                toggle(t, out);
+                            }
+                        }
                     }
                 });
                 ui.add_space(8.0);

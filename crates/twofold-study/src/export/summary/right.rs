@@ -75,13 +75,27 @@ pub(super) fn right_column(svg: &mut Svg, part: Part, flow: Flow, more: &mut Mor
         }
     };
 
-    top.heading(svg, "Half-normal plot of effects");
-    match top.take(hn_h) {
-        Some(area) if !section.half_normal.is_empty() => {
-            charts::half_normal(svg, area, &section.half_normal, section.lenth.as_ref())
+    if section.strata_half_normal.is_empty() {
+        top.heading(svg, "Half-normal plot of effects");
+        match top.take(hn_h) {
+            Some(area) if !section.half_normal.is_empty() => {
+                charts::half_normal(svg, area, &section.half_normal, section.lenth.as_ref())
+            }
+            Some(area) => charts::empty_box(svg, area, "no effects to plot yet"),
+            None => {}
         }
-        Some(area) => charts::empty_box(svg, area, "no effects to plot yet"),
-        None => {}
+    } else {
+        // A split-plot study: one plot per stratum, each with its own Lenth lines (Loeppky &
+        // Sitter 2002), sharing the height of the one plot.
+        top.heading(svg, "Half-normal plots of effects, one per stratum");
+        let n = section.strata_half_normal.len() as f64;
+        let caption = sizes::SMALL * sizes::LEADING;
+        for (title, points, lenth) in &section.strata_half_normal {
+            top.paragraph(svg, title, TextStyle::new(sizes::SMALL).fill(MUTED), 1);
+            if let Some(area) = top.take((hn_h / n - caption).max(0.0)) {
+                charts::half_normal(svg, area, points, lenth.as_ref());
+            }
+        }
     }
     top.paragraph(
         svg,
