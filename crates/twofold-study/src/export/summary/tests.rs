@@ -46,6 +46,7 @@ fn crowded_section(name: &str) -> ResponseSummary {
                 in_model: i < 6,
             })
             .collect(),
+        strata_half_normal: Vec::new(),
         interactions: (0..6)
             .map(|i| InteractionPanel {
                 term: format!("A{i}"),
