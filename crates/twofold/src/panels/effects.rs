@@ -98,9 +98,9 @@ fn build(view: &View<'_>, res: &Report) -> Option<Built> {
             .partial_cmp(&table.effects[a].effect.abs())
             .unwrap_or(std::cmp::Ordering::Equal)
     });
-    let (me, sme, pse) = match &res.lenth {
-        Ok(l) => (Some(l.me), Some(l.sme), Some(l.pse)),
-        Err(_) => (None, None, None),
+    let (me, sme) = match &res.lenth {
+        Ok(l) => (Some(l.me), Some(l.sme)),
+        Err(_) => (None, None),
     };
     let bars: Vec<EffectBar> = order
         .iter()
