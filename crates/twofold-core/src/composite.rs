@@ -518,18 +518,20 @@ fn lack_of_fit(
 /// Eigenvalues (largest first) and eigenvectors of the symmetric matrix B and the surface kind.
 fn canonical(b: &DMatrix<f64>) -> Canonical {
     let eig = SymmetricEigen::new(b.clone());
-    let mut pairs: Vec<(f64, Vec<f64>)> = (0..b.nrows())
-        .map(|i| {
-            let mut v: Vec<f64> = eig.eigenvectors.column(i).iter().copied().collect();
-            let big = v.iter().copied().fold(0.0f64, |a, x| {
-                if x.abs() > a.abs() + 1e-12 { x } else { a }
-            });
-            if big < 0.0 {
-                v.iter_mut().for_each(|x| *x = -*x);
-            }
-            (eig.eigenvalues[i], v)
-        })
-        .collect();
+    let mut pairs: Vec<(f64, Vec<f64>)> =
+        (0..b.nrows())
+            .map(|i| {
+                let mut v: Vec<f64> = eig.eigenvectors.column(i).iter().copied().collect();
+                let big = v
+                    .iter()
+                    .copied()
+                    .fold(0.0f64, |a, x| if x.abs() > a.abs() + 1e-12 { x } else { a });
+                if big < 0.0 {
+                    v.iter_mut().for_each(|x| *x = -*x);
+                }
+                (eig.eigenvalues[i], v)
+            })
+            .collect();
     pairs.sort_by(|a, b| b.0.total_cmp(&a.0));
     let largest = pairs.iter().map(|p| p.0.abs()).fold(0.0, f64::max);
     let kind = if largest == 0.0 || pairs.iter().any(|p| p.0.abs() < RIDGE_SHARE * largest) {
@@ -593,7 +595,12 @@ mod tests {
         assert_eq!(added.iter().filter(|r| r.centre).count(), 3);
         // Not randomised: the block runs in standard order.
         let plain = add_axial_block(base, 2, 3, 7, false).unwrap();
-        assert!(plain.iter().filter(|r| r.block == 2).all(|r| r.run_order == r.std_order));
+        assert!(
+            plain
+                .iter()
+                .filter(|r| r.block == 2)
+                .all(|r| r.run_order == r.std_order)
+        );
     }
 
     #[test]
@@ -606,7 +613,11 @@ mod tests {
         assert!(close_to_places(a.orthogonal_blocking, 2f64.sqrt(), 12));
         assert_eq!(a.face_centred, 1.0);
         // 2^3 with 16 factorial runs: rotatable α = 2 (Box & Hunter 1957; from memory).
-        assert!(close_to_places(axial_alphas(4, 16, 0, 0).rotatable, 2.0, 12));
+        assert!(close_to_places(
+            axial_alphas(4, 16, 0, 0).rotatable,
+            2.0,
+            12
+        ));
     }
 
     /// Montgomery, *Design and Analysis of Experiments*, Example 11.2 (chemical process yield:

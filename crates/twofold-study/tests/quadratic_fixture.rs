@@ -23,7 +23,10 @@ fn the_quadratic_fit_agrees_with_statsmodels() {
     let y = numbers(&f["y"]);
     let fit = fit_quadratic(&rows, &blocks, &y).unwrap();
     let close = |a: f64, b: f64, what: &str| {
-        assert!(close_rel(a, b, LIBRARY_REL), "{what}: ours {a}, statsmodels {b}");
+        assert!(
+            close_rel(a, b, LIBRARY_REL),
+            "{what}: ours {a}, statsmodels {b}"
+        );
     };
     let expected = f["coefficients"].as_array().unwrap();
     assert_eq!(fit.coefficients.len(), expected.len());
@@ -48,17 +51,32 @@ fn the_quadratic_fit_agrees_with_statsmodels() {
         "adjusted R²",
     );
     let lof = fit.lack_of_fit.as_ref().unwrap();
-    close(lof.pure_error_ss, f["pure_error_ss"].as_f64().unwrap(), "SS pe");
-    assert_eq!(lof.pure_error_df as u64, f["pure_error_df"].as_u64().unwrap());
+    close(
+        lof.pure_error_ss,
+        f["pure_error_ss"].as_f64().unwrap(),
+        "SS pe",
+    );
+    assert_eq!(
+        lof.pure_error_df as u64,
+        f["pure_error_df"].as_u64().unwrap()
+    );
     assert_eq!(lof.df as u64, f["lack_of_fit_df"].as_u64().unwrap());
     close(lof.ss, f["lack_of_fit_ss"].as_f64().unwrap(), "SS lof");
     close(lof.f, f["lack_of_fit_f"].as_f64().unwrap(), "F lof");
-    close(lof.p.unwrap(), f["lack_of_fit_p"].as_f64().unwrap(), "p lof");
+    close(
+        lof.p.unwrap(),
+        f["lack_of_fit_p"].as_f64().unwrap(),
+        "p lof",
+    );
     let s = fit.stationary.as_ref().unwrap();
     for (a, b) in s.x.iter().zip(numbers(&f["stationary"])) {
         close(*a, b, "x_s");
     }
-    close(s.predicted, f["stationary_predicted"].as_f64().unwrap(), "ŷ_s");
+    close(
+        s.predicted,
+        f["stationary_predicted"].as_f64().unwrap(),
+        "ŷ_s",
+    );
     for (a, b) in fit
         .canonical
         .eigenvalues
