@@ -518,20 +518,19 @@ fn lack_of_fit(
 /// Eigenvalues (largest first) and eigenvectors of the symmetric matrix B and the surface kind.
 fn canonical(b: &DMatrix<f64>) -> Canonical {
     let eig = SymmetricEigen::new(b.clone());
-    let mut pairs: Vec<(f64, Vec<f64>)> =
-        (0..b.nrows())
-            .map(|i| {
-                let mut v: Vec<f64> = eig.eigenvectors.column(i).iter().copied().collect();
-                let big = v
-                    .iter()
-                    .copied()
-                    .fold(0.0f64, |a, x| if x.abs() > a.abs() + 1e-12 { x } else { a });
-                if big < 0.0 {
-                    v.iter_mut().for_each(|x| *x = -*x);
-                }
-                (eig.eigenvalues[i], v)
-            })
-            .collect();
+    let mut pairs: Vec<(f64, Vec<f64>)> = (0..b.nrows())
+        .map(|i| {
+            let mut v: Vec<f64> = eig.eigenvectors.column(i).iter().copied().collect();
+            let big = v
+                .iter()
+                .copied()
+                .fold(0.0f64, |a, x| if x.abs() > a.abs() + 1e-12 { x } else { a });
+            if big < 0.0 {
+                v.iter_mut().for_each(|x| *x = -*x);
+            }
+            (eig.eigenvalues[i], v)
+        })
+        .collect();
     pairs.sort_by(|a, b| b.0.total_cmp(&a.0));
     let largest = pairs.iter().map(|p| p.0.abs()).fold(0.0, f64::max);
     let kind = if largest == 0.0 || pairs.iter().any(|p| p.0.abs() < RIDGE_SHARE * largest) {

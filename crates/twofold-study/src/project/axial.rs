@@ -33,9 +33,15 @@ impl AxialRuns {
     /// [`AXIAL_CENTRE_POINTS_MIN`].
     pub fn for_design(design: &DesignSettings) -> AxialRuns {
         AxialRuns {
-            centre_points: design.centre_points_per_block.max(AXIAL_CENTRE_POINTS_MIN),
+            centre_points: axial_centre_points(design.centre_points_per_block),
         }
     }
+}
+
+/// Centre runs of the axial block of a design with `centre_points_per_block`: as many, at least
+/// [`AXIAL_CENTRE_POINTS_MIN`] (the one rule of the window, the file and `twofold plan`).
+pub fn axial_centre_points(centre_points_per_block: u32) -> u32 {
+    centre_points_per_block.max(AXIAL_CENTRE_POINTS_MIN)
 }
 
 /// What stops the axial runs of `project`'s design from being laid out.

@@ -30,7 +30,7 @@ pub mod recovery;
 pub mod regenerate;
 pub mod validate;
 
-pub use axial::AxialRuns;
+pub use axial::{AXIAL_CENTRE_POINTS_MIN, AxialRuns, axial_centre_points};
 pub use cell::{Cell, CellValue};
 pub use demo::demo_project;
 pub use edit::{Edit, EditError};
