@@ -18,6 +18,7 @@ pub mod model_cells;
 pub mod next_runs;
 pub mod plots;
 pub mod prediction;
+pub mod quadratic;
 pub mod residuals;
 pub mod run_sheet;
 pub mod trust;
