@@ -106,6 +106,45 @@ pub(super) fn quadratic_report(
     Some(out)
 }
 
+impl QuadraticReport {
+    /// The few lines the summary page prints in the response's section: the fitted equation in
+    /// coded units (blocks averaged out), the stationary point and its kind, lack of fit; or why
+    /// there is no fit.
+    pub fn page_lines(&self) -> Vec<String> {
+        let fit = match &self.fit {
+            Ok(f) => f,
+            Err(why) => {
+                return vec![format!(
+                    "Quadratic model (axial runs in block {}): not fitted yet, {why}.",
+                    self.axial_block
+                )];
+            }
+        };
+        let mut eq = String::new();
+        for c in fit
+            .coefficients
+            .iter()
+            .filter(|c| !matches!(c.term, twofold_core::composite::QuadTerm::Block(_)))
+        {
+            let v = num(c.coefficient.abs());
+            match c.term {
+                twofold_core::composite::QuadTerm::Intercept => eq.push_str(&num(c.coefficient)),
+                t => {
+                    let sign = if c.coefficient < 0.0 { '−' } else { '+' };
+                    eq.push_str(&format!(" {sign} {v} {}", t.label()));
+                }
+            }
+        }
+        let mut out = vec![format!(
+            "Quadratic model from all {} runs (axial runs in block {}, coded units, blocks averaged): y = {eq}.",
+            self.runs_used, self.axial_block
+        )];
+        // The notes after the first (which describes the design) say what the fit finds.
+        out.extend(self.notes.iter().skip(1).cloned());
+        out
+    }
+}
+
 /// The fit's sentences: the kind of surface, where its stationary point lies, lack of fit.
 fn fit_notes(fit: &QuadraticFit, natural: Option<&[f64]>, names: &[String]) -> Vec<String> {
     let mut out = Vec::new();
@@ -468,6 +507,27 @@ mod tests {
             "{text}"
         );
         assert!(text.contains("Eigenvalue"), "{text}");
+        // The page: the equation and the maximum among the response's lines, drawn on a page.
+        let input =
+            crate::export::summary_input(&p, &[&r], &crate::export::BuildOptions::default());
+        let lines = &input.responses[0].warnings;
+        assert!(
+            lines.iter().any(|l| l.starts_with(
+                "Quadratic model from all 14 runs (axial runs in block 2, coded units, blocks averaged): y = 50 + 2 A − 1 B + 0.5 AB − 4 A² − 3 B²"
+            )),
+            "{lines:?}"
+        );
+        assert!(
+            lines
+                .iter()
+                .any(|l| l.starts_with("The stationary point is a maximum"))
+        );
+        let pages =
+            crate::export::summary::render_pages(&input, crate::export::Paper::default()).join("");
+        assert!(
+            pages.contains("Quadratic model from all 14 runs"),
+            "not on the page"
+        );
         // A study without axial runs has no `quadratic` key.
         let plain = super::super::json::report_json(&two_level).unwrap();
         assert!(plain.get("quadratic").is_none());
