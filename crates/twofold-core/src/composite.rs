@@ -404,7 +404,7 @@ pub fn fit_quadratic(
     // Rank check on the scaled cross-product: a pivot below RANK_REL of the largest is zero.
     let sv = xtx.clone().singular_values();
     let largest = sv.max();
-    if !(largest > 0.0) || sv.min() <= crate::prec::RANK_REL * largest {
+    if largest.is_nan() || largest <= 0.0 || sv.min() <= crate::prec::RANK_REL * largest {
         return Err(not_estimable);
     }
     let inv = xtx.try_inverse().ok_or(not_estimable)?;

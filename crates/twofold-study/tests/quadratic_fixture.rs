@@ -8,10 +8,11 @@ use twofold_core::prec::{LIBRARY_REL, close_rel};
 const FIXTURE: &str = include_str!("../../../tests/fixtures/statsmodels_quadratic.json");
 
 fn numbers(v: &serde_json::Value) -> Vec<f64> {
-    v.as_array()
-        .unwrap()
-        .iter()
-        .map(|x| x.as_f64().unwrap())
+    let Some(list) = v.as_array() else {
+        panic!("not an array: {v}");
+    };
+    list.iter()
+        .map(|x| x.as_f64().unwrap_or_else(|| panic!("not a number: {x}")))
         .collect()
 }
 

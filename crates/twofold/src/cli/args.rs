@@ -52,6 +52,10 @@ pub struct Cli {
 
 /// The headless commands.
 #[derive(Debug, Subcommand)]
+#[expect(
+    clippy::large_enum_variant,
+    reason = "parsed once per process; boxing the plan options would only add indirection"
+)]
 pub enum Command {
     /// Choose a design, show its aliasing and print the randomised run sheet.
     #[command(long_about = super::plan::LONG_ABOUT, after_help = super::plan::AFTER_HELP)]
