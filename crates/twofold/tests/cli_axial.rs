@@ -142,3 +142,72 @@ fn axial_runs_are_refused_where_they_cannot_serve() {
         assert!(err.contains(needle), "{args:?}: {err}");
     }
 }
+
+/// y = 50 + 2A − B + 0.5AB − 4A² − 3B² (invented), centre runs wobbling ±0.1 around it.
+fn fill(p: &mut twofold_study::project::Project) {
+    let mut centre = 0;
+    for r in &mut p.runs {
+        if r.values[0].is_typed() {
+            continue;
+        }
+        let (a, b) = (f64::from(r.levels[0]), f64::from(r.levels[1]));
+        let mut y = 50.0 + 2.0 * a - b + 0.5 * a * b - 4.0 * a * a - 3.0 * b * b;
+        if r.centre {
+            y += [0.1, -0.1, 0.0][centre % 3];
+            centre += 1;
+        }
+        r.values[0] = twofold_study::project::Cell::new(format!("{y}"));
+    }
+}
+
+#[test]
+fn analyze_suggests_axial_runs_then_reports_the_quadratic_model() {
+    use twofold_study::project::{Edit, Factor, FollowUp, Project, ResponseDef, save_project};
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("curved.twofold");
+    let mut p = Project::new("Curved");
+    p.factors.push(Factor::numeric("Temp", "°C", 150.0, 170.0));
+    p.factors.push(Factor::numeric("Time", "min", 10.0, 20.0));
+    p.responses.push(ResponseDef::new("Yield", "%"));
+    p.design.centre_points_per_block = 3;
+    p.apply(Edit::RegenerateRuns).unwrap();
+    fill(&mut p);
+    save_project(&path, &p).unwrap();
+    let file = path.to_str().unwrap();
+    let (code, out, err) = run(&["analyze", file, "--json"]);
+    assert_eq!(code, 0, "{err}");
+    let j: Value = serde_json::from_str(&out).unwrap();
+    assert_eq!(j["follow_up"][0]["kind"], "axial");
+    assert_eq!(j["follow_up"][0]["suggested"], true);
+    assert!(j.get("quadratic").is_none());
+    // Run the axial block and analyse again.
+    p.apply(Edit::AddFollowUp(FollowUp::Axial)).unwrap();
+    fill(&mut p);
+    save_project(&path, &p).unwrap();
+    let (code, out, err) = run(&["analyze", file, "--json"]);
+    assert_eq!(code, 0, "{err}");
+    let j: Value = serde_json::from_str(&out).unwrap();
+    let q = &j["quadratic"];
+    assert_eq!(q["runs_used"], 14);
+    assert_eq!(q["canonical"]["kind"], "maximum");
+    assert_eq!(q["stationary"]["inside_box"], true);
+    // x_s of the invented surface, by hand: (2.875, −1.75)/11.9375 coded.
+    let xs = q["stationary"]["coded"].as_array().unwrap();
+    assert!((xs[0].as_f64().unwrap() - 2.875 / 11.9375).abs() < 1e-9);
+    assert!((xs[1].as_f64().unwrap() + 1.75 / 11.9375).abs() < 1e-9);
+    // Nothing more is offered after the axial block, and the text report has the section.
+    assert!(
+        j["follow_up"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .all(|o| o["kind"] != "axial")
+    );
+    let (code, text, err) = run(&["analyze", file]);
+    assert_eq!(code, 0, "{err}");
+    assert!(
+        text.contains("Quadratic model (every run: 14 used, axial block 2)"),
+        "{text}"
+    );
+    assert!(text.contains("The stationary point is a maximum"), "{text}");
+}

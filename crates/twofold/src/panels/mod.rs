@@ -47,7 +47,7 @@ pub enum Step {
     Plots,
     /// Which settings to run: predicted response and best settings.
     Predict,
-    /// Follow-up runs: fold-overs, centre points, a replicate.
+    /// Follow-up runs: fold-overs, centre points, a replicate, axial runs.
     NextRuns,
 }
 
