@@ -95,3 +95,26 @@ fn the_trust_step_shows_the_quadratic_model_and_its_maximum() {
     );
     assert!(h.query_by_label("B²").is_some());
 }
+
+#[test]
+fn the_design_step_shows_the_axial_runs_and_can_leave_them_out() {
+    let mut p = curved();
+    if let Err(e) = p.apply(Edit::AddFollowUp(FollowUp::Axial)) {
+        panic!("axial runs add: {e}");
+    }
+    let mut h = harness(TwofoldApp::new_for_test(p));
+    h.state_mut().set_step(Step::Design);
+    h.run();
+    assert!(
+        h.query_by_label_contains("Follow-up: 4 axial runs and 3 centre runs")
+            .is_some()
+    );
+    h.get_by_label("Leave out the axial runs").click();
+    h.run();
+    assert!(
+        h.query_by_label_contains("Follow-up: 4 axial runs")
+            .is_none()
+    );
+    // Only the draft changed: the sheet keeps its axial runs until the design is applied.
+    assert!(h.state().project().design.axial.is_some());
+}
