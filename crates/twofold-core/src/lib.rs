@@ -15,6 +15,7 @@ pub mod term;
 // Planning.
 pub mod alias;
 pub mod blocking;
+pub mod composite;
 pub mod design;
 pub mod foldover;
 pub mod ofat;

@@ -4,7 +4,9 @@
 //! `twofold analyze` writes, so the page and the window cannot disagree: this module only
 //! selects, orders and labels. With no terms chosen the page shows the report's default model
 //! choice and says how it was made and which error the tests use. The best settings are
-//! computed by the core's `best_settings` exactly as the prediction pane does.
+//! computed by the core's `best_settings` exactly as the prediction pane does. A study with
+//! axial runs adds the report's quadratic-model lines after the warnings
+//! ([`crate::report::QuadraticReport::page_lines`]), as a split-plot study adds its strata.
 
 use twofold_core::anova::Source;
 use twofold_core::predict::Goal;
@@ -100,6 +102,9 @@ pub fn response_summary(project: &Project, results: &Report, goal: Goal) -> Resp
         all.push(
             "The effect ranking's Lenth marks pool both strata: judge whole-plot and subplot effects by their own margins above and by each stratum's half-normal plot.".to_string(),
         );
+    }
+    if let Some(q) = &results.quadratic {
+        all.extend(q.page_lines());
     }
     for w in warnings {
         if !all.contains(&w) {

@@ -39,6 +39,9 @@ pub enum FollowUp {
     CentrePoints,
     /// One more complete replicate.
     Replicate,
+    /// Axial runs and centre runs as a new block: a face-centred central composite design
+    /// ([`super::axial`]).
+    Axial,
 }
 
 /// Why a follow-up cannot be added.
@@ -62,6 +65,14 @@ pub enum FollowUpError {
     /// The design already has centre points.
     #[error("the design already has centre points")]
     HasCentrePoints,
+    /// The design already has axial runs (the last block: nothing is added after them).
+    #[error("the run sheet already holds axial runs, the last block")]
+    AlreadyAxial,
+    /// Even with axial runs the quadratic model could not be fitted.
+    #[error(
+        "even with axial runs the quadratic model could not be fitted ({0}): the fraction aliases two-factor interactions; fold it over or run the full factorial first"
+    )]
+    QuadraticNotEstimable(String),
     /// Typed values would find no run in the new sheet (not expected: the runs in the sheet are
     /// part of every follow-up).
     #[error("{0} typed value(s) would find no run in the new sheet")]
@@ -119,6 +130,10 @@ impl Project {
             return Err(FollowUpError::Outdated);
         }
         let mut d = self.design.clone();
+        // The axial block is the last one: anything added after it would renumber its runs.
+        if d.axial.is_some() {
+            return Err(FollowUpError::AlreadyAxial);
+        }
         let screening = d.screening_runs().is_some();
         match follow_up {
             FollowUp::FoldOver(kind) if screening => {
@@ -159,6 +174,10 @@ impl Project {
                     d.replicates_as_blocks = true;
                 }
                 d.replicates = d.replicates.saturating_add(1);
+            }
+            FollowUp::Axial => {
+                d.axial = Some(super::axial::AxialRuns::for_design(&d));
+                super::axial::check_estimable(self, &d)?;
             }
         }
         Ok(d)

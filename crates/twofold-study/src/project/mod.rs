@@ -12,7 +12,9 @@
 //! - [`regenerate`]: the run sheet from the design, keeping typed values that survive.
 //! - [`goals`]: goals of the responses, noise factors' spread, power settings.
 //! - [`follow_up`]: follow-up runs (fold-over, centre points, a replicate) added as one edit.
+//! - [`axial`]: axial runs, the follow-up that makes a central composite design.
 
+pub mod axial;
 pub mod cell;
 pub mod demo;
 pub mod edit;
@@ -28,6 +30,7 @@ pub mod recovery;
 pub mod regenerate;
 pub mod validate;
 
+pub use axial::{AXIAL_CENTRE_POINTS_MIN, AxialRuns, axial_centre_points};
 pub use cell::{Cell, CellValue};
 pub use demo::demo_project;
 pub use edit::{Edit, EditError};

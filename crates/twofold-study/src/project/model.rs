@@ -201,6 +201,10 @@ pub struct DesignSettings {
     /// follow-ups existed.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub fold: Option<twofold_core::foldover::FoldKind>,
+    /// Axial runs added as a follow-up (a face-centred central composite design, see
+    /// [`super::axial`]): the last block. `None` in files written before axial runs existed.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub axial: Option<super::axial::AxialRuns>,
 }
 
 fn default_true() -> bool {
@@ -230,6 +234,7 @@ impl Default for DesignSettings {
             randomize: true,
             seed: 1,
             fold: None,
+            axial: None,
         }
     }
 }

@@ -151,7 +151,8 @@ pub(crate) fn plan_runs(
         None => build_plan(&spec)?,
         Some(kind) => build_fold_over_plan(&spec, &fold_over(&spec.design, kind)?)?,
     };
-    let out = records(project, design, plan.runs)?;
+    let planned = super::axial::with_axial_block(k, design, plan.runs)?;
+    let out = records(project, design, planned)?;
     Ok((out, used))
 }
 

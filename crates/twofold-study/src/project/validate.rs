@@ -203,6 +203,9 @@ impl Project {
                 push(Severity::Error, Field::Design, message);
             }
         }
+        for message in super::axial::axial_problems(self) {
+            push(Severity::Error, Field::Design, message);
+        }
         if self.design.replicates == 0 {
             push(
                 Severity::Error,

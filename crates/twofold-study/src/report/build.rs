@@ -33,6 +33,11 @@ impl Report {
         response: usize,
         model: &ModelSettings,
     ) -> Report {
+        if let Some(two_level) = project.two_level_part() {
+            let mut out = Report::build(&two_level, revision, response, model);
+            out.quadratic = super::quadratic::quadratic_report(project, response, model);
+            return out;
+        }
         let key = ReportKey {
             revision,
             response,
@@ -252,6 +257,7 @@ impl Report {
             warnings: Vec::new(),
             stopped: None,
             strata: None,
+            quadratic: None,
             key,
         }
     }

@@ -58,7 +58,8 @@ pub(super) fn labels(terms: &[Term]) -> Vec<String> {
 /// `term`, `ss`, `f`, `p` against pure error when the default terms were chosen by them),
 /// `anova` (`source`, `df`, `ss`, `ms`, `f`, `p`), `curvature` (`ss`, `f`, `p`, `error`,
 /// `df_error`, `factorial_minus_centre`, `centre_runs`, or null; `f` and `p` against the error
-/// named by `error`) and `warnings`. Undefined numbers are null.
+/// named by `error`), `warnings`, and for a study with axial runs `quadratic` (see
+/// [`super::quadratic::quadratic_json`]). Undefined numbers are null.
 pub fn report_json(r: &Report) -> Result<Value, String> {
     let e = r.effects.as_ref().map_err(Clone::clone)?;
     let m = r.fit.as_ref().map_err(Clone::clone)?;
@@ -161,6 +162,9 @@ pub fn report_json(r: &Report) -> Result<Value, String> {
         })),
         "warnings": r.warnings.iter().map(|w| w.text.clone()).collect::<Vec<_>>(),
     });
+    if let (Some(q), Some(map)) = (&r.quadratic, obj.as_object_mut()) {
+        map.insert("quadratic".into(), super::quadratic::quadratic_json(q));
+    }
     if let (Err(e), Some(map)) = (&r.lenth, obj.as_object_mut()) {
         map.insert("lenth_note".into(), Value::String(e.clone()));
     }
@@ -215,7 +219,7 @@ fn add_strata(obj: &mut Value, strata: &super::Strata) {
 }
 
 /// The follow-up options as the `follow_up` array of `twofold analyze --json`, suggested first:
-/// `kind` (`fold_full`, `fold_A`, ..., `centre_points`, `replicate`), `title`, `runs_added`,
+/// `kind` (`fold_full`, `fold_A`, ..., `centre_points`, `replicate`, `axial`), `title`, `runs_added`,
 /// `resolves` (sentences), `resolution_after` (fold-overs; null otherwise or for a full
 /// factorial), `suggested`, `reason` (null unless suggested) and `unavailable` (why it cannot be
 /// added, or null).

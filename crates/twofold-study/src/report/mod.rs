@@ -13,7 +13,8 @@
 //! - `json`, `text`: the renderers of `twofold analyze`;
 //! - `decision`: which settings to run for every response's goal at once, noise factors held
 //!   in check ([`decide`]);
-//! - `next_runs`: the follow-up runs a project can add, and the one the report points to.
+//! - `next_runs`: the follow-up runs a project can add, and the one the report points to;
+//! - `quadratic`: the quadratic model of a study with axial runs (a central composite design).
 //!
 //! # What a report holds
 //! Data counts (used, missing, excluded, bad cells), the transform, effects with Lenth's margins
@@ -38,6 +39,7 @@ pub mod decision;
 pub mod decision_out;
 pub mod json;
 pub mod next_runs;
+pub mod quadratic;
 pub mod text;
 
 use twofold_core::anova::{Equation, FitError, ModelFit, RangeError};
@@ -67,6 +69,7 @@ pub use data::{
 };
 pub use decision::{Choice, DecideOptions, Decision, ResponseOutcome, Setting, decide};
 pub use next_runs::{NextRun, next_runs};
+pub use quadratic::QuadraticReport;
 
 /// Why (part of) a report could not be made.
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]
@@ -263,6 +266,9 @@ pub struct Report {
     /// For a split-plot study (runs grouped into whole plots): the stratum of every effect and
     /// Lenth's margins of each stratum.
     pub strata: Option<Strata>,
+    /// For a study with axial runs: the quadratic model from every run (the rest of the report
+    /// is the two-level part's, see [`quadratic`]).
+    pub quadratic: Option<QuadraticReport>,
 }
 
 impl Strata {

@@ -9,6 +9,9 @@
 //!   so its main effect and all its two-factor interactions are freed.
 //! - **Centre points** (when there are none): a curvature check and pure error.
 //! - **A replicate**: pure error on one degree of freedom per distinct run.
+//! - **Axial runs** (a regular design of numeric factors): a face-centred central composite
+//!   design in which every pure quadratic term is estimable; suggested when the report's
+//!   curvature test is significant (`quadratic.rs`).
 //!
 //! The fold-over rules are those of Montgomery, *Design and Analysis of Experiments*, the
 //! fold-over sections of the chapter on two-level fractional factorials, and of Box, Hunter &
@@ -61,13 +64,14 @@ impl NextRun {
         self.preview.as_ref().map_or(0, FollowUpPreview::runs_added)
     }
 
-    /// A short key: `fold_full`, `fold_A`, `centre_points`, `replicate`.
+    /// A short key: `fold_full`, `fold_A`, `centre_points`, `replicate`, `axial`.
     pub fn key(&self) -> String {
         match self.follow_up {
             FollowUp::FoldOver(FoldKind::Full) => "fold_full".into(),
             FollowUp::FoldOver(FoldKind::Factor(f)) => format!("fold_{}", letter(f)),
             FollowUp::CentrePoints => "centre_points".into(),
             FollowUp::Replicate => "replicate".into(),
+            FollowUp::Axial => "axial".into(),
         }
     }
 }
@@ -385,6 +389,7 @@ pub fn next_runs(project: &Project, report: Option<&Report>) -> Vec<NextRun> {
             },
         ));
     }
+    out.extend(super::quadratic::axial_option(project, report));
     let p = preview(FollowUp::Replicate);
     let mut resolves = Vec::new();
     if let Ok(x) = &p {

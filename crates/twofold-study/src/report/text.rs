@@ -248,6 +248,9 @@ pub fn report_text(r: &Report) -> Result<String, String> {
             c.df_error
         );
     }
+    if let Some(q) = &r.quadratic {
+        s.push_str(&super::quadratic::quadratic_text(q));
+    }
     for w in &r.warnings {
         let _ = writeln!(s, "Warning: {}", w.text);
     }

@@ -3,7 +3,8 @@
 //! ```text
 //! twofold plan --factors 5 --runs 16 [--generators "E=ABCD"] [--centre-points 3]
 //!              [--replicates 2] [--blocks 2 | --block-on "ABC,ACD"] [--replicates-as-blocks]
-//!              [--seed 42] [--standard-order] [--fold full|A] [--search-seconds 2]
+//!              [--seed 42] [--standard-order] [--fold full|A] [--augment axial]
+//!              [--search-seconds 2]
 //!              [--json | --csv]
 //! ```
 
@@ -38,7 +39,8 @@ pub(crate) const AFTER_HELP: &str = "\
 Examples:
   twofold plan --factors 5 --runs 16 --json
   twofold plan --factors \"Temp,Time,Speed,Load\" --centre-points 3 --replicates 2 --blocks 2 --seed 42
-  twofold plan --factors 7 --runs 8 --generators \"D=AB,E=AC,F=BC,G=ABC\" --fold full";
+  twofold plan --factors 7 --runs 8 --generators \"D=AB,E=AC,F=BC,G=ABC\" --fold full
+  twofold plan --factors \"Temp,Time,Feed\" --centre-points 3 --augment axial --json";
 
 /// The options of `twofold plan`, as typed.
 #[derive(Debug, Clone, Default, clap::Args)]
@@ -85,6 +87,12 @@ pub struct PlanArgs {
     /// Add the fold-over: `full` (all signs reversed) or one factor letter (that factor reversed)
     #[arg(long, value_name = "full|A")]
     pub fold: Option<String>,
+    /// Add follow-up runs as the last block: `axial` adds 2k axial runs (each factor at its low
+    /// and high, the others at the centre: face-centred, alpha = 1) and centre runs, a central
+    /// composite design for the quadratic model; the rotatable and orthogonal-blocking alphas
+    /// are printed
+    #[arg(long, value_name = "axial")]
+    pub augment: Option<String>,
     /// Time allowed for the design search, in seconds (more than 0, at most 3600) [default: 2]
     #[arg(long = "search-seconds", value_name = "S")]
     pub search_seconds: Option<String>,
@@ -140,11 +148,19 @@ struct Planned {
     replicates: usize,
     power: Option<PlanPower>,
     required: Vec<Term>,
+    axial: Option<super::plan_axial::Axial>,
 }
 
 /// Runs `twofold plan`.
 pub fn run(args: &PlanArgs, out: &mut dyn Write, err: &mut dyn Write) -> i32 {
     if super::plan_screening::is_screening(args) {
+        if args.augment.is_some() {
+            let _ = writeln!(
+                err,
+                "error: --augment axial builds on a regular two-level design, not on a screening design"
+            );
+            return EXIT_BAD_INPUT;
+        }
         let names = match screening_names(args) {
             Ok(n) => n,
             Err(e) => {
@@ -308,6 +324,19 @@ fn compute(a: &PlanArgs) -> Result<Planned, PlanInputError> {
         Some(f) => build_fold_over_plan(&spec, f),
     }
     .map_err(|e| invalid(e.to_string()))?;
+    if a.augment.is_some() && (a.hard_to_change.is_some() || a.sigma.is_some()) {
+        return Err(invalid(
+            "--augment axial with --hard-to-change or --sigma is not offered yet",
+        ));
+    }
+    let axial = super::plan_axial::augment(
+        a.augment.as_deref(),
+        &mut plan,
+        centre_points,
+        seed,
+        !a.standard_order,
+    )
+    .map_err(invalid)?;
     let split = match htc {
         None => None,
         Some(htc) => {
@@ -340,6 +369,7 @@ fn compute(a: &PlanArgs) -> Result<Planned, PlanInputError> {
         replicates,
         power,
         required,
+        axial,
     })
 }
 
@@ -459,6 +489,9 @@ fn to_json(p: &Planned) -> Value {
         "runs": runs,
     });
     plan_require::add_json(&mut plan, &p.required, &p.report);
+    if let Some(axial) = &p.axial {
+        axial.add_json(&mut plan);
+    }
     plan
 }
 
@@ -630,6 +663,9 @@ fn write_text(p: &Planned, out: &mut dyn Write) -> std::io::Result<()> {
         "One factor at a time would need {} runs for the same precision.",
         ofat::equivalent_runs(k, p.design.base_runs())
     )?;
+    if let Some(axial) = &p.axial {
+        writeln!(out, "{}", axial.text())?;
+    }
     if let Some(power) = &p.power {
         writeln!(out, "{}", power.text())?;
     }

@@ -6,6 +6,7 @@
 //! many factors, so in the window it runs on a worker thread and the table says "searching".
 
 mod aliases;
+mod axial;
 mod partial;
 pub mod power;
 pub mod required;
@@ -182,6 +183,7 @@ impl Pane for DesignPane {
                 ui.add_space(8.0);
                 let total = summary(ui, &draft, k, project, &pal);
                 fold_row(ui, &mut draft);
+                axial::axial_row(ui, &mut draft, k);
                 split_row(self, ui, view, &draft, k);
                 ui.add_space(4.0);
                 let unchanged =

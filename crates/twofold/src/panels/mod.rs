@@ -18,6 +18,7 @@ pub mod model_cells;
 pub mod next_runs;
 pub mod plots;
 pub mod prediction;
+pub mod quadratic;
 pub mod residuals;
 pub mod run_sheet;
 pub mod trust;
@@ -46,7 +47,7 @@ pub enum Step {
     Plots,
     /// Which settings to run: predicted response and best settings.
     Predict,
-    /// Follow-up runs: fold-overs, centre points, a replicate.
+    /// Follow-up runs: fold-overs, centre points, a replicate, axial runs.
     NextRuns,
 }
 

@@ -1,5 +1,6 @@
-//! "Can the model be trusted?": the fit (analysis of variance, R², coefficients, equation) and
-//! the residual checks with the Box–Cox profile, one under the other in one scrolling pane.
+//! "Can the model be trusted?": the fit (analysis of variance, R², coefficients, equation), the
+//! quadratic model of a study with axial runs (`quadratic.rs`) and the residual checks with the
+//! Box–Cox profile, one under the other in one scrolling pane.
 
 use egui::{RichText, Ui};
 
@@ -21,6 +22,7 @@ impl Pane for TrustPane {
             .auto_shrink([false, false])
             .show(ui, |ui| {
                 model.ui(ui, view, out);
+                super::quadratic::show(ui, view);
                 ui.add_space(10.0);
                 ui.separator();
                 ui.label(RichText::new("Residual checks").size(18.0).strong());
