@@ -13,6 +13,7 @@
 //! - [`goals`]: goals of the responses, noise factors' spread, power settings.
 //! - [`follow_up`]: follow-up runs (fold-over, centre points, a replicate) added as one edit.
 
+pub mod added_block;
 pub mod cell;
 pub mod demo;
 pub mod edit;
@@ -28,6 +29,7 @@ pub mod recovery;
 pub mod regenerate;
 pub mod validate;
 
+pub use added_block::{AddedBlock, parse_interactions};
 pub use cell::{Cell, CellValue};
 pub use demo::demo_project;
 pub use edit::{Edit, EditError};

@@ -201,6 +201,11 @@ pub struct DesignSettings {
     /// follow-ups existed.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub fold: Option<twofold_core::foldover::FoldKind>,
+    /// A follow-up block that is not a regular fraction (half a fold-over, or runs chosen to
+    /// separate interactions): block 2 after the fraction's runs. `None` in files written
+    /// before it existed.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub added: Option<super::added_block::AddedBlock>,
 }
 
 fn default_true() -> bool {
@@ -230,6 +235,7 @@ impl Default for DesignSettings {
             randomize: true,
             seed: 1,
             fold: None,
+            added: None,
         }
     }
 }

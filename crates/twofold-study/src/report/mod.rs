@@ -38,6 +38,7 @@ pub mod decision;
 pub mod decision_out;
 pub mod json;
 pub mod next_runs;
+pub mod next_runs_added;
 pub mod text;
 
 use twofold_core::anova::{Equation, FitError, ModelFit, RangeError};
@@ -67,6 +68,7 @@ pub use data::{
 };
 pub use decision::{Choice, DecideOptions, Decision, ResponseOutcome, Setting, decide};
 pub use next_runs::{NextRun, next_runs};
+pub use next_runs_added::separate_option;
 
 /// Why (part of) a report could not be made.
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]

@@ -52,6 +52,10 @@ pub struct Cli {
 
 /// The headless commands.
 #[derive(Debug, Subcommand)]
+#[expect(
+    clippy::large_enum_variant,
+    reason = "parsed once per run of the program; boxing the arguments would save nothing that matters"
+)]
 pub enum Command {
     /// Choose a design, show its aliasing and print the randomised run sheet.
     #[command(long_about = super::plan::LONG_ABOUT, after_help = super::plan::AFTER_HELP)]

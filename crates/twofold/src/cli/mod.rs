@@ -14,6 +14,7 @@ pub mod args;
 pub mod best;
 pub mod export;
 pub mod plan;
+mod plan_follow;
 mod plan_power;
 mod plan_require;
 mod plan_screening;
