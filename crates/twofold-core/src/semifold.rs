@@ -13,7 +13,8 @@
 //! intercept, the block, every main effect, every two-factor interaction of f (clear in the full
 //! fold-over) and one two-factor interaction of each remaining chain. For a full semifold it is every main effect with, one at a
 //! time, each two-factor interaction aliased with a main effect in the fraction: a pair is
-//! *separated* when both are estimable in that model.
+//! *separated* when both are estimable in that model. The factor that picks the kept half is
+//! constant in block 2, so the block absorbs its contrast there and its own pairs stay aliased.
 
 use crate::alias::{alias_report, aliases_of};
 use crate::design::FractionalDesign;
@@ -324,7 +325,10 @@ mod tests {
         assert_eq!(s.follow_up_runs.len(), 4);
         assert!(s.estimability.full_rank());
         assert_eq!(s.separated.len() + s.not_separated.len(), 21);
-        assert!(!s.separated.is_empty());
+        // The factor picking the half (A, at + by default) is constant in block 2, so only
+        // its own three pairs stay aliased; the other 18 are separated.
+        assert_eq!(s.separated.len(), 18);
+        assert!(s.not_separated.iter().all(|(m, _)| m.label() == "A"));
     }
 
     #[test]

@@ -170,7 +170,9 @@ fn typing_interactions_offers_runs_that_separate_them() {
     use twofold_study::report::separate_option;
     let before = screened();
     // A = BD here (D = AB): naming BD asks for runs that tell it from A.
-    let option = match separate_option(&before, "BD") {
+    // The pane passes the shown report: its model's interactions are kept estimable too.
+    let report = twofold_study::report::Report::for_response(&before, 0, 0);
+    let option = match separate_option(&before, "BD", Some(&report)) {
         Ok(o) => o,
         Err(e) => panic!("BD can be separated: {e}"),
     };

@@ -309,6 +309,9 @@ mod tests {
         assert_eq!(crate::project::project_from_str(&text).unwrap(), after);
         assert!(h.undo());
         assert_eq!(h.project(), &before);
+        // Without a block the field is not written, so files keep their old shape.
+        let plain = crate::project::project_to_string(&before).unwrap();
+        assert!(!plain.contains("added:"), "{plain}");
         // A second follow-up block is refused.
         assert_eq!(
             after.follow_up_design(FollowUp::FoldOver(FoldKind::Full)),
@@ -411,7 +414,7 @@ mod tests {
         let before = res_iv();
         let k = 6;
         let named = parse_interactions("AE, BC", k).unwrap();
-        let option = separate_option(&before, "AE, BC").unwrap();
+        let option = separate_option(&before, "AE, BC", None).unwrap();
         assert_eq!(option.key(), "separate");
         assert_eq!(option.runs_added(), 3);
         assert!(
@@ -435,12 +438,24 @@ mod tests {
         assert_eq!(again, p);
         let text = crate::project::project_to_string(&p).unwrap();
         assert_eq!(crate::project::project_from_str(&text).unwrap(), p);
+        // With the report, the model's active interaction AB (y has 2·AB) joins the request.
+        let report = Report::for_response(&before, 1, 0);
+        let with = separate_option(&before, "AE, BC", Some(&report)).unwrap();
+        assert_eq!(
+            with.title,
+            "Runs to separate AE, BC (keeping AB of the model)"
+        );
+        assert!(
+            with.resolves.iter().any(|l| l.starts_with("AB ")),
+            "{:?}",
+            with.resolves
+        );
         // Bad requests say why.
         for (text, want) in [
             ("", "name at least one"),
             ("ABC", "ABC is not a two-factor interaction"),
         ] {
-            let e = separate_option(&before, text).unwrap_err();
+            let e = separate_option(&before, text, None).unwrap_err();
             assert!(e.starts_with(want), "{e}");
         }
     }

@@ -143,7 +143,7 @@ fn ambiguous_chains(aliases: &AliasReport) -> Vec<Vec<Term>> {
 }
 
 /// Effects the report treats as active (see the module documentation).
-fn active_terms(report: &Report) -> Vec<Term> {
+pub(crate) fn active_terms(report: &Report) -> Vec<Term> {
     let Ok(choice) = &report.choice else {
         return Vec::new();
     };

@@ -157,10 +157,23 @@ pub fn semifold_words(fraction: &FractionalDesign, s: &SemiFoldOver) -> Vec<Stri
 }
 
 /// The option of runs to separate the interactions typed in `text` (e.g. `AB, CE`), or why
-/// there is none.
-pub fn separate_option(project: &Project, text: &str) -> Result<NextRun, String> {
+/// there is none. With `report`, the two-factor interactions its model treats as active join
+/// the named ones, so the added runs keep them estimable too.
+pub fn separate_option(
+    project: &Project,
+    text: &str,
+    report: Option<&super::Report>,
+) -> Result<NextRun, String> {
     let k = project.factors.len();
-    let terms = parse_interactions(text, k)?;
+    let named = parse_interactions(text, k)?;
+    let kept: Vec<Term> = report
+        .map(super::next_runs::active_terms)
+        .unwrap_or_default()
+        .into_iter()
+        .filter(|t| t.order() == 2 && !named.contains(t))
+        .collect();
+    let mut terms = named.clone();
+    terms.extend(kept.iter().copied());
     let follow_up = FollowUp::Separate(terms.clone());
     let preview = project
         .preview_follow_up(follow_up.clone())
@@ -181,7 +194,15 @@ pub fn separate_option(project: &Project, text: &str) -> Result<NextRun, String>
     }
     Ok(NextRun {
         follow_up,
-        title: format!("Runs to separate {}", join(&terms)),
+        title: if kept.is_empty() {
+            format!("Runs to separate {}", join(&named))
+        } else {
+            format!(
+                "Runs to separate {} (keeping {} of the model)",
+                join(&named),
+                join(&kept)
+            )
+        },
         resolves,
         resolution_after: None,
         preview,

@@ -23,8 +23,9 @@ type BuiltFor = (u64, Option<usize>, Option<u64>);
 /// Accessible name of the field of interactions to separate.
 pub const SEPARATE_FIELD: &str = "interactions to separate";
 
-/// What the option of runs to separate interactions was built from: project revision, text.
-type SeparateFor = (u64, String);
+/// What the option of runs to separate interactions was built from: project revision, revision
+/// of the shown response's report, text.
+type SeparateFor = (u64, Option<u64>, String);
 
 /// View state of the pane: the options built once per data revision and analysis, and the
 /// option of runs to separate the interactions typed (built once per revision and text).
@@ -216,9 +217,13 @@ fn separate_row(
         );
         return;
     }
-    let key: SeparateFor = (view.revision, typed.clone());
+    let key: SeparateFor = (
+        view.revision,
+        view.results.map(|r| r.revision),
+        typed.clone(),
+    );
     if built.as_ref().is_none_or(|(k, _)| *k != key) {
-        *built = Some((key, separate_option(view.project, &typed)));
+        *built = Some((key, separate_option(view.project, &typed, view.results)));
     }
     match built.as_ref().map(|(_, r)| r) {
         Some(Ok(option)) => option_card(ui, view, option, out),
