@@ -255,10 +255,18 @@ mod tests {
     fn semifolding_a_resolution_iv_design_on_a_factor_frees_its_interactions() {
         // Mee & Peralta 2000 (from memory): semifolding a resolution IV 2^(k−p) on a factor makes
         // all its two-factor interactions estimable, as the full single-factor fold-over does,
-        // at half the runs, though not orthogonally. Checked here for every factor of two
-        // resolution IV fractions and every choice of the half, against the full fold-over.
-        for (k, n, gens) in [(6, 16, "E=ABC, F=BCD"), (7, 16, "E=ABC, F=BCD, G=ACD")] {
+        // at half the runs, though not orthogonally. Checked here for every factor of five
+        // resolution IV fractions of 16 and 32 runs (the resolution asserted) and every choice
+        // of the half, against the full fold-over.
+        for (k, n, gens) in [
+            (6, 16, "E=ABC, F=BCD"),
+            (7, 16, "E=ABC, F=BCD, G=ACD"),
+            (8, 16, "E=BCD, F=ACD, G=ABC, H=ABD"),
+            (9, 32, "F=BCDE, G=ACDE, H=ABDE, J=ABCE"),
+            (10, 32, "F=ABCD, G=ABCE, H=ABDE, J=ACDE, K=BCDE"),
+        ] {
             let d = FractionalDesign::from_text(k, Some(n), gens).unwrap();
+            assert_eq!(alias_report(&d).resolution, Some(4), "{gens}");
             for f in 0..k {
                 let full = fold_over(&d, FoldKind::Factor(f)).unwrap();
                 if full.repeats_original {
