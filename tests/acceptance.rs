@@ -15,12 +15,16 @@ mod cli_best;
 mod cli_export;
 /// The headless `plan` command.
 mod cli_plan;
+/// `plan --fold semifold:...` and `--augment separate:...`, and the window's same runs.
+mod cli_plan_follow;
 /// Published fractional designs: generators, defining relations, resolution, word-length patterns.
 mod design_tables;
 /// Desirability: Derringer & Suich's worked example and scipy's optimiser on the same problems.
 mod desirability_fixtures;
 /// Published worked examples: effects, Lenth's method, half-normal positions.
 mod effects_examples;
+/// Semifolds and runs added to separate interactions against numpy (brute force included).
+mod followup_fixtures;
 /// Published minimum-aberration word-length patterns reproduced by the search.
 mod min_aberration;
 /// One report behind the window, the summary page and `analyze`; the default model choice.

@@ -554,6 +554,12 @@ fn a_project_analysis_lists_the_follow_up_runs_with_the_suggested_first() {
             "fold_C",
             "fold_D",
             "fold_E",
+            "semifold_full_A+",
+            "semifold_A_B+",
+            "semifold_B_A+",
+            "semifold_C_A+",
+            "semifold_D_A+",
+            "semifold_E_A+",
             "centre_points",
             "replicate"
         ]

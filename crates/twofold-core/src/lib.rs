@@ -14,6 +14,7 @@ pub mod term;
 
 // Planning.
 pub mod alias;
+pub mod augment;
 pub mod blocking;
 pub mod composite;
 pub mod design;
@@ -23,6 +24,7 @@ pub mod plan;
 pub mod power;
 pub mod screening;
 pub mod search;
+pub mod semifold;
 pub mod splitplot;
 
 // Analysis.
@@ -32,6 +34,7 @@ pub mod columns;
 pub mod data;
 pub mod diagnostics;
 pub mod effects;
+pub mod estimability;
 pub mod halfnormal;
 pub mod lenth;
 pub mod means;

@@ -163,6 +163,25 @@ pub fn build_fold_over_plan(spec: &PlanSpec, fold: &FoldOver) -> Result<Plan, Pl
     })
 }
 
+/// Builds the plan of a fraction and a follow-up block that is not a regular fraction (half a
+/// fold-over, runs chosen to separate interactions): laid out as [`build_fold_over_plan`] lays
+/// out a fold-over, the fraction's runs block 1 and `added` block 2. The returned plan's design
+/// is the original fraction, since the combined runs are not one.
+pub fn build_added_block_plan(spec: &PlanSpec, added: &[Vec<i8>]) -> Result<Plan, PlanError> {
+    if spec.blocking != Blocking::None || spec.replicates_as_blocks {
+        return Err(PlanError::FoldWithBlocks);
+    }
+    let scheme = scheme_from_generators(&spec.design, &[])?;
+    let halves = [spec.design.coded_runs(), added.to_vec()];
+    let (runs, block_count) = lay_out(spec, &halves, &scheme)?;
+    Ok(Plan {
+        design: spec.design.clone(),
+        scheme,
+        block_count,
+        runs,
+    })
+}
+
 /// Lays out one or more sets of base rows (each set its own group of blocks): replicates,
 /// blocks, centre points, standard order, then randomisation within blocks.
 fn lay_out(

@@ -129,3 +129,78 @@ fn the_buttons_are_reached_with_tab_and_pressed_with_enter() {
     assert_eq!(h.state().step(), Step::Runs);
     assert!(h.get_by_label("next run Yield").is_focused());
 }
+
+fn tall_harness(app: TwofoldApp) -> Harness<'static, TwofoldApp> {
+    Harness::builder()
+        .with_size([1500.0, 4000.0])
+        .build_ui_state(|ui, app: &mut TwofoldApp| app.ui_in(ui), app)
+}
+
+#[test]
+fn the_semifold_button_adds_half_the_fold_over_as_block_two() {
+    use twofold_core::semifold::SemiFold;
+    use twofold_study::project::AddedBlock;
+    let before = screened();
+    let list = next_runs(&before, None);
+    let spec = SemiFold::with_default_half(FoldKind::Factor(0));
+    let Some(half) = list
+        .iter()
+        .find(|o| o.follow_up == FollowUp::SemiFold(spec))
+    else {
+        panic!("a semifold on A is offered");
+    };
+    let label = add_button_name(half);
+    let mut h = tall_harness(TwofoldApp::new_for_test(before.clone()));
+    h.state_mut().set_step(Step::NextRuns);
+    h.run();
+    h.get_by_label(&label).click();
+    h.run();
+    h.run();
+    let after = h.state().project().clone();
+    assert_eq!(h.state().step(), Step::Runs);
+    assert_eq!(after.runs.iter().filter(|r| r.block == 2).count(), 4);
+    assert_eq!(after.design.added, Some(AddedBlock::Semifold(spec)));
+    assert_sheet_kept(&before, &after);
+}
+
+#[test]
+fn typing_interactions_offers_runs_that_separate_them() {
+    use twofold_app::panels::next_runs::SEPARATE_FIELD;
+    use twofold_study::project::AddedBlock;
+    use twofold_study::report::separate_option;
+    let before = screened();
+    // A = BD here (D = AB): naming BD asks for runs that tell it from A.
+    // The pane passes the shown report: its model's interactions are kept estimable too.
+    let report = twofold_study::report::Report::for_response(&before, 0, 0);
+    let option = match separate_option(&before, "BD", Some(&report)) {
+        Ok(o) => o,
+        Err(e) => panic!("BD can be separated: {e}"),
+    };
+    assert_eq!(option.runs_added(), 2);
+    let label = add_button_name(&option);
+    let mut h = tall_harness(TwofoldApp::new_for_test(before.clone()));
+    h.state_mut().set_step(Step::NextRuns);
+    h.run();
+    assert!(
+        h.query_by_label(&label).is_none(),
+        "nothing typed, no option"
+    );
+    h.get_by_label(SEPARATE_FIELD).click();
+    h.run();
+    h.get_by_label(SEPARATE_FIELD).type_text("BD");
+    h.run();
+    h.run();
+    h.get_by_label(&label).click();
+    h.run();
+    h.run();
+    let after = h.state().project().clone();
+    assert_eq!(after.runs.iter().filter(|r| r.block == 2).count(), 2);
+    assert!(matches!(
+        after.design.added,
+        Some(AddedBlock::Separate { ref interactions, .. }) if interactions == &["BD"]
+    ));
+    assert_sheet_kept(&before, &after);
+    h.state_mut().undo();
+    h.run();
+    assert_eq!(h.state().project(), &before, "one undo step");
+}

@@ -235,6 +235,8 @@ fn design_facts(project: &Project, warnings: &mut Vec<String>) -> DesignFacts {
         seed: d.randomize.then_some(d.seed),
         detectable: None,
         screening_runs: d.screening_runs(),
+        follow_up: crate::report::next_runs_added::follow_up_facts(project),
+        irregular: d.added.is_some(),
     };
     if let Some(n) = facts.screening_runs {
         warnings.push(format!(
@@ -242,7 +244,7 @@ fn design_facts(project: &Project, warnings: &mut Vec<String>) -> DesignFacts {
         ));
         return facts;
     }
-    if k == 0 || generators.is_empty() {
+    if k == 0 || generators.is_empty() || facts.irregular {
         return facts;
     }
     let Ok(design) = FractionalDesign::from_text(

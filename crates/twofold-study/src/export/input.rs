@@ -155,6 +155,13 @@ pub struct DesignFacts {
     /// when a process standard deviation was given.
     #[serde(default)]
     pub detectable: Option<String>,
+    /// The follow-up block, in words (a fold-over, half of one, or runs added to separate
+    /// interactions, with what the combined runs estimate); `None` without one.
+    #[serde(default)]
+    pub follow_up: Option<String>,
+    /// Whether the follow-up block makes the runs an irregular design (no alias chains apply).
+    #[serde(default)]
+    pub irregular: bool,
 }
 
 /// One effect.

@@ -247,6 +247,11 @@ impl Project {
                     Some(FoldKind::Factor(f)) if f > index => Some(FoldKind::Factor(f - 1)),
                     other => other,
                 };
+                self.design.added = self
+                    .design
+                    .added
+                    .take()
+                    .and_then(|b| b.factor_removed(index));
                 // Letters after the removed factor shift down by one; terms using it are dropped.
                 self.remap_terms(|i| match i.cmp(&index) {
                     std::cmp::Ordering::Less => Some(i),
@@ -283,6 +288,7 @@ impl Project {
                     if let Some(FoldKind::Factor(f)) = self.design.fold {
                         self.design.fold = Some(FoldKind::Factor(moved(f)));
                     }
+                    self.design.added = self.design.added.take().map(|b| b.factor_moved(moved));
                 }
             }
             Edit::SetFactorUnit { index, unit } => self.factor_mut(index)?.unit = unit,

@@ -31,10 +31,15 @@ use twofold_core::foldover::{FoldKind, fold_over};
 pub const CENTRE_POINTS_ADDED: u32 = 4;
 
 /// A follow-up the engineer can add to the run sheet.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[derive(Debug, Clone, PartialEq, Eq)]
 pub enum FollowUp {
     /// A fold-over of the fraction, as a second block.
     FoldOver(FoldKind),
+    /// Half of a fold-over's runs, as a second block (see [`super::added_block`]).
+    SemiFold(twofold_core::semifold::SemiFold),
+    /// Runs chosen to separate these two-factor interactions, as a second block (see
+    /// [`super::added_block`]).
+    Separate(Vec<twofold_core::term::Term>),
     /// [`CENTRE_POINTS_ADDED`] centre points in every block (the design has none).
     CentrePoints,
     /// One more complete replicate.
@@ -56,8 +61,10 @@ pub enum FollowUpError {
         "the run sheet is out of date with the factors or the design: regenerate it on the design step first"
     )]
     Outdated,
-    /// A fold-over is already in the sheet.
-    #[error("the run sheet already holds a fold-over; a second one is not offered")]
+    /// A fold-over (or another follow-up block) is already in the sheet.
+    #[error(
+        "the run sheet already holds a fold-over or added runs in block 2; a second one is not offered"
+    )]
     AlreadyFolded,
     /// The fold switches the sign of no defining word.
     #[error("this fold switches no defining word, so its runs would only repeat the fraction")]
@@ -135,7 +142,13 @@ impl Project {
             return Err(FollowUpError::AlreadyAxial);
         }
         let screening = d.screening_runs().is_some();
+        if d.added.is_some() && matches!(follow_up, FollowUp::FoldOver(_)) {
+            return Err(FollowUpError::AlreadyFolded);
+        }
         match follow_up {
+            FollowUp::SemiFold(_) | FollowUp::Separate(_) => {
+                d.added = Some(super::added_block::block_for(self, &d, &follow_up)?);
+            }
             FollowUp::FoldOver(kind) if screening => {
                 if d.fold.is_some() {
                     return Err(FollowUpError::AlreadyFolded);

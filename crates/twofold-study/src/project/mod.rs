@@ -14,6 +14,7 @@
 //! - [`follow_up`]: follow-up runs (fold-over, centre points, a replicate) added as one edit.
 //! - [`axial`]: axial runs, the follow-up that makes a central composite design.
 
+pub mod added_block;
 pub mod axial;
 pub mod cell;
 pub mod demo;
@@ -30,6 +31,7 @@ pub mod recovery;
 pub mod regenerate;
 pub mod validate;
 
+pub use added_block::{AddedBlock, parse_interactions};
 pub use axial::{AXIAL_CENTRE_POINTS_MIN, AxialRuns, axial_centre_points};
 pub use cell::{Cell, CellValue};
 pub use demo::demo_project;

@@ -205,6 +205,11 @@ pub struct DesignSettings {
     /// [`super::axial`]): the last block. `None` in files written before axial runs existed.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub axial: Option<super::axial::AxialRuns>,
+    /// A follow-up block that is not a regular fraction (half a fold-over, or runs chosen to
+    /// separate interactions): block 2 after the fraction's runs. `None` in files written
+    /// before it existed.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub added: Option<super::added_block::AddedBlock>,
 }
 
 fn default_true() -> bool {
@@ -235,6 +240,7 @@ impl Default for DesignSettings {
             seed: 1,
             fold: None,
             axial: None,
+            added: None,
         }
     }
 }

@@ -147,9 +147,12 @@ pub(crate) fn plan_runs(
     };
     // With a fold-over the fraction's runs are block 1 and the folded runs block 2, laid out by
     // the same function `twofold plan --fold` uses, so both give the same sheet for one seed.
-    let plan = match design.fold {
-        None => build_plan(&spec)?,
-        Some(kind) => build_fold_over_plan(&spec, &fold_over(&spec.design, kind)?)?,
+    let plan = match (design.fold, &design.added) {
+        (Some(kind), _) => build_fold_over_plan(&spec, &fold_over(&spec.design, kind)?)?,
+        (None, Some(block)) => {
+            twofold_core::plan::build_added_block_plan(&spec, &block.runs(&spec.design)?)?
+        }
+        (None, None) => build_plan(&spec)?,
     };
     let planned = super::axial::with_axial_block(k, design, plan.runs)?;
     let out = records(project, design, planned)?;

@@ -206,6 +206,11 @@ impl Project {
         for message in super::axial::axial_problems(self) {
             push(Severity::Error, Field::Design, message);
         }
+        if let Some(block) = &self.design.added {
+            for message in super::added_block::added_block_problems(self, block) {
+                push(Severity::Error, Field::Design, message);
+            }
+        }
         if self.design.replicates == 0 {
             push(
                 Severity::Error,

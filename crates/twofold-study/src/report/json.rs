@@ -219,7 +219,8 @@ fn add_strata(obj: &mut Value, strata: &super::Strata) {
 }
 
 /// The follow-up options as the `follow_up` array of `twofold analyze --json`, suggested first:
-/// `kind` (`fold_full`, `fold_A`, ..., `centre_points`, `replicate`, `axial`), `title`, `runs_added`,
+/// `kind` (`fold_full`, `fold_A`, ..., `semifold_A_B+` (half the fold-over on A: the runs with B
+/// at +), ..., `separate`, `centre_points`, `replicate`, `axial`), `title`, `runs_added`,
 /// `resolves` (sentences), `resolution_after` (fold-overs; null otherwise or for a full
 /// factorial), `suggested`, `reason` (null unless suggested) and `unavailable` (why it cannot be
 /// added, or null).

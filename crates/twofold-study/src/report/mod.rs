@@ -39,6 +39,7 @@ pub mod decision;
 pub mod decision_out;
 pub mod json;
 pub mod next_runs;
+pub mod next_runs_added;
 pub mod quadratic;
 pub mod text;
 
@@ -69,6 +70,7 @@ pub use data::{
 };
 pub use decision::{Choice, DecideOptions, Decision, ResponseOutcome, Setting, decide};
 pub use next_runs::{NextRun, next_runs};
+pub use next_runs_added::separate_option;
 pub use quadratic::QuadraticReport;
 
 /// Why (part of) a report could not be made.

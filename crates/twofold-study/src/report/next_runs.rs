@@ -7,6 +7,8 @@
 //!   two-factor interactions; two-factor interactions stay aliased with each other.
 //! - **Fold-over on one factor** (its signs switched): the words holding that factor drop out,
 //!   so its main effect and all its two-factor interactions are freed.
+//! - **Semifold** on one factor or in full (half of the fold-over's runs, Mee & Peralta 2000;
+//!   see [`super::next_runs_added`]).
 //! - **Centre points** (when there are none): a curvature check and pure error.
 //! - **A replicate**: pure error on one degree of freedom per distinct run.
 //! - **Axial runs** (a regular design of numeric factors): a face-centred central composite
@@ -64,7 +66,8 @@ impl NextRun {
         self.preview.as_ref().map_or(0, FollowUpPreview::runs_added)
     }
 
-    /// A short key: `fold_full`, `fold_A`, `centre_points`, `replicate`, `axial`.
+    /// A short key: `fold_full`, `fold_A`, `semifold_A_B+`, `separate`, `centre_points`,
+    /// `replicate`, `axial`.
     pub fn key(&self) -> String {
         match self.follow_up {
             FollowUp::FoldOver(FoldKind::Full) => "fold_full".into(),
@@ -72,6 +75,7 @@ impl NextRun {
             FollowUp::CentrePoints => "centre_points".into(),
             FollowUp::Replicate => "replicate".into(),
             FollowUp::Axial => "axial".into(),
+            ref other => super::next_runs_added::key(other).unwrap_or_default(),
         }
     }
 }
@@ -148,7 +152,7 @@ fn ambiguous_chains(aliases: &AliasReport) -> Vec<Vec<Term>> {
 }
 
 /// Effects the report treats as active (see the module documentation).
-fn active_terms(report: &Report) -> Vec<Term> {
+pub(crate) fn active_terms(report: &Report) -> Vec<Term> {
     let Ok(choice) = &report.choice else {
         return Vec::new();
     };
@@ -286,6 +290,7 @@ pub fn next_runs(project: &Project, report: Option<&Report>) -> Vec<NextRun> {
     if let Some((fraction, now)) = &current
         && !fraction.is_full()
         && project.design.fold.is_none()
+        && project.design.added.is_none()
     {
         let k = project.factors.len();
         let kinds = std::iter::once(FoldKind::Full).chain((0..k).map(FoldKind::Factor));
@@ -326,6 +331,10 @@ pub fn next_runs(project: &Project, report: Option<&Report>) -> Vec<NextRun> {
                     reason: None,
                 },
             ));
+        }
+        if project.design.screening_runs().is_none() {
+            let halves = super::next_runs_added::semifold_options(project, fraction);
+            out.extend(halves.into_iter().map(|n| (0, Vec::new(), n)));
         }
     }
     if let Some(n) = project.design.screening_runs()
@@ -533,9 +542,10 @@ mod tests {
             "{:?}",
             on_a.resolves
         );
-        // Every factor is in a defining word, so there is a fold per factor, then centre points
-        // and a replicate.
-        assert_eq!(list.len(), 1 + 7 + 2);
+        // Every factor is in a defining word, so there is a fold per factor, the same eight
+        // folds halved (semifolds), then centre points and a replicate.
+        assert_eq!(list.len(), 1 + 7 + 8 + 2);
+        assert_eq!(find(&list, "semifold_A_B+").runs_added(), 4);
         assert_eq!(find(&list, "centre_points").runs_added(), 4);
         assert_eq!(find(&list, "replicate").runs_added(), 8);
     }

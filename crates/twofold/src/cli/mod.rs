@@ -15,6 +15,7 @@ pub mod best;
 pub mod export;
 pub mod plan;
 mod plan_axial;
+mod plan_follow;
 mod plan_power;
 mod plan_require;
 mod plan_screening;

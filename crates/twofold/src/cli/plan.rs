@@ -3,8 +3,8 @@
 //! ```text
 //! twofold plan --factors 5 --runs 16 [--generators "E=ABCD"] [--centre-points 3]
 //!              [--replicates 2] [--blocks 2 | --block-on "ABC,ACD"] [--replicates-as-blocks]
-//!              [--seed 42] [--standard-order] [--fold full|A] [--augment axial]
-//!              [--search-seconds 2]
+//!              [--seed 42] [--standard-order] [--fold full|A|semifold:A[:B+]]
+//!              [--augment axial|"separate:AB,CE"] [--search-seconds 2]
 //!              [--json | --csv]
 //! ```
 
@@ -32,7 +32,15 @@ Choose a two-level design, show what it confounds, and print the run sheet in ra
 Without --runs the design is the full factorial. With --runs and no --generators, the fraction
 of least aberration is searched for and the output says whether the search proved it best. The
 report lists the generators, the defining relation, the word-length pattern, the aliases up to
-three-factor terms and the effects left clear.";
+three-factor terms and the effects left clear.
+
+Follow-up blocks: --fold full or --fold A adds the fold-over as block 2. --fold semifold:A adds
+half of the fold-over on A (Mee & Peralta 2000): the fold-over runs with the first factor other
+than A at +, or with the factor and level named, as in semifold:A:C- (semifold:full halves the
+full fold-over, A at + by default). --augment \"separate:AB,CE\" adds the fewest runs, chosen from
+the full factorial (up to 16 factors), that estimate every main effect and the named
+interactions together, D-optimal for that model. Both say which terms the combined runs
+estimate, with each one's variance inflation, since those runs are not a regular fraction.";
 
 /// The examples shown by `--help`.
 pub(crate) const AFTER_HELP: &str = "\
@@ -40,7 +48,9 @@ Examples:
   twofold plan --factors 5 --runs 16 --json
   twofold plan --factors \"Temp,Time,Speed,Load\" --centre-points 3 --replicates 2 --blocks 2 --seed 42
   twofold plan --factors 7 --runs 8 --generators \"D=AB,E=AC,F=BC,G=ABC\" --fold full
-  twofold plan --factors \"Temp,Time,Feed\" --centre-points 3 --augment axial --json";
+  twofold plan --factors \"Temp,Time,Feed\" --centre-points 3 --augment axial --json
+  twofold plan --factors 6 --runs 16 --generators \"E=ABC,F=BCD\" --fold semifold:A:B+ --json
+  twofold plan --factors 6 --runs 16 --generators \"E=ABC,F=BCD\" --augment \"separate:AE,BC\"";
 
 /// The options of `twofold plan`, as typed.
 #[derive(Debug, Clone, Default, clap::Args)]
@@ -84,14 +94,18 @@ pub struct PlanArgs {
     /// run size allows, at most one per setting of the hard-to-change factors]
     #[arg(long = "whole-plots", value_name = "W", value_parser = whole_number::<usize>)]
     pub whole_plots: Option<usize>,
-    /// Add the fold-over: `full` (all signs reversed) or one factor letter (that factor reversed)
-    #[arg(long, value_name = "full|A")]
+    /// Add the fold-over: `full` (all signs reversed) or one factor letter (that factor
+    /// reversed); `semifold:A` adds half of it, the fold-over runs with the first other factor at
+    /// + (`semifold:A:C-` names the factor and level, `semifold:full` halves the full fold-over)
+    #[arg(long, value_name = "full|A|semifold:A[:B+]")]
     pub fold: Option<String>,
     /// Add follow-up runs as the last block: `axial` adds 2k axial runs (each factor at its low
     /// and high, the others at the centre: face-centred, alpha = 1) and centre runs, a central
-    /// composite design for the quadratic model; the rotatable and orthogonal-blocking alphas
-    /// are printed
-    #[arg(long, value_name = "axial")]
+    /// composite design for the quadratic model (the rotatable and orthogonal-blocking alphas
+    /// are printed); "separate:AB,CE" adds the fewest runs that estimate every main effect and
+    /// the named two-factor interactions together (D-optimal, from the full factorial, up to 16
+    /// factors; block 2)
+    #[arg(long, value_name = "axial|separate:LIST")]
     pub augment: Option<String>,
     /// Time allowed for the design search, in seconds (more than 0, at most 3600) [default: 2]
     #[arg(long = "search-seconds", value_name = "S")]
@@ -143,6 +157,7 @@ struct Planned {
     plan: Plan,
     seed: u64,
     fold: Option<FoldOver>,
+    follow: Option<super::plan_follow::FollowPlan>,
     split: Option<super::plan_split::SplitPlot>,
     centre_points: usize,
     replicates: usize,
@@ -154,10 +169,15 @@ struct Planned {
 /// Runs `twofold plan`.
 pub fn run(args: &PlanArgs, out: &mut dyn Write, err: &mut dyn Write) -> i32 {
     if super::plan_screening::is_screening(args) {
-        if args.augment.is_some() {
+        if args.augment.is_some()
+            || args
+                .fold
+                .as_deref()
+                .is_some_and(super::plan_follow::is_semifold)
+        {
             let _ = writeln!(
                 err,
-                "error: --augment axial builds on a regular two-level design, not on a screening design"
+                "error: a screening design is followed up by its full fold-over only (--fold full)"
             );
             return EXIT_BAD_INPUT;
         }
@@ -312,23 +332,30 @@ fn compute(a: &PlanArgs) -> Result<Planned, PlanInputError> {
     spec.blocking = blocking;
     spec.replicates_as_blocks = a.replicates_as_blocks;
     spec.randomise = !a.standard_order;
+    let follow_request = super::plan_follow::parse(a, k).map_err(invalid)?;
     let fold = match a.fold.as_deref() {
+        Some(text) if super::plan_follow::is_semifold(text) => None,
         None => None,
         Some(text) => {
             let kind = parse_fold(text, k)?;
             Some(fold_over(&design, kind).map_err(|e| invalid(e.to_string()))?)
         }
     };
-    let mut plan = match &fold {
-        None => build_plan(&spec),
-        Some(f) => build_fold_over_plan(&spec, f),
-    }
-    .map_err(|e| invalid(e.to_string()))?;
     if a.augment.is_some() && (a.hard_to_change.is_some() || a.sigma.is_some()) {
         return Err(invalid(
-            "--augment axial with --hard-to-change or --sigma is not offered yet",
+            "--augment with --hard-to-change or --sigma is not offered yet",
         ));
     }
+    let mut follow = None;
+    let mut plan = match (&fold, &follow_request) {
+        (Some(f), _) => build_fold_over_plan(&spec, f).map_err(|e| invalid(e.to_string()))?,
+        (None, Some(r)) => {
+            let (plan, f) = super::plan_follow::plan(r, &spec).map_err(invalid)?;
+            follow = Some(f);
+            plan
+        }
+        (None, None) => build_plan(&spec).map_err(|e| invalid(e.to_string()))?,
+    };
     let axial = super::plan_axial::augment(
         a.augment.as_deref(),
         &mut plan,
@@ -364,6 +391,7 @@ fn compute(a: &PlanArgs) -> Result<Planned, PlanInputError> {
         plan,
         seed,
         fold,
+        follow,
         split,
         centre_points,
         replicates,
@@ -491,6 +519,9 @@ fn to_json(p: &Planned) -> Value {
     plan_require::add_json(&mut plan, &p.required, &p.report);
     if let Some(axial) = &p.axial {
         axial.add_json(&mut plan);
+    }
+    if let Some(f) = &p.follow {
+        f.add_json(&mut plan);
     }
     plan
 }
@@ -671,6 +702,11 @@ fn write_text(p: &Planned, out: &mut dyn Write) -> std::io::Result<()> {
     }
     if let Some(s) = &p.split {
         writeln!(out, "{}", s.text())?;
+    }
+    if let Some(f) = &p.follow {
+        for line in f.text_lines() {
+            writeln!(out, "{line}")?;
+        }
     }
     writeln!(out, "Seed: {}", p.seed)?;
     writeln!(out)?;

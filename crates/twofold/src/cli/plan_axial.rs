@@ -33,7 +33,8 @@ pub(crate) fn augment(
         return Ok(None);
     };
     if !text.trim().eq_ignore_ascii_case("axial") {
-        return Err(format!("--augment `{}`: expected `axial`", text.trim()));
+        // `separate:...` is `plan_follow`'s (which refuses anything else first).
+        return Ok(None);
     }
     let k = plan.design.factor_count();
     let factorial_runs = plan.runs.iter().filter(|r| !r.centre).count();

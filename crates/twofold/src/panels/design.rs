@@ -184,6 +184,7 @@ impl Pane for DesignPane {
                 let total = summary(ui, &draft, k, project, &pal);
                 fold_row(ui, &mut draft);
                 axial::axial_row(ui, &mut draft, k);
+                added_row(ui, &mut draft);
                 split_row(self, ui, view, &draft, k);
                 ui.add_space(4.0);
                 let unchanged =
@@ -229,7 +230,7 @@ fn has_design_errors(project: &Project, draft: &DesignSettings) -> bool {
         };
     (draft.centre_points_per_block > 0 && project.factors.iter().any(|f| !f.is_numeric()))
         || draft.replicates == 0
-        || (draft.fold.is_some() && blocked)
+        || ((draft.fold.is_some() || draft.added.is_some()) && blocked)
 }
 
 /// With hard-to-change factors: how many whole plots (resets) the plan needs, against a
@@ -309,6 +310,24 @@ fn fold_row(ui: &mut Ui, draft: &mut DesignSettings) {
     });
 }
 
+/// The added block (half a fold-over, or runs chosen to separate interactions) added on the
+/// "What to run next" step, if any, with a way to leave it out.
+fn added_row(ui: &mut Ui, draft: &mut DesignSettings) {
+    let Some(block) = &draft.added else {
+        return;
+    };
+    let text = format!(
+        "Follow-up: {} runs as block 2 (the combined runs are not a regular fraction; they cannot be combined with other blocking).",
+        block.describe()
+    );
+    ui.horizontal_wrapped(|ui| {
+        ui.label(text);
+        if ui.button("Leave out the added runs").clicked() {
+            draft.added = None;
+        }
+    });
+}
+
 fn options_table(
     pane: &mut DesignPane,
     ui: &mut Ui,
@@ -361,8 +380,9 @@ fn options_table(
                 let resp = resp.accessible_name(pick_label(o.runs));
                 if resp.clicked() {
                     if draft.generators != gens {
-                        // A fold-over belongs to the fraction it folds.
+                        // A fold-over (or an added block) belongs to the fraction it follows.
                         draft.fold = None;
+                        draft.added = None;
                     }
                     draft.generators = gens.clone();
                     draft.base_runs = if o.generators.is_empty() {
@@ -441,6 +461,7 @@ fn generators_row(
                 let labels: Vec<String> = gens.iter().map(Generator::to_string).collect();
                 if draft.generators != labels {
                     draft.fold = None;
+                    draft.added = None;
                 }
                 draft.generators = labels;
                 draft.base_runs = if gens.is_empty() {

@@ -1,5 +1,6 @@
-//! What to run next: the follow-up runs the project can add (fold-overs, centre points, a
-//! replicate), each with the runs it adds and what it resolves, the one the analysis points to
+//! What to run next: the follow-up runs the project can add (fold-overs and semifolds, centre
+//! points, a replicate, and runs chosen to separate the interactions typed in the field at the
+//! top), each with the runs it adds and what it resolves, the one the analysis points to
 //! first with its reason. A button per option pushes the edit that adds the runs (one undo
 //! step) and goes to the run sheet, where the entry field of the next run takes the keyboard.
 //!
@@ -9,20 +10,30 @@
 use egui::{RichText, Ui};
 
 use super::run_sheet::card_entry_id;
-use super::widgets::{not_available, tag};
+use super::widgets::{not_available, tag, text_field};
 use super::{Command, Pane, Step, View};
 use twofold_core::foldover::FoldKind;
 use twofold_core::term::LETTERS;
 use twofold_study::project::Edit;
-use twofold_study::report::{NextRun, next_runs};
+use twofold_study::report::{NextRun, next_runs, separate_option};
 
 /// What the options were built from: project revision, shown response, revision of its report.
 type BuiltFor = (u64, Option<usize>, Option<u64>);
 
-/// View state of the pane: the options built once per data revision and analysis.
+/// Accessible name of the field of interactions to separate.
+pub const SEPARATE_FIELD: &str = "interactions to separate";
+
+/// What the option of runs to separate interactions was built from: project revision, revision
+/// of the shown response's report, text.
+type SeparateFor = (u64, Option<u64>, String);
+
+/// View state of the pane: the options built once per data revision and analysis, and the
+/// option of runs to separate the interactions typed (built once per revision and text).
 #[derive(Debug, Default)]
 pub struct NextRunsPane {
     built: Option<(BuiltFor, Vec<NextRun>)>,
+    separate_text: String,
+    separate: Option<(SeparateFor, Result<NextRun, String>)>,
 }
 
 /// Name of the button that adds an option's runs, e.g. `Add 8 runs: Full fold-over`.
@@ -32,7 +43,11 @@ pub fn add_button_name(option: &NextRun) -> String {
 
 impl Pane for NextRunsPane {
     fn ui(&mut self, ui: &mut Ui, view: &View<'_>, out: &mut Vec<Command>) {
-        let Self { built } = self;
+        let Self {
+            built,
+            separate_text,
+            separate,
+        } = self;
         let pal = view.pal;
         let project = view.project;
         if project.runs.is_empty() {
@@ -66,6 +81,9 @@ impl Pane for NextRunsPane {
             }
             None => {}
         }
+        if let Some(block) = &project.design.added {
+            ui.label(format!("Block 2 of the sheet holds {}.", block.describe()));
+        }
         match view.results {
             Some(res) if options.iter().any(|o| o.suggested) => {
                 ui.label(
@@ -98,6 +116,8 @@ impl Pane for NextRunsPane {
         egui::ScrollArea::vertical()
             .auto_shrink([false, false])
             .show(ui, |ui| {
+                separate_row(ui, view, separate_text, separate, out);
+                ui.add_space(6.0);
                 for option in options {
                     option_card(ui, view, option, out);
                     ui.add_space(6.0);
@@ -152,7 +172,7 @@ fn option_card(ui: &mut Ui, view: &View<'_>, option: &NextRun, out: &mut Vec<Com
                 }
                 let button = egui::Button::new(add_button_name(option));
                 if ui.add(button).clicked() {
-                    out.push(Command::Edit(Edit::AddFollowUp(option.follow_up)));
+                    out.push(Command::Edit(Edit::AddFollowUp(option.follow_up.clone())));
                     out.push(Command::Goto(Step::Runs));
                     // The button is gone on the run sheet: the next run's first entry field
                     // takes the keyboard (a request made now holds until that field is drawn).
@@ -166,4 +186,50 @@ fn option_card(ui: &mut Ui, view: &View<'_>, option: &NextRun, out: &mut Vec<Com
             }
         }
     });
+}
+
+/// The field of interactions to separate and, once something is typed, the option of runs
+/// chosen to separate them (D-optimal augmentation, built by the engine).
+fn separate_row(
+    ui: &mut Ui,
+    view: &View<'_>,
+    text: &mut String,
+    built: &mut Option<(SeparateFor, Result<NextRun, String>)>,
+    out: &mut Vec<Command>,
+) {
+    let id = ui.scope_id().with("separate_interactions");
+    ui.horizontal(|ui| {
+        ui.label("Interactions to separate");
+        if let Some(t) = text_field(ui, id, text, 160.0, "e.g. AB, CE") {
+            *text = t;
+        }
+        if let Some(r) = ui.ctx().read_response(id) {
+            let _ = r.accessible_name(SEPARATE_FIELD);
+        }
+    });
+    let typed = text.trim().to_string();
+    if typed.is_empty() {
+        ui.label(
+            RichText::new(
+                "Name two-factor interactions, e.g. AB, CE, to see the fewest added runs that estimate them beside every main effect.",
+            )
+            .color(view.pal.muted),
+        );
+        return;
+    }
+    let key: SeparateFor = (
+        view.revision,
+        view.results.map(|r| r.revision),
+        typed.clone(),
+    );
+    if built.as_ref().is_none_or(|(k, _)| *k != key) {
+        *built = Some((key, separate_option(view.project, &typed, view.results)));
+    }
+    match built.as_ref().map(|(_, r)| r) {
+        Some(Ok(option)) => option_card(ui, view, option, out),
+        Some(Err(why)) => {
+            ui.label(RichText::new(why).color(view.pal.warn));
+        }
+        None => {}
+    }
 }

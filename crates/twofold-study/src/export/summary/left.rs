@@ -150,6 +150,19 @@ fn design(svg: &mut Svg, flow: &mut Flow, input: &SummaryInput, more: &mut More)
     if let Some(t) = &d.detectable {
         flow.fact(svg, "Power", t, LABEL_W, 4);
     }
+    if let Some(t) = &d.follow_up {
+        flow.fact(svg, "Follow-up", t, LABEL_W, 8);
+    }
+    if d.irregular {
+        flow.fact(
+            svg,
+            "Aliases",
+            "with block 2 the runs are not a regular fraction, so no alias chains apply: what they estimate is under Follow-up",
+            LABEL_W,
+            3,
+        );
+        return;
+    }
     alias_chains(svg, flow, d, more);
 }
 

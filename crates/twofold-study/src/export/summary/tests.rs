@@ -141,6 +141,8 @@ fn crowded() -> SummaryInput {
             tangled_chains: 27,
             seed: Some(42),
             screening_runs: None,
+            follow_up: None,
+            irregular: false,
             detectable: Some(
                 "an effect of 3.79 is found with probability 0.8 (σ = 2.5, two-sided test at α = 0.05, 13 error df, main-effects model); an effect of 2 needs 4 replicates".into(),
             ),

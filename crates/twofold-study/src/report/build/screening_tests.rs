@@ -79,7 +79,7 @@ fn the_fold_over_is_offered_and_clears_the_main_effects() {
         .unwrap_or_else(|| panic!("a full fold-over is offered: {options:?}"));
     assert_eq!(fold.runs_added(), 12);
     let mut q = p.clone();
-    if let Err(e) = q.apply(Edit::AddFollowUp(fold.follow_up)) {
+    if let Err(e) = q.apply(Edit::AddFollowUp(fold.follow_up.clone())) {
         panic!("{e}");
     }
     assert_eq!(q.runs.len(), 24);

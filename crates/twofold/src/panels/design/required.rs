@@ -139,6 +139,7 @@ pub(super) fn row(
                     u32::try_from(o.runs()).ok()
                 };
                 draft.fold = None;
+                draft.added = None;
                 pane.generator_text = gens.join(", ");
                 pane.focus_make = true;
             }

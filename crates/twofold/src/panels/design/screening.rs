@@ -95,6 +95,7 @@ fn row(
         draft.generators.clear();
         draft.base_runs = u32::try_from(n).ok();
         draft.fold = None;
+        draft.added = None;
         pane.generator_text.clear();
         pane.focus_make = true;
     }
