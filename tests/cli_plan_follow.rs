@@ -169,7 +169,7 @@ fn bad_follow_up_requests_fail_with_one_line() {
     let cases: [(&[&str], &str); 5] = [
         (&["--fold", "semifold:Z"], "expected semifold:A"),
         (&["--fold", "semifold:A:A+"], "other than the folded one"),
-        (&["--augment", "AB"], "expected `separate:`"),
+        (&["--augment", "AB"], "expected `axial`, or `separate:`"),
         (
             &["--augment", "separate:ABC"],
             "not a two-factor interaction",
