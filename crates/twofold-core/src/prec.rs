@@ -11,6 +11,13 @@ pub const LIBRARY_REL: f64 = 1e-8;
 /// the largest one.
 pub const RANK_REL: f64 = 1e-9;
 
+/// The same judgement made on cross products (the transform route of the fit): a column is
+/// dependent when its squared distance from the columns before it is below this fraction of its
+/// squared length (the square of a distance ratio of 1e-5; common practice, no source: cross
+/// products of ±1 columns are integers, and a genuine distance is at least of the order of one run
+/// in the whole table).
+pub const GRAM_RANK_REL: f64 = 1e-10;
+
 /// Whether `a` and `b` agree to relative tolerance `rel` (with an absolute floor of `rel` near 0).
 pub fn close_rel(a: f64, b: f64, rel: f64) -> bool {
     let scale = a.abs().max(b.abs()).max(1.0);

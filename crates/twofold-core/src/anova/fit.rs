@@ -10,6 +10,111 @@ use std::collections::{BTreeMap, BTreeSet};
 
 use super::*;
 
+/// The values of column `c` on the used runs.
+fn column_values(
+    c: Column,
+    runs: &[usize],
+    levels: &[Vec<f64>],
+    block_of: &[u32],
+    labels: &[u32],
+    centre: &[bool],
+) -> Vec<f64> {
+    let last = labels.last().copied();
+    match c {
+        Column::Intercept => vec![1.0; runs.len()],
+        Column::Block(lab) => block_of
+            .iter()
+            .map(|&b| {
+                if b == lab {
+                    1.0
+                } else if Some(b) == last {
+                    -1.0
+                } else {
+                    0.0
+                }
+            })
+            .collect(),
+        Column::Term(t) => runs.iter().map(|&r| term_value(&levels[r], t)).collect(),
+        Column::Curvature => centre.iter().map(|&c| if c { 1.0 } else { 0.0 }).collect(),
+    }
+}
+
+/// The dense route: the columns built, a rank check by Gram–Schmidt in order, and the kept
+/// columns solved by Householder QR (see the parent module).
+pub(super) fn dense_solve(
+    kinds: &[Column],
+    runs: &[usize],
+    levels: &[Vec<f64>],
+    block_of: &[u32],
+    labels: &[u32],
+    centre: &[bool],
+    y: &[f64],
+) -> gram::Solved {
+    let n = runs.len();
+    let candidates: Vec<Vec<f64>> = kinds
+        .iter()
+        .map(|&c| column_values(c, runs, levels, block_of, labels, centre))
+        .collect();
+    // Rank check in order: keep a column only if it is not (numerically) a combination of the
+    // columns kept before it.
+    let mut basis: Vec<Vec<f64>> = Vec::new();
+    let mut kept: Vec<usize> = Vec::new();
+    let mut dropped_at: Vec<usize> = Vec::new();
+    for (ci, col) in candidates.iter().enumerate() {
+        let norm0 = col.iter().map(|v| v * v).sum::<f64>().sqrt();
+        let mut v = col.clone();
+        // Two passes of Gram–Schmidt ("twice is enough", Giraud et al. 2005; from memory).
+        for _ in 0..2 {
+            for q in &basis {
+                let d: f64 = q.iter().zip(&v).map(|(a, b)| a * b).sum();
+                for (vi, qi) in v.iter_mut().zip(q) {
+                    *vi -= d * qi;
+                }
+            }
+        }
+        let norm = v.iter().map(|x| x * x).sum::<f64>().sqrt();
+        if norm0 == 0.0 || norm <= RANK_REL * norm0 {
+            dropped_at.push(ci);
+        } else {
+            v.iter_mut().for_each(|x| *x /= norm);
+            basis.push(v);
+            kept.push(ci);
+        }
+    }
+    let p = kept.len();
+    let xk = DMatrix::from_fn(n, p, |i, j| candidates[kept[j]][i]);
+    let dropped = dropped_at
+        .iter()
+        .map(|&ci| {
+            let before: Vec<usize> = kept.iter().copied().filter(|&j| j < ci).collect();
+            let xb = DMatrix::from_fn(n, before.len(), |i, j| candidates[before[j]][i]);
+            let v = DVector::from_column_slice(&candidates[ci]);
+            let coefs = least_squares(&xb, &v).unwrap_or_else(|| DVector::zeros(before.len()));
+            (ci, before.into_iter().zip(coefs.iter().copied()).collect())
+        })
+        .collect();
+    let yv = DVector::from_column_slice(y);
+    let qr = xk.clone().qr();
+    let q = qr.q();
+    let r = qr.r();
+    let qty = q.transpose() * &yv;
+    let b = r
+        .solve_upper_triangular(&qty)
+        .unwrap_or_else(|| DVector::zeros(p));
+    let fitted_v = &xk * &b;
+    let leverage: Vec<f64> = (0..n)
+        .map(|i| (0..p).map(|j| q[(i, j)] * q[(i, j)]).sum())
+        .collect();
+    gram::Solved {
+        kept,
+        dropped,
+        r,
+        qty,
+        fitted: fitted_v.iter().copied().collect(),
+        leverage,
+    }
+}
+
 /// Least-squares coefficients of `v` on the columns of `x` (full column rank), by QR.
 fn least_squares(x: &DMatrix<f64>, v: &DVector<f64>) -> Option<DVector<f64>> {
     if x.ncols() == 0 {
@@ -101,86 +206,47 @@ pub fn fit_model(obs: &Observations, spec: &ModelSpec) -> Result<ModelFit, FitEr
     }
 
     // Candidate columns in fitting order.
-    let mut candidates: Vec<(Column, Vec<f64>)> = Vec::with_capacity(parameters);
-    candidates.push((Column::Intercept, vec![1.0; n]));
-    if let Some((&last, rest)) = labels.split_last() {
-        for &lab in rest {
-            let col = block_of
-                .iter()
-                .map(|&b| {
-                    if b == lab {
-                        1.0
-                    } else if b == last {
-                        -1.0
-                    } else {
-                        0.0
-                    }
-                })
-                .collect();
-            candidates.push((Column::Block(lab), col));
-        }
+    let mut kinds: Vec<Column> = Vec::with_capacity(parameters);
+    kinds.push(Column::Intercept);
+    if let Some((_, rest)) = labels.split_last() {
+        kinds.extend(rest.iter().map(|&lab| Column::Block(lab)));
     }
-    for &t in &terms {
-        let col = runs.iter().map(|&r| term_value(&levels[r], t)).collect();
-        candidates.push((Column::Term(t), col));
-    }
+    kinds.extend(terms.iter().map(|&t| Column::Term(t)));
     if with_curvature {
-        let col = centre.iter().map(|&c| if c { 1.0 } else { 0.0 }).collect();
-        candidates.push((Column::Curvature, col));
+        kinds.push(Column::Curvature);
     }
 
-    // Rank check in order: keep a column only if it is not (numerically) a combination of the
-    // columns kept before it.
-    let mut basis: Vec<Vec<f64>> = Vec::new();
-    let mut kept: Vec<usize> = Vec::new();
-    let mut dropped: Vec<usize> = Vec::new();
-    for (ci, (_, col)) in candidates.iter().enumerate() {
-        let norm0 = col.iter().map(|v| v * v).sum::<f64>().sqrt();
-        let mut v = col.clone();
-        // Two passes of Gram–Schmidt ("twice is enough", Giraud et al. 2005; from memory).
-        for _ in 0..2 {
-            for q in &basis {
-                let d: f64 = q.iter().zip(&v).map(|(a, b)| a * b).sum();
-                for (vi, qi) in v.iter_mut().zip(q) {
-                    *vi -= d * qi;
-                }
-            }
-        }
-        let norm = v.iter().map(|x| x * x).sum::<f64>().sqrt();
-        if norm0 == 0.0 || norm <= RANK_REL * norm0 {
-            dropped.push(ci);
-        } else {
-            v.iter_mut().for_each(|x| *x /= norm);
-            basis.push(v);
-            kept.push(ci);
-        }
-    }
+    // A two-level table (every used run at ±1 or at the centre) is solved from its cross
+    // products by the transform, without building the columns; anything else densely.
+    let block_index: Vec<usize> = block_of
+        .iter()
+        .map(|b| labels.iter().position(|l| l == b).unwrap_or(0))
+        .collect();
+    let rows: Vec<&[f64]> = runs.iter().map(|&r| levels[r].as_slice()).collect();
+    let transform = gram::Transform::new(k, &rows, block_index, labels.len(), &y);
+    let solved = match &transform {
+        Some(t) => t.solve(&kinds, &labels),
+        None => dense_solve(&kinds, &runs, levels, &block_of, &labels, &centre, &y),
+    };
+    let gram::Solved {
+        kept,
+        dropped,
+        r,
+        qty,
+        ..
+    } = solved;
     let p = kept.len();
-    let xk = DMatrix::from_fn(n, p, |i, j| candidates[kept[j]].1[i]);
-
-    let mut unestimable = Vec::new();
-    for &ci in &dropped {
-        let before: Vec<usize> = kept.iter().copied().filter(|&j| j < ci).collect();
-        let xb = DMatrix::from_fn(n, before.len(), |i, j| candidates[before[j]].1[i]);
-        let v = DVector::from_column_slice(&candidates[ci].1);
-        let coefs = least_squares(&xb, &v).unwrap_or_else(|| DVector::zeros(before.len()));
-        let aliased_with = before
-            .iter()
-            .zip(coefs.iter())
-            .filter(|(_, c)| c.abs() > 1e-9)
-            .map(|(&j, &c)| (candidates[j].0, c))
-            .collect();
-        unestimable.push(Unestimable {
-            column: candidates[ci].0,
-            aliased_with,
-        });
-    }
-
-    let yv = DVector::from_column_slice(&y);
-    let qr = xk.clone().qr();
-    let q = qr.q();
-    let r = qr.r();
-    let qty = q.transpose() * &yv;
+    let unestimable: Vec<Unestimable> = dropped
+        .iter()
+        .map(|(ci, coefs)| Unestimable {
+            column: kinds[*ci],
+            aliased_with: coefs
+                .iter()
+                .filter(|(_, c)| c.abs() > 1e-9)
+                .map(|&(j, c)| (kinds[j], c))
+                .collect(),
+        })
+        .collect();
     // The rank check above guarantees a non-singular R; fall back to zeros only to avoid a panic.
     let b = r
         .solve_upper_triangular(&qty)
@@ -189,13 +255,12 @@ pub fn fit_model(obs: &Observations, spec: &ModelSpec) -> Result<ModelFit, FitEr
         .solve_upper_triangular(&DMatrix::identity(p, p))
         .unwrap_or_else(|| DMatrix::zeros(p, p));
     let xtx_inv = &r_inv * r_inv.transpose();
-
-    let fitted_v = &xk * &b;
-    let fitted: Vec<f64> = fitted_v.iter().copied().collect();
+    let columns: Vec<Column> = kept.iter().map(|&c| kinds[c]).collect();
+    let (fitted, leverage) = match &transform {
+        Some(t) => t.fitted(&columns, &labels, b.as_slice(), &xtx_inv),
+        None => (solved.fitted, solved.leverage),
+    };
     let residuals: Vec<f64> = y.iter().zip(&fitted).map(|(a, f)| a - f).collect();
-    let leverage: Vec<f64> = (0..n)
-        .map(|i| (0..p).map(|j| q[(i, j)] * q[(i, j)]).sum())
-        .collect();
 
     let mean = y.iter().sum::<f64>() / n as f64;
     let ss_total: f64 = y.iter().map(|v| (v - mean).powi(2)).sum();
@@ -207,7 +272,7 @@ pub fn fit_model(obs: &Observations, spec: &ModelSpec) -> Result<ModelFit, FitEr
     let ms_res = (df_res > 0 && !exact_fit).then(|| ss_res / df_res as f64);
     let constant = ss_total <= 1e-24 * sum_sq_y.max(f64::MIN_POSITIVE);
 
-    let kind_of = |j: usize| candidates[kept[j]].0;
+    let kind_of = |j: usize| columns[j];
     let mut ss_blocks = 0.0;
     let mut ss_model = 0.0;
     for j in 0..p {
@@ -450,7 +515,7 @@ pub fn fit_model(obs: &Observations, spec: &ModelSpec) -> Result<ModelFit, FitEr
         fitted,
         residuals,
         leverage,
-        columns: kept.iter().map(|&c| candidates[c].0).collect(),
+        columns,
         estimates: b.iter().copied().collect(),
         xtx_inv,
     })

@@ -51,6 +51,7 @@
 mod distributions;
 mod equation;
 mod fit;
+mod gram;
 
 pub use distributions::f_upper_p;
 pub(crate) use distributions::{t_quantile, t_two_sided_p};
