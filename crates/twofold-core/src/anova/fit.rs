@@ -10,6 +10,47 @@ use std::collections::{BTreeMap, BTreeSet};
 
 use super::*;
 
+/// Pure error of runs given as `((block, settings), response)`: the squared deviations of the
+/// responses from their group means, groups being runs with identical settings in the same block,
+/// and its degrees of freedom (Montgomery, *Design and Analysis of Experiments*, pure error of
+/// replicated runs and centre points).
+pub(super) fn pure_error_of<'a>(
+    runs: impl Iterator<Item = ((u32, &'a [f64]), f64)>,
+) -> (f64, usize) {
+    let mut groups: BTreeMap<(u32, Vec<i8>), (usize, f64)> = BTreeMap::new();
+    let mut keyed: Vec<((u32, Vec<i8>), f64)> = Vec::new();
+    for ((block, row), y) in runs {
+        let key: Vec<i8> = row.iter().map(|&v| v as i8).collect();
+        let g = groups.entry((block, key.clone())).or_insert((0, 0.0));
+        g.0 += 1;
+        g.1 += y;
+        keyed.push(((block, key), y));
+    }
+    // Two passes (means, then squared deviations) to keep the precision of the textbook formula.
+    let mut ss = 0.0;
+    for (key, y) in &keyed {
+        if let Some(&(m, sum)) = groups.get(key)
+            && m > 1
+        {
+            ss += (y - sum / m as f64).powi(2);
+        }
+    }
+    let df = groups.values().map(|g| g.0 - 1).sum();
+    (ss, df)
+}
+
+/// Pure error of the used runs of `obs` (see [`fit_model`]'s table): `(SS, df)`; df 0 when no
+/// two runs share their settings and block.
+pub fn pure_error(obs: &Observations) -> (f64, usize) {
+    let levels = obs.levels();
+    pure_error_of(obs.used_runs().into_iter().map(|r| {
+        (
+            (obs.blocks()[r], levels[r].as_slice()),
+            obs.response()[r].unwrap_or(0.0),
+        )
+    }))
+}
+
 /// The values of column `c` on the used runs.
 fn column_values(
     c: Column,
@@ -358,19 +399,11 @@ pub fn fit_model(obs: &Observations, spec: &ModelSpec) -> Result<ModelFit, FitEr
     }
 
     // Pure error: runs with identical settings in the same block.
-    let mut groups: BTreeMap<(u32, Vec<i8>), Vec<f64>> = BTreeMap::new();
-    for (i, &r) in runs.iter().enumerate() {
-        let key: Vec<i8> = levels[r].iter().map(|&v| v as i8).collect();
-        groups.entry((block_of[i], key)).or_default().push(y[i]);
-    }
-    let (mut ss_pe, mut df_pe) = (0.0, 0usize);
-    for g in groups.values() {
-        if g.len() > 1 {
-            let m = g.iter().sum::<f64>() / g.len() as f64;
-            ss_pe += g.iter().map(|v| (v - m).powi(2)).sum::<f64>();
-            df_pe += g.len() - 1;
-        }
-    }
+    let (ss_pe, df_pe) = pure_error_of(
+        runs.iter()
+            .map(|&r| (obs.blocks()[r], levels[r].as_slice()))
+            .zip(y.iter().copied()),
+    );
 
     // The table.
     let row = |source: Source, df: usize, ss: f64| {

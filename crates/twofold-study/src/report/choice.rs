@@ -25,14 +25,19 @@
 use std::collections::BTreeSet;
 
 use twofold_core::anova::{
-    ModelFit, ModelSpec, Source, f_upper_p, fit_model, hierarchical_closure,
+    ModelFit, ModelSpec, Source, f_upper_p, fit_model, hierarchical_closure, pure_error,
 };
 use twofold_core::data::Observations;
+use twofold_core::effects::EffectMethod;
 use twofold_core::effects::EffectTable;
 use twofold_core::lenth::{Lenth, Significance};
 use twofold_core::term::Term;
 
 use super::ReportError;
+
+/// Most effects the default choice fits at once to test them against pure error when the table is
+/// not complete and balanced (the fit costs the cube of this; common practice, no source).
+pub const FULL_FIT_MAX_TERMS: usize = 512;
 
 /// Significance level of the pure-error tests that choose the default terms (Montgomery's 5 %).
 pub const TERM_ALPHA: f64 = 0.05;
@@ -267,23 +272,59 @@ pub fn default_choice(
     effects: &EffectTable,
     lenth: Option<&Lenth>,
 ) -> (ModelChoice, Option<PureError>) {
-    let all: Vec<Term> = effects.effects.iter().map(|e| e.term).collect();
-    let full = fit_model(obs, &ModelSpec::new(all).hierarchical(false)).ok();
-    let pure = full.as_ref().and_then(PureError::of);
+    // Pure error comes from the runs alone; only with it are the effects tested, and then by
+    // their adjusted sums of squares with every estimable effect fitted: on a complete balanced
+    // table (effects by the fast transform) the columns are orthogonal and each is the runs
+    // times the squared coefficient; otherwise the full model is fitted, when it is small enough.
+    let pure = {
+        let (ss, df) = pure_error(obs);
+        (df > 0).then(|| PureError {
+            ss,
+            df,
+            ms: ss / df as f64,
+        })
+    };
     let mut notes = Vec::new();
     let mut tests = Vec::new();
-    let (flagged, selection): (Vec<Term>, Selection) = match (&full, &pure) {
-        (Some(fit), Some(pe)) if pe.ms > 0.0 => {
-            for e in &effects.effects {
-                if let Some(row) = fit.anova_row(Source::Term(e.term)) {
-                    let (f, p) = pe.test(row.ss);
-                    tests.push(TermTest {
-                        term: e.term,
-                        ss: row.ss,
-                        f,
-                        p,
-                    });
-                }
+    let term_ss: Option<Vec<(Term, f64)>> = match &pure {
+        Some(pe) if pe.ms > 0.0 => {
+            if effects.method == EffectMethod::FastTransform {
+                let n = effects.factorial_runs as f64;
+                Some(
+                    effects
+                        .effects
+                        .iter()
+                        .map(|e| (e.term, n * (e.effect / 2.0).powi(2)))
+                        .collect(),
+                )
+            } else if effects.effects.len() <= FULL_FIT_MAX_TERMS {
+                let all: Vec<Term> = effects.effects.iter().map(|e| e.term).collect();
+                fit_model(obs, &ModelSpec::new(all).hierarchical(false))
+                    .ok()
+                    .map(|fit| {
+                        effects
+                            .effects
+                            .iter()
+                            .filter_map(|e| {
+                                fit.anova_row(Source::Term(e.term)).map(|r| (e.term, r.ss))
+                            })
+                            .collect()
+                    })
+            } else {
+                notes.push(format!(
+                    "{} effects are too many to test against pure error in one fit (at most {FULL_FIT_MAX_TERMS}), so Lenth's margins choose the terms",
+                    effects.effects.len()
+                ));
+                None
+            }
+        }
+        _ => None,
+    };
+    let (flagged, selection): (Vec<Term>, Selection) = match (&term_ss, &pure) {
+        (Some(ss_list), Some(pe)) => {
+            for &(term, ss) in ss_list {
+                let (f, p) = pe.test(ss);
+                tests.push(TermTest { term, ss, f, p });
             }
             let chosen = tests
                 .iter()
@@ -293,7 +334,7 @@ pub fn default_choice(
             (chosen, Selection::PureErrorTests)
         }
         _ => {
-            if pure.is_some() {
+            if pure.is_some_and(|pe| pe.ms <= 0.0) {
                 notes.push(
                     "the replicated runs agree exactly (pure error zero), so Lenth's margins choose the terms"
                         .to_string(),
@@ -345,4 +386,55 @@ pub fn default_choice(
         },
         pure,
     )
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use twofold_core::effects::estimate_effects;
+
+    #[test]
+    fn complete_tables_test_each_effect_by_its_own_sum_of_squares() {
+        // Montgomery, Example 6-1 (fill height, 2^3 with two replicates; the data of fit_model's
+        // own example): SS(A) = 36.00 against pure error 5.00 on 8 df. The tests come from the
+        // effects (fast transform) and must equal the full fit's adjusted sums of squares.
+        let y = [
+            -3., 0., -1., 2., -1., 2., 1., 6., -1., 1., 0., 3., 0., 1., 1., 5.,
+        ];
+        let levels = (0..16usize)
+            .map(|r| {
+                (0..3)
+                    .map(|f| if (r % 8) >> f & 1 == 1 { 1.0 } else { -1.0 })
+                    .collect()
+            })
+            .collect();
+        let obs = Observations::new(
+            3,
+            levels,
+            vec![],
+            y.iter().map(|&v| Some(v)).collect(),
+            vec![],
+        )
+        .unwrap();
+        let effects = estimate_effects(&obs).unwrap();
+        assert_eq!(effects.method, EffectMethod::FastTransform);
+        let (choice, pure) = default_choice(&obs, &effects, None);
+        let pure = pure.unwrap();
+        assert_eq!(pure.df, 8);
+        assert!((pure.ss - 5.0).abs() < 1e-9);
+        let all: Vec<Term> = effects.effects.iter().map(|e| e.term).collect();
+        let full = fit_model(&obs, &ModelSpec::new(all).hierarchical(false)).unwrap();
+        assert_eq!(choice.tests.len(), 7);
+        for t in &choice.tests {
+            let row = full.anova_row(Source::Term(t.term)).unwrap();
+            assert!((t.ss - row.ss).abs() < 1e-9, "{}", t.term.label());
+        }
+        let a = choice
+            .tests
+            .iter()
+            .find(|t| t.term == Term::main(0))
+            .unwrap();
+        assert!((a.ss - 36.0).abs() < 1e-9);
+        assert_eq!(choice.selection, Selection::PureErrorTests);
+    }
 }
