@@ -77,19 +77,22 @@ pub(super) enum RelabellingSet {
     Nothing,
 }
 
+/// Entries per column value in [`ColumnSearch::counts`]: word lengths 0..=k, padded to a fixed
+/// length (k ≤ 25) so the updates of a row compile to vector code. Entries past the number of
+/// columns chosen stay zero.
+const ROW: usize = 32;
+
 /// Depth-first branch and bound over the interaction columns of the 2^q factorial.
 pub(super) struct ColumnSearch {
     q: usize,
     k: usize,
     p: usize,
-    /// Entries per column value in `counts`: word lengths 0..=k.
-    width: usize,
     /// Candidate columns in search order (rank = q + index): most letters first, then by value.
     columns: Vec<u32>,
     /// Rank of every column value (basic factors 0..q).
     rank_of: Vec<u32>,
     relabellings: Arc<Relabellings>,
-    /// `counts[x·width + j]` = number of j-subsets of the chosen columns (basic ones included)
+    /// `counts[x·ROW + j]` = number of j-subsets of the chosen columns (basic ones included)
     /// whose product is x.
     pub(super) counts: Vec<u32>,
     /// Best design so far: its pattern and its generated columns.
@@ -216,16 +219,14 @@ impl ColumnSearch {
             }
             Relabellings::Swaps { pairs }
         };
-        let width = k + 1;
         let mut search = ColumnSearch {
             q,
             k,
             p,
-            width,
             columns,
             rank_of,
             relabellings: Arc::new(relabellings),
-            counts: vec![0; size * width],
+            counts: vec![0; size * ROW],
             best: None,
             nodes: 0,
             deadline,
@@ -288,20 +289,15 @@ impl ColumnSearch {
     /// the old values are read before they change.
     pub(super) fn add(&mut self, z: u32) {
         self.for_each_pair(z, |rx, ry| {
-            // Copies of the old rows on the stack, so the loop below has no dependence between
-            // its steps and the compiler can vectorise it (a row has at most 26 entries).
-            let mut old_x = [0u32; MAX_FACTORS + 1];
-            let mut old_y = [0u32; MAX_FACTORS + 1];
-            let n = rx.len();
-            old_x[..n].copy_from_slice(rx);
-            old_y[..n].copy_from_slice(ry);
-            for ((x, y), (&ox, &oy)) in rx[1..]
-                .iter_mut()
-                .zip(&mut ry[1..])
-                .zip(old_x[..n - 1].iter().zip(&old_y[..n - 1]))
-            {
-                *x += oy;
-                *y += ox;
+            // Copies of the old rows, so the loop has no dependence between its steps and,
+            // rows being of a fixed length, the compiler vectorises it.
+            let mut old_x = [0u32; ROW];
+            let mut old_y = [0u32; ROW];
+            old_x.copy_from_slice(rx);
+            old_y.copy_from_slice(ry);
+            for j in 1..ROW {
+                rx[j] += old_y[j - 1];
+                ry[j] += old_x[j - 1];
             }
         });
     }
@@ -345,21 +341,20 @@ impl ColumnSearch {
     /// Calls `f` once for every pair of column values {x, x·z} (x < x·z) with their rows of
     /// counts, so [`Self::add`] and [`Self::remove`] can update both rows of a pair together.
     fn for_each_pair(&mut self, z: u32, mut f: impl FnMut(&mut [u32], &mut [u32])) {
-        let w = self.width;
         let z = z as usize;
-        for x in 0..self.counts.len() / w {
+        for x in 0..self.counts.len() / ROW {
             let y = x ^ z;
             if y < x {
                 continue;
             }
-            let (lo, hi) = self.counts.split_at_mut(y * w);
-            f(&mut lo[x * w..x * w + w], &mut hi[..w]);
+            let (lo, hi) = self.counts.split_at_mut(y * ROW);
+            f(&mut lo[x * ROW..x * ROW + ROW], &mut hi[..ROW]);
         }
     }
 
     /// Current word-length pattern `(A3, ..., Ak)`.
     pub(super) fn pattern(&self) -> Vec<u64> {
-        self.counts[3..self.width]
+        self.counts[3..=self.k]
             .iter()
             .map(|&a| u64::from(a))
             .collect()
@@ -368,7 +363,7 @@ impl ColumnSearch {
     /// Words of lengths 3..=k that adding the column of rank `rank` would create.
     pub(super) fn additions(&self, rank: u32) -> &[u32] {
         let x = self.columns[rank as usize - self.q] as usize;
-        &self.counts[x * self.width + 2..x * self.width + self.k]
+        &self.counts[x * ROW + 2..x * ROW + self.k]
     }
 
     pub(super) fn beats_best(&self, pattern: &[u64]) -> bool {
@@ -494,7 +489,6 @@ impl ColumnSearch {
             q: self.q,
             k: self.k,
             p: self.p,
-            width: self.width,
             columns: self.columns.clone(),
             rank_of: self.rank_of.clone(),
             relabellings: Arc::clone(&self.relabellings),
@@ -601,27 +595,37 @@ impl ColumnSearch {
         match &*self.relabellings {
             Relabellings::Table { count, images } => {
                 // The parent's threshold is below c whenever it is set, so min(τ, c) is the
-                // threshold in both cases.
+                // threshold in both cases. One pass in blocks: each block's verdicts are
+                // computed without branches (so the compiler vectorises them) and the test stops
+                // at the first block with a smaller image.
+                const BLOCK: usize = 64;
                 let row = &images[c as usize * count..(c as usize + 1) * count];
-                let below = row
-                    .iter()
-                    .zip(taus)
-                    .fold(false, |acc, (&image, &tau)| acc | (image < tau.min(c)));
-                if below {
-                    return false;
+                out.reserve(taus.len());
+                let mut any_tie = false;
+                let mut block = [0u32; BLOCK];
+                for (images, taus) in row.chunks(BLOCK).zip(taus.chunks(BLOCK)) {
+                    let mut below = false;
+                    let mut tie = false;
+                    for ((o, &image), &tau) in block.iter_mut().zip(images).zip(taus) {
+                        let threshold = tau.min(c);
+                        below |= image < threshold;
+                        let verdict = if image > threshold {
+                            threshold
+                        } else if tau == u32::MAX {
+                            u32::MAX
+                        } else {
+                            TIE
+                        };
+                        tie |= verdict == TIE;
+                        *o = verdict;
+                    }
+                    if below {
+                        return false;
+                    }
+                    any_tie |= tie;
+                    out.extend_from_slice(&block[..images.len()]);
                 }
-                out.resize(taus.len(), 0);
-                for ((o, &image), &tau) in out.iter_mut().zip(row).zip(taus) {
-                    let threshold = tau.min(c);
-                    *o = if image > threshold {
-                        threshold
-                    } else if tau == u32::MAX {
-                        u32::MAX
-                    } else {
-                        TIE
-                    };
-                }
-                if out.contains(&TIE) {
+                if any_tie {
                     for (pi, slot) in out.iter_mut().enumerate() {
                         if *slot == TIE {
                             match self.compare_image(pi, chosen) {
@@ -668,7 +672,7 @@ impl ColumnSearch {
     /// words that y adds are `n_j(y) + n_{j−1}(y·c)`, so each pair costs a few reads, with an
     /// early exit once the sum is decided against the incumbent.
     pub(super) fn best_pair(&mut self, chosen: &[u32], pattern: &[u64], next: &[u32]) {
-        let w = self.width;
+        let w = ROW;
         let len = pattern.len();
         let mut base = vec![0u64; len];
         for (i, &c) in next.iter().enumerate() {
@@ -726,7 +730,7 @@ impl ColumnSearch {
         if pattern[..d].iter().any(|&a| a > 0) {
             return PairBound::Cut;
         }
-        let w = self.width;
+        let w = ROW;
         let masks: Vec<usize> = next
             .iter()
             .map(|&c| self.columns[c as usize - self.q] as usize)
@@ -788,7 +792,7 @@ impl ColumnSearch {
     /// and `r` products with `m_x = 0` for the columns still to come. Returns `None` when fewer
     /// than `r` products are free for them.
     pub(super) fn pair_count_bound(&self, r: usize) -> Option<u64> {
-        let w = self.width;
+        let w = ROW;
         let size = 1usize << self.q;
         let mut hist: Vec<u64> = vec![0; 8];
         for x in 1..size {

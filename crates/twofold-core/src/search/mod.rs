@@ -32,13 +32,23 @@
 //!   go the best completion is found exactly (after adding c, a column y adds
 //!   `n_j(y) + n_{j−1}(y·c)` words of length j + 1). The incumbent is seeded by greedy
 //!   constructions that add, at each step, the column adding the fewest short words.
+//! * **Counting pairs.** Once the incumbent has no word of length three, the words of length four
+//!   of any better completion are bounded from below by counting the pairs of columns by their
+//!   product: `3·A4 = Σ_x C(m_x, 2)`, and the pairs still to come are spread as evenly as
+//!   possible over the free products (see `ColumnSearch::pair_count_bound`).
 //! * **Isomorphism pruning.** Relabelling the basic factors maps designs to isomorphic designs
 //!   with the same pattern. The search keeps a partial design only if its column set, as a sorted
 //!   list in the search order, is the smallest among its images under the relabellings used
 //!   (orderly generation, Read 1978, *Annals of Discrete Mathematics* 2, 107–120): with up to 7
 //!   basic factors (N ≤ 128) all q! relabellings, above that the transpositions of two basic
 //!   factors. Any set of relabellings is safe: the smallest member of every isomorphism class
-//!   survives the test at every step, so the optimum is never lost.
+//!   survives the test at every step, so the optimum is never lost. The test is skipped where
+//!   fewer than five columns are still to come, where it costs more than the small subtrees it
+//!   would cut.
+//! * **Every core.** Below depth three the tree is cut into subtrees searched in parallel
+//!   (rayon's work stealing) with one shared incumbent. Ties are broken by search order, not by
+//!   which thread finds a design first, so a finished search returns the same generators as the
+//!   same search on one thread (see `column_search::Shared`).
 //! * **Many runs, few generators.** Beyond 2^16 runs, and from 256 runs on for up to three
 //!   generators, the search works on the other side of the duality: the defining contrast subgroup is a binary linear code of length k and dimension p
 //!   whose weight distribution is the word-length pattern (MacWilliams & Sloane 1977, *The Theory
@@ -52,7 +62,14 @@
 //! Searches run under a time budget. When the exact search finishes, the outcome is proven to be
 //! of minimum aberration; when the budget runs out first, the best design found is returned with
 //! `proven_minimum_aberration: false`. The search is deterministic: the same inputs give the same
-//! generators whenever it finishes within its budget.
+//! generators whenever it finishes within its budget (the node count, in a parallel search, may
+//! vary from run to run).
+//!
+//! # Speed
+//! On a shared two-core machine every design of 16, 32 and 64 runs with up to 20 factors, and of
+//! 128 runs with up to 16 factors, is proven well within a second; 128 runs with 17 factors
+//! takes about a second, and 18 to 20 factors need more than the default budget (see the table
+//! printed by `cargo bench -p twofold-core --bench search`).
 
 use crate::design::{DesignError, FractionalDesign, Generator, check_run_count, smallest_runs};
 use crate::ofat;
@@ -565,6 +582,36 @@ mod tests {
             (20, 1 << 19),
         ] {
             let out = minimum_aberration(k, runs, &budget(60)).unwrap();
+            assert!(out.proven_minimum_aberration, "k={k}, runs={runs}");
+        }
+    }
+
+    /// The cases of the goal "every design of up to 128 runs and 20 factors proven within the
+    /// default budget", as the search benchmark lists them: k from q + 1 to min(20, N − 1).
+    fn goal_cases(runs: usize) -> impl Iterator<Item = (usize, usize)> {
+        let q = runs.trailing_zeros() as usize;
+        (q + 1..=20.min(runs - 1)).map(move |k| (k, runs))
+    }
+
+    #[test]
+    fn every_benchmark_case_up_to_64_runs_and_128_runs_up_to_16_factors_is_proven() {
+        // Under the default budget (the benchmark times them; this only checks the proof).
+        let cases = [16, 32, 64]
+            .into_iter()
+            .flat_map(goal_cases)
+            .chain(goal_cases(128).filter(|&(k, _)| k <= 16));
+        for (k, runs) in cases {
+            let out = minimum_aberration(k, runs, &SearchBudget::default()).unwrap();
+            assert!(out.proven_minimum_aberration, "k={k}, runs={runs}");
+        }
+    }
+
+    #[test]
+    #[ignore = "the goal is not reached yet: 128 runs with 17 factors take about a second, 18 to \
+                20 more than the default budget (see the search benchmark)"]
+    fn every_benchmark_case_of_128_runs_is_proven() {
+        for (k, runs) in goal_cases(128) {
+            let out = minimum_aberration(k, runs, &SearchBudget::default()).unwrap();
             assert!(out.proven_minimum_aberration, "k={k}, runs={runs}");
         }
     }
