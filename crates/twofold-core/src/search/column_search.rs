@@ -857,6 +857,45 @@ impl ColumnSearch {
         Some(sum.div_ceil(3))
     }
 
+    /// Whether the child that adds the column of rank `c` to a partial design with pattern
+    /// `pattern`, with the candidates `rest` and `left` columns still to come, is cut by its
+    /// first bound (see [`Self::dfs`]), worked out without adding the column: after adding c a
+    /// column y adds `n_j(y) + n_{j−1}(y·c)` words of length j + 1. Saves the addition, the copy
+    /// of the counts and the sort of a child that would be cut at once.
+    fn child_is_cut(&self, pattern: &[u64], c: u32, rest: &[u32], left: usize) -> bool {
+        let Some((best, _)) = &self.best else {
+            return false;
+        };
+        if rest.len() < left {
+            return true;
+        }
+        let len = pattern.len();
+        let mut bound = pattern.to_vec();
+        add_into(&mut bound, self.additions(c));
+        if bound.as_slice() >= best.as_slice() {
+            return true;
+        }
+        let xc = self.columns[c as usize - self.q] as usize;
+        let mut adds: Vec<[u32; ROW]> = rest
+            .iter()
+            .map(|&y| {
+                let xy = self.columns[y as usize - self.q] as usize;
+                let ry = &self.counts[xy * ROW..xy * ROW + ROW];
+                let rs = &self.counts[(xy ^ xc) * ROW..(xy ^ xc) * ROW + ROW];
+                let mut a = [0u32; ROW];
+                for t in 0..len {
+                    a[t] = ry[t + 2] + rs[t + 1];
+                }
+                a
+            })
+            .collect();
+        adds.select_nth_unstable_by(left - 1, |a, b| a[..len].cmp(&b[..len]));
+        for a in &adds[..left] {
+            add_into(&mut bound, &a[..len]);
+        }
+        bound.as_slice() >= best.as_slice()
+    }
+
     pub(super) fn dfs(&mut self, chosen: &mut Vec<u32>, candidates: &[u32], taus: &[u32]) {
         if let Some((depth, subtrees)) = &mut self.split
             && chosen.len() == *depth
@@ -878,10 +917,22 @@ impl ColumnSearch {
             return;
         }
         let pattern = self.pattern();
-        // Candidates sorted by the words they would add, lexicographically (stable: ties keep
-        // the search order, which keeps the result deterministic).
+        // The r candidates adding the fewest words, lexicographically, the r-th last. Only their
+        // sum matters for the bound; with one column to go the first of the smallest in search
+        // order is taken, which keeps the result deterministic.
         let mut order: Vec<u32> = candidates.to_vec();
-        order.sort_by(|&a, &b| self.additions(a).cmp(self.additions(b)));
+        if r == 1 {
+            let first = order.iter().enumerate().fold(0, |m, (i, &c)| {
+                if self.additions(c) < self.additions(order[m]) {
+                    i
+                } else {
+                    m
+                }
+            });
+            order.swap(0, first);
+        } else {
+            order.select_nth_unstable_by(r - 1, |&a, &b| self.additions(a).cmp(self.additions(b)));
+        }
         let mut bound = pattern.clone();
         for &c in &order[..r - 1] {
             add_into(&mut bound, self.additions(c));
@@ -943,6 +994,9 @@ impl ColumnSearch {
         for (i, &c) in next.iter().enumerate() {
             if next.len() - i < r {
                 break;
+            }
+            if self.child_is_cut(&pattern, c, &next[i + 1..], r - 1) {
+                continue;
             }
             chosen.push(c);
             // A child with two columns to go is settled by `best_pair` at about the cost of the
