@@ -66,10 +66,12 @@
 //! vary from run to run).
 //!
 //! # Speed
-//! On a shared two-core machine every design of 16, 32 and 64 runs with up to 20 factors, and of
-//! 128 runs with up to 16 factors, is proven well within a second; 128 runs with 17 factors
-//! takes about a second, and 18 to 20 factors need more than the default budget (see the table
-//! printed by `cargo bench -p twofold-core --bench search`).
+//! Measured on a shared two-core machine under heavy load from other jobs (load average 7–8; an
+//! idle machine was not measured): under the default budget every design of 16, 32 and 64
+//! runs with up to 20 factors is proven in under 0.03 s, of 128 runs with up to 16 factors in
+//! under 0.6 s, with 17 factors in about 1.5 s; 18 to 20 factors need 3, 9 and 21 s to be
+//! proven. At 256 runs up to 17 factors are proven in under half a second, and 18 to 20 factors
+//! in 20 s, 1 min and 2 min. `cargo bench -p twofold-core --bench search` prints the table.
 
 use crate::design::{DesignError, FractionalDesign, Generator, check_run_count, smallest_runs};
 use crate::ofat;
@@ -102,7 +104,8 @@ impl SearchBudget {
 }
 
 impl Default for SearchBudget {
-    /// Two seconds: enough to prove every design of up to 64 runs.
+    /// Two seconds: enough to prove every design of up to 64 runs, and of 128 runs up to 17
+    /// factors (measured on a busy two-core machine; see the search benchmark).
     fn default() -> SearchBudget {
         SearchBudget {
             time: Duration::from_secs(2),
