@@ -782,9 +782,9 @@ impl ColumnSearch {
     /// Two distinct pairs of columns with the same product x are disjoint and make a word of
     /// length four, and each such word splits into pairs in three ways, so
     /// `3·A4 = Σ_x C(m_x, 2)`, where m_x is the number of pairs of columns whose product is x
-    /// (the standard counting behind the A4 formulas of resolution IV designs, e.g. Chen &
-    /// Cheng 2004, *Annals of Statistics* 32, 2145–2168, cited from memory; the identity is
-    /// proved in one line above). In a design without words of length three no pair multiplies
+    /// (the count of aliased pairs of two-factor interactions, as in Cheng, Steinberg & Sun
+    /// 1999, *Journal of the Royal Statistical Society B* 61, 85–93; cited from memory, not
+    /// checked against a copy: the identity is proved in the two lines above). In a design without words of length three no pair multiplies
     /// to a column of the design, so the `C(k, 2)` pairs fall on the other `2^q − 1 − k`
     /// products. The current m_x are `n_2(x)`; the `C(k, 2) − C(k', 2)` pairs still to come
     /// (k' columns now) are poured, one at a time, onto the lowest m_x (water filling, which
