@@ -32,13 +32,23 @@
 //!   go the best completion is found exactly (after adding c, a column y adds
 //!   `n_j(y) + n_{j−1}(y·c)` words of length j + 1). The incumbent is seeded by greedy
 //!   constructions that add, at each step, the column adding the fewest short words.
+//! * **Counting pairs.** Once the incumbent has no word of length three, the words of length four
+//!   of any better completion are bounded from below by counting the pairs of columns by their
+//!   product: `3·A4 = Σ_x C(m_x, 2)`, and the pairs still to come are spread as evenly as
+//!   possible over the free products (see `ColumnSearch::pair_count_bound`).
 //! * **Isomorphism pruning.** Relabelling the basic factors maps designs to isomorphic designs
 //!   with the same pattern. The search keeps a partial design only if its column set, as a sorted
 //!   list in the search order, is the smallest among its images under the relabellings used
 //!   (orderly generation, Read 1978, *Annals of Discrete Mathematics* 2, 107–120): with up to 7
 //!   basic factors (N ≤ 128) all q! relabellings, above that the transpositions of two basic
 //!   factors. Any set of relabellings is safe: the smallest member of every isomorphism class
-//!   survives the test at every step, so the optimum is never lost.
+//!   survives the test at every step, so the optimum is never lost. The test is skipped where
+//!   fewer than five columns are still to come, where it costs more than the small subtrees it
+//!   would cut.
+//! * **Every core.** Below depth three the tree is cut into subtrees searched in parallel
+//!   (rayon's work stealing) with one shared incumbent. Ties are broken by search order, not by
+//!   which thread finds a design first, so a finished search returns the same generators as the
+//!   same search on one thread (see `column_search::Shared`).
 //! * **Many runs, few generators.** Beyond 2^16 runs, and from 256 runs on for up to three
 //!   generators, the search works on the other side of the duality: the defining contrast subgroup is a binary linear code of length k and dimension p
 //!   whose weight distribution is the word-length pattern (MacWilliams & Sloane 1977, *The Theory
@@ -52,7 +62,16 @@
 //! Searches run under a time budget. When the exact search finishes, the outcome is proven to be
 //! of minimum aberration; when the budget runs out first, the best design found is returned with
 //! `proven_minimum_aberration: false`. The search is deterministic: the same inputs give the same
-//! generators whenever it finishes within its budget.
+//! generators whenever it finishes within its budget (the node count, in a parallel search, may
+//! vary from run to run).
+//!
+//! # Speed
+//! Measured on a shared two-core machine under heavy load from other jobs (load average 7–8; an
+//! idle machine was not measured): under the default budget every design of 16, 32 and 64
+//! runs with up to 20 factors is proven in under 0.03 s, of 128 runs with up to 16 factors in
+//! under 0.6 s, with 17 factors in about 1.5 s; 18 to 20 factors need 3, 9 and 21 s to be
+//! proven. At 256 runs up to 17 factors are proven in under half a second, and 18 to 20 factors
+//! in 20 s, 1 min and 2 min. `cargo bench -p twofold-core --bench search` prints the table.
 
 use crate::design::{DesignError, FractionalDesign, Generator, check_run_count, smallest_runs};
 use crate::ofat;
@@ -85,7 +104,8 @@ impl SearchBudget {
 }
 
 impl Default for SearchBudget {
-    /// Two seconds: enough to prove every design of up to 64 runs.
+    /// Two seconds: enough to prove every design of up to 64 runs, and of 128 runs up to 17
+    /// factors (measured on a busy two-core machine; see the search benchmark).
     fn default() -> SearchBudget {
         SearchBudget {
             time: Duration::from_secs(2),
@@ -319,6 +339,28 @@ const PRIMAL_MAX_BASIC: usize = 16;
 /// Longest candidate list for which [`ColumnSearch::pair_bound`] is worth its quadratic cost.
 const PAIR_BOUND_MAX_CANDIDATES: usize = 1024;
 
+/// Largest q for which [`ColumnSearch::pair_count_bound`] is worth a sweep over all 2^q
+/// products at every node.
+const PAIR_COUNT_MAX_BASIC: usize = 10;
+
+/// Largest q for which the column search undoes a column by copying the counts back (2^q rows)
+/// rather than by subtracting.
+const SNAPSHOT_MAX_BASIC: usize = 10;
+
+/// The isomorphism test runs on a partial design only when at least this many columns are
+/// still to come (counting the one just added). Closer to the leaves the subtrees are small and
+/// their bounds cut them about as fast as the test over all q! relabellings would (measured at
+/// 128 runs, 17 and 18 factors: testing from four columns left on was a fifth slower, from six a
+/// tenth). Skipping the test is always safe.
+const ISOMORPHISM_TEST_MIN_LEFT: usize = 5;
+
+/// Depth (columns chosen) at which the column search cuts its tree into subtrees searched in
+/// parallel.
+const PARALLEL_SPLIT_DEPTH: usize = 3;
+
+/// Columns a subtree must still have to choose for the search to be split at all.
+const PARALLEL_MIN_LEFT: usize = 4;
+
 /// Largest q for which the isomorphism test uses every relabelling of the basic factors (q! of
 /// them: 5040 at q = 7).
 const ALL_RELABELLINGS_MAX_BASIC: usize = 7;
@@ -487,6 +529,27 @@ mod tests {
     }
 
     #[test]
+    fn parallel_search_returns_the_design_of_the_serial_search() {
+        // The subtrees searched in parallel break ties by search order, so the generators are
+        // those of the same search on one thread, split at any depth (see `Shared`).
+        for (k, q) in [(11, 5), (17, 5), (13, 6), (16, 6), (12, 7), (15, 7)] {
+            let serial = ColumnSearch::new(k, q, None).run_split(0);
+            for depth in 1..=3 {
+                let parallel = ColumnSearch::new(k, q, None).run_split(depth);
+                assert!(serial.proven && parallel.proven, "k={k}, q={q}");
+                assert_eq!(
+                    parallel.pattern, serial.pattern,
+                    "k={k}, q={q}, depth {depth}"
+                );
+                assert_eq!(
+                    parallel.columns, serial.columns,
+                    "k={k}, q={q}, depth {depth}"
+                );
+            }
+        }
+    }
+
+    #[test]
     fn generators_are_positive_products_of_basic_factors() {
         let out = minimum_aberration(7, 32, &budget(10)).unwrap();
         let labels = out.design.generator_labels();
@@ -504,7 +567,9 @@ mod tests {
             let a = minimum_aberration(k, runs, &budget(60)).unwrap();
             let b = minimum_aberration(k, runs, &budget(60)).unwrap();
             assert_eq!(a.design.generators(), b.design.generators());
-            assert_eq!(a.nodes_explored, b.nodes_explored);
+            // The node count is not compared: in a parallel search it depends on when each
+            // subtree saw the best design of the others.
+            assert_eq!(a.word_length_pattern, b.word_length_pattern);
         }
     }
 
@@ -520,6 +585,36 @@ mod tests {
             (20, 1 << 19),
         ] {
             let out = minimum_aberration(k, runs, &budget(60)).unwrap();
+            assert!(out.proven_minimum_aberration, "k={k}, runs={runs}");
+        }
+    }
+
+    /// The cases of the goal "every design of up to 128 runs and 20 factors proven within the
+    /// default budget", as the search benchmark lists them: k from q + 1 to min(20, N − 1).
+    fn goal_cases(runs: usize) -> impl Iterator<Item = (usize, usize)> {
+        let q = runs.trailing_zeros() as usize;
+        (q + 1..=20.min(runs - 1)).map(move |k| (k, runs))
+    }
+
+    #[test]
+    fn every_benchmark_case_up_to_64_runs_and_128_runs_up_to_16_factors_is_proven() {
+        // Under the default budget (the benchmark times them; this only checks the proof).
+        let cases = [16, 32, 64]
+            .into_iter()
+            .flat_map(goal_cases)
+            .chain(goal_cases(128).filter(|&(k, _)| k <= 16));
+        for (k, runs) in cases {
+            let out = minimum_aberration(k, runs, &SearchBudget::default()).unwrap();
+            assert!(out.proven_minimum_aberration, "k={k}, runs={runs}");
+        }
+    }
+
+    #[test]
+    #[ignore = "the goal is not reached yet: 128 runs with 17 factors take about a second, 18 to \
+                20 more than the default budget (see the search benchmark)"]
+    fn every_benchmark_case_of_128_runs_is_proven() {
+        for (k, runs) in goal_cases(128) {
+            let out = minimum_aberration(k, runs, &SearchBudget::default()).unwrap();
             assert!(out.proven_minimum_aberration, "k={k}, runs={runs}");
         }
     }
