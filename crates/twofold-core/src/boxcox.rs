@@ -135,7 +135,13 @@ pub fn box_cox(obs: &Observations, spec: &ModelSpec) -> Result<BoxCox, BoxCoxErr
     let y = base.observed.clone();
     let log_gm = y.iter().map(|v| v.ln()).sum::<f64>() / y.len() as f64;
     let runs = base.runs.clone();
+    // On a two-level table the same model's residual sum of squares comes from the transform
+    // without refitting; otherwise each λ refits.
+    let quick = crate::anova::residual_ss_for(&base, obs);
     let ss = |z: &[f64]| -> Option<f64> {
+        if let Some(q) = &quick {
+            return Some(q(z));
+        }
         let mut resp = vec![None; obs.run_count()];
         for (&r, &v) in runs.iter().zip(z) {
             resp[r] = Some(v);

@@ -51,6 +51,45 @@ pub fn pure_error(obs: &Observations) -> (f64, usize) {
     }))
 }
 
+/// The residual sum of squares of `fit`'s model on the same runs for another response `z` (one
+/// value per run of `fit.runs`), without fitting again: `Σ(z − z̄)² − gᵀ(XᵀX)⁻¹g` with
+/// `g = Xᵀ(z − z̄)` by the transform (the model holds the intercept, so centring changes nothing
+/// but the rounding). `None` when `obs` is not a two-level table (every run at ±1 or the centre).
+pub fn residual_ss_for<'a>(
+    fit: &'a ModelFit,
+    obs: &Observations,
+) -> Option<impl Fn(&[f64]) -> f64 + 'a> {
+    let levels = obs.levels();
+    let block_of: Vec<u32> = fit.runs.iter().map(|&r| obs.blocks()[r]).collect();
+    let labels: Vec<u32> = {
+        let s: BTreeSet<u32> = block_of.iter().copied().collect();
+        s.into_iter().collect()
+    };
+    let index: Vec<usize> = block_of
+        .iter()
+        .map(|b| labels.iter().position(|l| l == b).unwrap_or(0))
+        .collect();
+    let rows: Vec<&[f64]> = fit
+        .runs
+        .iter()
+        .map(|&r| levels.get(r).map_or(&[][..], Vec::as_slice))
+        .collect();
+    let t = gram::Transform::new(obs.factor_count(), &rows, index, labels.len())?;
+    Some(move |z: &[f64]| {
+        let mean = z.iter().sum::<f64>() / z.len().max(1) as f64;
+        let zc: Vec<f64> = z.iter().map(|v| v - mean).collect();
+        let g = t.xty(&fit.columns, &labels, &zc);
+        let p = g.len();
+        let mut quad = 0.0;
+        for i in 0..p {
+            for j in 0..p {
+                quad += g[i] * fit.xtx_inv[(i, j)] * g[j];
+            }
+        }
+        (zc.iter().map(|v| v * v).sum::<f64>() - quad).max(0.0)
+    })
+}
+
 /// The values of column `c` on the used runs.
 fn column_values(
     c: Column,
@@ -264,9 +303,9 @@ pub fn fit_model(obs: &Observations, spec: &ModelSpec) -> Result<ModelFit, FitEr
         .map(|b| labels.iter().position(|l| l == b).unwrap_or(0))
         .collect();
     let rows: Vec<&[f64]> = runs.iter().map(|&r| levels[r].as_slice()).collect();
-    let transform = gram::Transform::new(k, &rows, block_index, labels.len(), &y);
+    let transform = gram::Transform::new(k, &rows, block_index, labels.len());
     let solved = match &transform {
-        Some(t) => t.solve(&kinds, &labels),
+        Some(t) => t.solve(&kinds, &labels, &y),
         None => dense_solve(&kinds, &runs, levels, &block_of, &labels, &centre, &y),
     };
     let gram::Solved {
@@ -485,17 +524,15 @@ pub fn fit_model(obs: &Observations, spec: &ModelSpec) -> Result<ModelFit, FitEr
     // columns residualised on the first `m` columns are Σ_{i≥m} R_ij q_i, so their inner products
     // are those of the trailing rows of R.
     let m = 1 + block_coefs.len();
-    let mut orthogonal = true;
-    for j in m..p {
-        for l in (j + 1)..p {
-            let dot: f64 = (m..p).map(|i| r[(i, j)] * r[(i, l)]).sum();
-            let nj: f64 = (m..p).map(|i| r[(i, j)].powi(2)).sum::<f64>().sqrt();
-            let nl: f64 = (m..p).map(|i| r[(i, l)].powi(2)).sum::<f64>().sqrt();
-            if dot.abs() > 1e-10 * nj * nl {
-                orthogonal = false;
-            }
-        }
-    }
+    let norms: Vec<f64> = (0..p)
+        .map(|j| (m..p).map(|i| r[(i, j)].powi(2)).sum::<f64>().sqrt())
+        .collect();
+    let orthogonal = (m..p).all(|j| {
+        (j + 1..p).all(|l| {
+            let dot: f64 = (m..=j.min(l)).map(|i| r[(i, j)] * r[(i, l)]).sum();
+            dot.abs() <= 1e-10 * norms[j] * norms[l]
+        })
+    });
 
     let press = if leverage.iter().all(|&h| h < 1.0 - 1e-10) {
         Some(

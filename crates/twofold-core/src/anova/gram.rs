@@ -67,26 +67,19 @@ pub(crate) fn fwht(v: &mut [f64]) {
 }
 
 /// The used runs of a two-level table in the form the transform route reads.
-pub(super) struct Transform<'a> {
+pub(super) struct Transform {
     k: usize,
     /// Corner of each used run (bit f set where factor f is at −1); `None` at a centre point.
     corner: Vec<Option<usize>>,
     /// Block index (0-based among the labels) of each used run.
     block: Vec<usize>,
     blocks: usize,
-    y: &'a [f64],
 }
 
-impl<'a> Transform<'a> {
+impl Transform {
     /// The transform view of the used runs (`rows` their settings), or `None` when a run is
     /// neither a two-level run nor a centre point, or the table would be too large.
-    pub fn new(
-        k: usize,
-        rows: &[&[f64]],
-        block: Vec<usize>,
-        blocks: usize,
-        y: &'a [f64],
-    ) -> Option<Transform<'a>> {
+    pub fn new(k: usize, rows: &[&[f64]], block: Vec<usize>, blocks: usize) -> Option<Transform> {
         if k > TRANSFORM_MAX_FACTORS || blocks.max(1).saturating_mul(1 << k) > TRANSFORM_MAX_CELLS {
             return None;
         }
@@ -114,14 +107,13 @@ impl<'a> Transform<'a> {
             corner,
             block,
             blocks: blocks.max(1),
-            y,
         })
     }
 
     /// Per block, the transform of the run counts and of the response sums over the corners;
     /// and per block the (factorial runs, centre runs, response sum at the centre).
     #[allow(clippy::type_complexity)]
-    fn tables(&self) -> (Vec<Vec<f64>>, Vec<Vec<f64>>, Vec<(f64, f64, f64)>) {
+    fn tables(&self, y: &[f64]) -> (Vec<Vec<f64>>, Vec<Vec<f64>>, Vec<(f64, f64, f64)>) {
         let size = 1usize << self.k;
         let mut counts = vec![vec![0.0; size]; self.blocks];
         let mut sums = vec![vec![0.0; size]; self.blocks];
@@ -131,12 +123,12 @@ impl<'a> Transform<'a> {
             match c {
                 Some(c) => {
                     counts[b][*c] += 1.0;
-                    sums[b][*c] += self.y[i];
+                    sums[b][*c] += y[i];
                     centre[b].0 += 1.0;
                 }
                 None => {
                     centre[b].1 += 1.0;
-                    centre[b].2 += self.y[i];
+                    centre[b].2 += y[i];
                 }
             }
         }
@@ -175,8 +167,8 @@ impl<'a> Transform<'a> {
 
     /// Solves the normal equations of `candidates` (in the fit's order) by the transform (see the
     /// module documentation); the fitted values are filled in by [`Transform::fitted`].
-    pub fn solve(&self, candidates: &[Column], labels: &[u32]) -> Solved {
-        let (counts, sums, centre) = self.tables();
+    pub fn solve(&self, candidates: &[Column], labels: &[u32], y: &[f64]) -> Solved {
+        let (counts, sums, centre) = self.tables(y);
         let nb = self.blocks;
         let pc = candidates.len();
         // Cross products of the candidates.
@@ -261,6 +253,35 @@ impl<'a> Transform<'a> {
             fitted: Vec::new(),
             leverage: Vec::new(),
         }
+    }
+
+    /// `Xᵀz` of the `columns` for another response `z` (one value per used run): the response
+    /// sums per block transformed, `k·2^k` operations per block.
+    pub fn xty(&self, columns: &[Column], labels: &[u32], z: &[f64]) -> Vec<f64> {
+        let size = 1usize << self.k;
+        let mut sums = vec![vec![0.0; size]; self.blocks];
+        let mut centre = vec![0.0; self.blocks];
+        for (i, c) in self.corner.iter().enumerate() {
+            match c {
+                Some(c) => sums[self.block[i]][*c] += z[i],
+                None => centre[self.block[i]] += z[i],
+            }
+        }
+        for v in &mut sums {
+            fwht(v);
+        }
+        columns
+            .iter()
+            .map(|&c| match c {
+                Column::Term(t) => sums.iter().map(|v| v[t.bits() as usize]).sum(),
+                other => (0..self.blocks)
+                    .map(|b| {
+                        self.nuisance(other, labels, b, false).unwrap_or(0.0) * sums[b][0]
+                            + self.nuisance(other, labels, b, true).unwrap_or(0.0) * centre[b]
+                    })
+                    .sum(),
+            })
+            .collect()
     }
 
     /// Fitted values and leverages of the used runs for the kept `columns` with coefficients
@@ -430,8 +451,8 @@ mod tests {
                 .map(|b| labels.iter().position(|l| l == b).unwrap_or(0))
                 .collect();
             let refs: Vec<&[f64]> = rows.iter().map(Vec::as_slice).collect();
-            let t = Transform::new(4, &refs, index, labels.len(), &y).unwrap();
-            let fast = t.solve(&kinds, &labels);
+            let t = Transform::new(4, &refs, index, labels.len()).unwrap();
+            let fast = t.solve(&kinds, &labels, &y);
             prop_assert_eq!(&fast.kept, &dense.kept);
             let dropped = |s: &Solved| s.dropped.iter().map(|d| d.0).collect::<Vec<_>>();
             prop_assert_eq!(dropped(&fast), dropped(&dense));

@@ -56,7 +56,7 @@ mod gram;
 pub use distributions::f_upper_p;
 pub(crate) use distributions::{t_quantile, t_two_sided_p};
 pub use equation::{Equation, EquationTerm, Units, format_number};
-pub use fit::{fit_model, pure_error};
+pub use fit::{fit_model, pure_error, residual_ss_for};
 
 use crate::columns::term_value;
 use crate::term::{Term, factor_letter};
