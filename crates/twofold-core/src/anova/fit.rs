@@ -278,6 +278,12 @@ pub fn fit_model(obs: &Observations, spec: &ModelSpec) -> Result<ModelFit, FitEr
     let with_curvature = spec.curvature && centre_runs > 0 && centre_runs < n;
 
     let parameters = 1 + (labels.len() - 1) + terms.len() + usize::from(with_curvature);
+    if parameters > MAX_PARAMETERS {
+        return Err(FitError::TooManyParameters {
+            parameters,
+            max: MAX_PARAMETERS,
+        });
+    }
     if n < parameters {
         return Err(FitError::TooFewRuns {
             runs: n,
@@ -331,10 +337,22 @@ pub fn fit_model(obs: &Observations, spec: &ModelSpec) -> Result<ModelFit, FitEr
     let b = r
         .solve_upper_triangular(&qty)
         .unwrap_or_else(|| DVector::zeros(p));
-    let r_inv = r
-        .solve_upper_triangular(&DMatrix::identity(p, p))
-        .unwrap_or_else(|| DMatrix::zeros(p, p));
-    let xtx_inv = &r_inv * r_inv.transpose();
+    // Orthogonal columns (the usual two-level case) make R diagonal: its inverse is read off.
+    let diagonal = (0..p).all(|j| (0..j).all(|i| r[(i, j)] == 0.0));
+    let xtx_inv = if diagonal {
+        DMatrix::from_fn(p, p, |i, j| {
+            if i == j {
+                1.0 / (r[(i, i)] * r[(i, i)])
+            } else {
+                0.0
+            }
+        })
+    } else {
+        let r_inv = r
+            .solve_upper_triangular(&DMatrix::identity(p, p))
+            .unwrap_or_else(|| DMatrix::zeros(p, p));
+        &r_inv * r_inv.transpose()
+    };
     let columns: Vec<Column> = kept.iter().map(|&c| kinds[c]).collect();
     let (fitted, leverage) = match &transform {
         Some(t) => t.fitted(&columns, &labels, b.as_slice(), &xtx_inv),
@@ -527,12 +545,13 @@ pub fn fit_model(obs: &Observations, spec: &ModelSpec) -> Result<ModelFit, FitEr
     let norms: Vec<f64> = (0..p)
         .map(|j| (m..p).map(|i| r[(i, j)].powi(2)).sum::<f64>().sqrt())
         .collect();
-    let orthogonal = (m..p).all(|j| {
-        (j + 1..p).all(|l| {
-            let dot: f64 = (m..=j.min(l)).map(|i| r[(i, j)] * r[(i, l)]).sum();
-            dot.abs() <= 1e-10 * norms[j] * norms[l]
-        })
-    });
+    let orthogonal = diagonal
+        || (m..p).all(|j| {
+            (j + 1..p).all(|l| {
+                let dot: f64 = (m..=j.min(l)).map(|i| r[(i, j)] * r[(i, l)]).sum();
+                dot.abs() <= 1e-10 * norms[j] * norms[l]
+            })
+        });
 
     let press = if leverage.iter().all(|&h| h < 1.0 - 1e-10) {
         Some(

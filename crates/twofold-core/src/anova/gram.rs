@@ -214,10 +214,12 @@ impl Transform {
             let c = candidates[ci];
             let g: Vec<f64> = kept.iter().map(|&j| entry(candidates[j], c)).collect();
             let gcc = entry(c, c);
-            // l = L⁻¹ g (forward substitution).
+            // l = L⁻¹ g (forward substitution; nothing to do for a column orthogonal to all
+            // kept before it, the usual case).
             let mut l = vec![0.0; kept.len()];
-            for i in 0..kept.len() {
-                let s: f64 = (0..i).map(|m| l_rows[i][m] * l[m]).sum();
+            let first = g.iter().position(|&v| v != 0.0).unwrap_or(kept.len());
+            for i in first..kept.len() {
+                let s: f64 = (first..i).map(|m| l_rows[i][m] * l[m]).sum();
                 l[i] = (g[i] - s) / l_rows[i][i];
             }
             let d = gcc - l.iter().map(|v| v * v).sum::<f64>();

@@ -53,6 +53,10 @@ mod equation;
 mod fit;
 mod gram;
 
+/// Most parameters one fit takes: its `(XᵀX)⁻¹` holds the square of this many numbers (4096²
+/// doubles are 128 MiB), so memory stays bounded whatever model is asked for.
+pub const MAX_PARAMETERS: usize = 4096;
+
 pub use distributions::f_upper_p;
 pub(crate) use distributions::{t_quantile, t_two_sided_p};
 pub use equation::{Equation, EquationTerm, Units, format_number};
@@ -144,6 +148,16 @@ pub enum FitError {
         runs: usize,
         /// Intercept, block, term and curvature parameters requested.
         parameters: usize,
+    },
+    /// More parameters than one fit holds (its tables grow with their square).
+    #[error(
+        "the model has {parameters} parameters, more than one fit takes ({max}); choose fewer terms"
+    )]
+    TooManyParameters {
+        /// Intercept, block, term and curvature parameters requested.
+        parameters: usize,
+        /// The most one fit takes ([`MAX_PARAMETERS`]).
+        max: usize,
     },
     /// A term names a factor the design does not have.
     #[error("term `{term}` uses a factor beyond the design's {factor_count} factors")]

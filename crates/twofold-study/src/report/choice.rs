@@ -39,6 +39,11 @@ use super::ReportError;
 /// not complete and balanced (the fit costs the cube of this; common practice, no source).
 pub const FULL_FIT_MAX_TERMS: usize = 512;
 
+/// Most terms the default choice puts in a model (after closing it under hierarchy) before it
+/// turns from Lenth's ME to the simultaneous SME: with thousands of effects, about 5 % of the
+/// inactive ones pass the ME by chance (common practice, no source for the number).
+pub const DEFAULT_MAX_TERMS: usize = 256;
+
 /// Significance level of the pure-error tests that choose the default terms (Montgomery's 5 %).
 pub const TERM_ALPHA: f64 = 0.05;
 
@@ -341,15 +346,31 @@ pub fn default_choice(
                 );
             }
             match lenth {
-                Some(l) => (
-                    effects
-                        .effects
-                        .iter()
-                        .filter(|e| l.classify(e.effect) != Significance::WithinMe)
-                        .map(|e| e.term)
-                        .collect(),
-                    Selection::LenthMargin,
-                ),
+                Some(l) => {
+                    let beyond = |sme_only: bool| -> Vec<Term> {
+                        effects
+                            .effects
+                            .iter()
+                            .filter(|e| match l.classify(e.effect) {
+                                Significance::WithinMe => false,
+                                Significance::BeyondMe => !sme_only,
+                                _ => true,
+                            })
+                            .map(|e| e.term)
+                            .collect()
+                    };
+                    let me = beyond(false);
+                    if hierarchical_closure(&me).len() > DEFAULT_MAX_TERMS {
+                        notes.push(format!(
+                            "of {} effects, {} lie beyond Lenth's ME, more than a model can hold once kept hierarchical (at most {DEFAULT_MAX_TERMS} terms): the effects beyond the SME, which allows for testing so many, are taken instead",
+                            effects.effects.len(),
+                            me.len()
+                        ));
+                        (beyond(true), Selection::LenthMargin)
+                    } else {
+                        (me, Selection::LenthMargin)
+                    }
+                }
                 None => (
                     effects
                         .effects
@@ -436,5 +457,63 @@ mod tests {
             .unwrap();
         assert!((a.ss - 36.0).abs() < 1e-9);
         assert_eq!(choice.selection, Selection::PureErrorTests);
+    }
+
+    #[test]
+    fn thousands_of_effects_choose_by_the_sme_and_a_fit_refuses_too_many_terms() {
+        // An unreplicated 2^12 of noise (a fixed-seed generator: a test input): about 5 % of
+        // 4095 null effects pass Lenth's ME by chance, and kept hierarchical they would fill the
+        // model; the choice turns to the SME and says so. Common practice, no source.
+        let mut state: u64 = 7;
+        let mut uniform = move || {
+            // A 64-bit linear congruential generator (Knuth's MMIX constants).
+            state = state
+                .wrapping_mul(6_364_136_223_846_793_005)
+                .wrapping_add(1_442_695_040_888_963_407);
+            (state >> 11) as f64 / (1u64 << 53) as f64 * 2.0 - 1.0
+        };
+        let k = 12;
+        let levels: Vec<Vec<f64>> = (0..1usize << k)
+            .map(|r| {
+                (0..k)
+                    .map(|f| if r >> f & 1 == 1 { 1.0 } else { -1.0 })
+                    .collect()
+            })
+            .collect();
+        let y: Vec<Option<f64>> = levels
+            .iter()
+            .map(|row| Some(50.0 + 4.0 * row[0] + uniform()))
+            .collect();
+        let obs = Observations::new(k, levels, vec![], y, vec![]).unwrap();
+        let effects = estimate_effects(&obs).unwrap();
+        let lenth = twofold_core::lenth::lenth(&effects.contrasts()).unwrap();
+        let (choice, _) = default_choice(&obs, &effects, Some(&lenth));
+        assert!(
+            choice.notes.iter().any(|n| n.contains("beyond the SME")),
+            "{:?}",
+            choice.notes
+        );
+        assert!(choice.terms.contains(&Term::main(0)));
+        assert!(choice.terms.len() <= DEFAULT_MAX_TERMS);
+        // Every effect of a 2^13 at once: more parameters than one fit takes; refused before
+        // any work.
+        let k = 13;
+        let levels: Vec<Vec<f64>> = (0..1usize << k)
+            .map(|r| {
+                (0..k)
+                    .map(|f| if r >> f & 1 == 1 { 1.0 } else { -1.0 })
+                    .collect()
+            })
+            .collect();
+        let y = vec![Some(1.0); 1 << k];
+        let big = Observations::new(k, levels, vec![], y, vec![]).unwrap();
+        let all: Vec<Term> = (1u32..1 << k).map(Term::from_bits).collect();
+        assert!(matches!(
+            fit_model(&big, &ModelSpec::new(all)),
+            Err(twofold_core::anova::FitError::TooManyParameters {
+                parameters: 8192,
+                ..
+            })
+        ));
     }
 }
