@@ -66,7 +66,7 @@ use crate::columns::term_value;
 use crate::term::{Term, factor_letter};
 use nalgebra::{DMatrix, DVector};
 use serde::{Deserialize, Serialize};
-use std::collections::{BTreeMap, BTreeSet};
+use std::collections::BTreeMap;
 use std::fmt;
 
 /// Which terms to fit, for one response.
@@ -121,17 +121,24 @@ impl ModelSpec {
 /// Every non-empty term contained in one of `terms` (the terms themselves included), in the order
 /// of the trade. For `ABC` this adds A, B, C, AB, AC and BC.
 pub fn hierarchical_closure(terms: &[Term]) -> Vec<Term> {
-    let mut set = BTreeSet::new();
-    for t in terms {
-        let bits = t.bits();
+    let mut seen: std::collections::HashSet<u32> = std::collections::HashSet::new();
+    // Highest order first: a term already in the set brought all its parents with it.
+    let mut sorted: Vec<u32> = terms.iter().map(|t| t.bits()).collect();
+    sorted.sort_unstable_by_key(|b| std::cmp::Reverse(b.count_ones()));
+    for bits in sorted {
+        if seen.contains(&bits) {
+            continue;
+        }
         // Walk the non-empty sub-bitsets of `bits` (standard submask enumeration).
         let mut s = bits;
         while s != 0 {
-            set.insert(Term::from_bits(s));
+            seen.insert(s);
             s = (s - 1) & bits;
         }
     }
-    set.into_iter().collect()
+    let mut out: Vec<Term> = seen.into_iter().map(Term::from_bits).collect();
+    out.sort_unstable();
+    out
 }
 
 /// Why a model cannot be fitted.
