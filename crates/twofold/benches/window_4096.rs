@@ -184,7 +184,12 @@ fn main() {
         b.h.step();
     }
     b.time("Run sheet (scrolled)");
+    let start = Instant::now();
     b.show(Step::Effects);
+    println!(
+        "(the analysis of the study, computed in the first frame of the step here and on a worker in the window: {:.1} s)",
+        start.elapsed().as_secs_f64()
+    );
     b.time("Which effects are real? (4095)");
     b.show(Step::Model);
     b.time("Can the model be trusted?");
@@ -200,27 +205,17 @@ fn main() {
     b.show(Step::NextRuns);
     b.time("What to run next?");
 
-    // A typed value committed with the analysis on its worker, as in the window.
+    // A typed value committed with the analysis on its worker, as in the window: the frame that
+    // applies it and the frames after it must not wait for the analysis (on this study the
+    // analysis takes far longer than the frames measured here).
     let mut b = Bench::new(true);
     for step in [Step::Runs, Step::Effects] {
         b.h.state_mut().set_step(step);
-        let start = Instant::now();
-        while start.elapsed() < Duration::from_secs(120) {
-            b.h.step();
-            if b.h.query_by_label("Computing the analysis…").is_none()
-                && b.h
-                    .query_by_label_contains("Updating the analysis")
-                    .is_none()
-            {
-                break;
-            }
-            std::thread::sleep(Duration::from_millis(5));
-        }
         for _ in 0..4 {
             b.h.step();
         }
         let mut first = Vec::new();
-        let mut settle = Vec::new();
+        let mut after = Vec::new();
         for k in 0..10 {
             let text = format!("{:.2}", 60.0 + k as f64 / 10.0);
             b.h.state_mut()
@@ -232,26 +227,25 @@ fn main() {
                 })));
             let (_, f, _) = b.frame();
             first.push(f);
-            // Until the new report is drawn (the analysis steps only).
-            let start = Instant::now();
-            while step.is_analysis()
-                && (b
-                    .h
-                    .query_by_label_contains("Updating the analysis")
-                    .is_some()
-                    || b.h.query_by_label("Computing the analysis…").is_some())
-                && start.elapsed() < Duration::from_secs(60)
-            {
-                std::thread::sleep(Duration::from_millis(1));
-                b.h.step();
+            for _ in 0..3 {
+                let (_, f, _) = b.frame();
+                after.push(f);
             }
-            settle.push(start.elapsed() + f);
         }
+        let waiting =
+            b.h.query_by_label_contains("Updating the analysis")
+                .is_some()
+                || b.h.query_by_label("Computing the analysis…").is_some();
         let (f50, f90) = summary(first);
-        let (s50, s90) = summary(settle);
+        let (a50, a90) = summary(after);
         println!(
-            "{:<34} first frame {f50:7.2} ms (p90 {f90:7.2})   new report shown after {s50:7.1} ms (p90 {s90:7.1})",
-            format!("Value typed, {}", step.title())
+            "{:<34} first frame {f50:7.2} ms (p90 {f90:7.2})   next frames {a50:7.2} ms (p90 {a90:7.2}){}",
+            format!("Value typed, {}", step.title()),
+            if waiting {
+                "   (analysis still on its worker)"
+            } else {
+                ""
+            }
         );
     }
 }
