@@ -32,7 +32,24 @@ struct Built {
     /// A split-plot study: one half-normal plot per stratum (title, plot, term of each point),
     /// each with its own stratum's Lenth margins.
     strata_half: Vec<(String, HalfNormalPlot, Vec<Term>)>,
+    /// The terms beyond Lenth's ME (what "Choose the effects beyond ME" sets), when there are
+    /// margins, and the list as one line for its hover text.
+    beyond: Option<(Vec<String>, String)>,
+    /// The term list, ranked: each term, its text (stars, "for hierarchy") and accessible name.
+    term_list: Vec<TermEntry>,
 }
+
+/// One entry of the term list, its text made once per data revision.
+#[derive(Debug)]
+struct TermEntry {
+    term: Term,
+    text: String,
+    name: String,
+}
+
+/// Above this many terms the term list draws only the rows in view (a 4096-run design has 4095
+/// terms; drawing every checkbox each frame made the pane slow).
+const TERM_LIST_ALL_DRAWN: usize = 127;
 
 /// Half-normal plot data of `points` with the margins `lenth`.
 fn half_plot(
@@ -40,8 +57,8 @@ fn half_plot(
     points: &[twofold_core::halfnormal::HalfNormalPoint],
     lenth: Option<&twofold_core::lenth::Lenth>,
 ) -> (HalfNormalPlot, Vec<Term>) {
-    let plot = HalfNormalPlot {
-        points: points
+    let plot = HalfNormalPlot::new(
+        points
             .iter()
             .map(|p| HalfNormalPoint {
                 label: p.term.label(),
@@ -51,9 +68,9 @@ fn half_plot(
                 in_model: res.fitted(p.term),
             })
             .collect(),
-        pse: lenth.map(|l| l.pse),
-        me: lenth.map(|l| l.me),
-    };
+        lenth.map(|l| l.pse),
+        lenth.map(|l| l.me),
+    );
     (plot, points.iter().map(|p| p.term).collect())
 }
 
@@ -147,6 +164,39 @@ fn build(view: &View<'_>, res: &Report) -> Option<Built> {
                 .collect()
         })
         .unwrap_or_default();
+    let beyond = res.lenth.as_ref().ok().map(|l| {
+        let beyond: Vec<String> = table
+            .effects
+            .iter()
+            .filter(|e| l.classify(e.effect) != Significance::WithinMe)
+            .map(|e| e.term.label())
+            .collect();
+        let hover = format!("Sets the model to: {}", beyond.join(", "));
+        (beyond, hover)
+    });
+    let term_list = order
+        .iter()
+        .map(|&i| {
+            let t = table.effects[i].term;
+            let label = t.label();
+            let mut text = label.clone();
+            if !res.in_model(t) && res.fitted(t) {
+                text.push_str(" (for hierarchy)");
+            }
+            if let Ok(l) = &res.lenth {
+                match l.classify(table.effects[i].effect) {
+                    Significance::BeyondSme => text.push_str(" **"),
+                    Significance::BeyondMe => text.push_str(" *"),
+                    _ => {}
+                }
+            }
+            TermEntry {
+                term: t,
+                text,
+                name: term_checkbox_label(&label),
+            }
+        })
+        .collect();
     Some(Built {
         key: (res.revision, res.response),
         bars: EffectBars { bars, me, sme },
@@ -154,6 +204,8 @@ fn build(view: &View<'_>, res: &Report) -> Option<Built> {
         half,
         half_terms,
         strata_half,
+        beyond,
+        term_list,
     })
 }
 
@@ -255,22 +307,16 @@ impl Pane for EffectsPane {
                 ui.add_space(8.0);
                 ui.horizontal(|ui| {
                     ui.label(RichText::new("Terms in the model").strong());
-                    if let Ok(l) = &res.lenth {
-                        let beyond: Vec<String> = table
-                            .effects
-                            .iter()
-                            .filter(|e| l.classify(e.effect) != Significance::WithinMe)
-                            .map(|e| e.term.label())
-                            .collect();
+                    if let Some((beyond, hover)) = &built.beyond {
                         let choose = ui
                             .button("Choose the effects beyond ME")
-                            .on_hover_text(format!("Sets the model to: {}", beyond.join(", ")));
+                            .on_hover_text(hover.as_str());
                         // Opening the step puts the keyboard on the usual first decision.
                         super::widgets::prefer_first(ui, choose.id);
                         if choose.clicked() {
                             out.push(Command::Edit(Edit::SetTerms {
                                 response: res.response,
-                                terms: beyond,
+                                terms: beyond.clone(),
                             }));
                         }
                     }
@@ -281,30 +327,7 @@ impl Pane for EffectsPane {
                         }));
                     }
                 });
-                ui.horizontal_wrapped(|ui| {
-                    for &t in &built.bar_terms {
-                        let mut on = res.in_model(t);
-                        let added = !on && res.fitted(t);
-                        let mut text = t.label();
-                        if added {
-                            text.push_str(" (for hierarchy)");
-                        }
-                        if let (Ok(l), Some(e)) = (&res.lenth, table.get(t)) {
-                            match l.classify(e.effect) {
-                                Significance::BeyondSme => text.push_str(" **"),
-                                Significance::BeyondMe => text.push_str(" *"),
-                                _ => {}
-                            }
-                        }
-                        if ui
-                            .checkbox(&mut on, text)
-                            .accessible_name(term_checkbox_label(&t.label()))
-                            .changed()
-                        {
-                            toggle(t, out);
-                        }
-                    }
-                });
+                term_list(ui, &built.term_list, res, out);
                 ui.weak("* beyond ME, ** beyond SME.");
                 if res.missing_runs > 0 || !table.not_estimable.is_empty() {
                     ui.add_space(6.0);
@@ -340,4 +363,50 @@ impl Pane for EffectsPane {
                 }
             });
     }
+}
+
+/// The term list: a checkbox per term, ranked. A long list (more than
+/// [`TERM_LIST_ALL_DRAWN`] terms) sits in its own scrolled box that draws only the rows in view.
+fn term_list(ui: &mut Ui, entries: &[TermEntry], res: &Report, out: &mut Vec<Command>) {
+    let mut checkbox = |ui: &mut Ui, e: &TermEntry| {
+        let mut on = res.in_model(e.term);
+        if ui
+            .checkbox(&mut on, e.text.as_str())
+            .accessible_name(e.name.as_str())
+            .changed()
+        {
+            out.push(Command::Edit(Edit::ToggleTerm {
+                response: res.response,
+                term: e.term.label(),
+            }));
+        }
+    };
+    if entries.len() <= TERM_LIST_ALL_DRAWN {
+        ui.horizontal_wrapped(|ui| {
+            for e in entries {
+                checkbox(ui, e);
+            }
+        });
+        return;
+    }
+    let col_w = 130.0;
+    let per_row = ((ui.available_width() / col_w).floor() as usize).max(1);
+    let rows = entries.len().div_ceil(per_row);
+    let row_h = ui.spacing().interact_size.y.max(20.0);
+    egui::ScrollArea::vertical()
+        .id_salt("term_list")
+        .max_height(8.0 * row_h)
+        .auto_shrink([false, true])
+        .show_rows(ui, row_h, rows, |ui, range| {
+            for row in range {
+                ui.horizontal(|ui| {
+                    for e in entries.iter().skip(row * per_row).take(per_row) {
+                        ui.scope(|ui| {
+                            ui.set_width(col_w - ui.spacing().item_spacing.x);
+                            checkbox(ui, e);
+                        });
+                    }
+                });
+            }
+        });
 }

@@ -244,20 +244,76 @@ pub enum ResidualKind {
     VsOrder,
 }
 
-/// A residual plot.
+/// A residual plot, built once per data revision ([`ResidualPlot::new`] sorts and splits the
+/// points then), so a frame only hands them to the plot.
 #[derive(Debug, Clone, PartialEq)]
 pub struct ResidualPlot {
     /// Which picture.
-    pub kind: ResidualKind,
-    /// `(x, y)` pairs: (quantile, residual), (fitted, residual) or (run, residual).
-    pub points: Vec<(f64, f64)>,
-    /// Run numbers of the points, for hover text.
-    pub runs: Vec<usize>,
+    kind: ResidualKind,
     /// Lines at ±this value mark unusually large residuals (e.g. 3 standard deviations).
-    pub limit: Option<f64>,
+    limit: Option<f64>,
+    /// The points within the limit, and their run numbers (for hover text).
+    usual: Vec<[f64; 2]>,
+    usual_runs: std::sync::Arc<Vec<usize>>,
+    /// The points beyond the limit, and their run numbers.
+    unusual: Vec<[f64; 2]>,
+    unusual_runs: std::sync::Arc<Vec<usize>>,
+    /// The reference line of the normal plot, or the points in run order joined.
+    line: Vec<[f64; 2]>,
+    /// Largest absolute residual or limit (the y range is ± this).
+    ymag: f64,
 }
 
 impl ResidualPlot {
+    /// The plot of `points`: `(x, y)` pairs, (quantile, residual), (fitted, residual) or (run,
+    /// residual); `runs` the run number of each point; lines at ±`limit` mark unusually large
+    /// residuals (e.g. 3 standard deviations).
+    pub fn new(
+        kind: ResidualKind,
+        points: Vec<(f64, f64)>,
+        runs: Vec<usize>,
+        limit: Option<f64>,
+    ) -> Self {
+        let (xlo, xhi) = min_max(points.iter().map(|p| p.0));
+        let ymag = points
+            .iter()
+            .map(|p| p.1.abs())
+            .chain(limit)
+            .fold(0.0_f64, f64::max);
+        let far = |y: f64| limit.is_some_and(|l| y.abs() > l);
+        // Point groups are named so hovering names the group; the run number comes from
+        // the index of the nearest point within its group.
+        let (usual, unusual): (Vec<usize>, Vec<usize>) =
+            (0..points.len()).partition(|&i| !far(points[i].1));
+        let runs_of = |idx: &[usize]| -> Vec<usize> {
+            idx.iter().filter_map(|&i| runs.get(i).copied()).collect()
+        };
+        let pts = |idx: &[usize]| -> Vec<[f64; 2]> {
+            idx.iter().map(|&i| [points[i].0, points[i].1]).collect()
+        };
+        let line: Vec<[f64; 2]> = match kind {
+            ResidualKind::Normal => quartile_line(&points)
+                .map(|(slope, icept)| vec![[xlo, icept + slope * xlo], [xhi, icept + slope * xhi]])
+                .unwrap_or_default(),
+            ResidualKind::VsOrder => {
+                let mut v: Vec<[f64; 2]> = points.iter().map(|p| [p.0, p.1]).collect();
+                v.sort_by(|a, b| a[0].partial_cmp(&b[0]).unwrap_or(std::cmp::Ordering::Equal));
+                v
+            }
+            ResidualKind::VsFitted => Vec::new(),
+        };
+        ResidualPlot {
+            kind,
+            limit,
+            usual: pts(&usual),
+            usual_runs: std::sync::Arc::new(runs_of(&usual)),
+            unusual: pts(&unusual),
+            unusual_runs: std::sync::Arc::new(runs_of(&unusual)),
+            line,
+            ymag,
+        }
+    }
+
     /// Draws the plot in `size` with `egui_plot`, so the engineer can zoom into a cluster of
     /// residuals and read each point's run number on hover (drag to pan, scroll or drag a box to
     /// zoom, double-click to reset).
@@ -273,48 +329,15 @@ impl ResidualPlot {
         ui.vertical(|ui| {
             ui.set_width(size.x);
             ui.label(title);
-            if self.points.is_empty() {
+            if self.usual.is_empty() && self.unusual.is_empty() {
                 ui.weak("Not available yet: no residuals (the model needs more runs than terms).");
                 return;
             }
-            let (xlo, xhi) = min_max(self.points.iter().map(|p| p.0));
-            let ymag = self
-                .points
-                .iter()
-                .map(|p| p.1.abs())
-                .chain(self.limit)
-                .fold(0.0_f64, f64::max);
-            let far = |y: f64| self.limit.is_some_and(|l| y.abs() > l);
-            // Point groups are named so hovering names the group; the run number comes from
-            // the index of the nearest point within its group.
-            let (usual, unusual): (Vec<usize>, Vec<usize>) =
-                (0..self.points.len()).partition(|&i| !far(self.points[i].1));
-            let runs_of = |idx: &[usize]| -> Vec<usize> {
-                idx.iter()
-                    .filter_map(|&i| self.runs.get(i).copied())
-                    .collect()
-            };
-            let usual_runs = runs_of(&usual);
-            let unusual_runs = runs_of(&unusual);
-            let pts = |idx: &[usize]| -> Vec<[f64; 2]> {
-                idx.iter()
-                    .map(|&i| [self.points[i].0, self.points[i].1])
-                    .collect()
-            };
-            let (usual_pts, unusual_pts) = (pts(&usual), pts(&unusual));
-            let line_pts: Vec<[f64; 2]> = match self.kind {
-                ResidualKind::Normal => quartile_line(&self.points)
-                    .map(|(slope, icept)| {
-                        vec![[xlo, icept + slope * xlo], [xhi, icept + slope * xhi]]
-                    })
-                    .unwrap_or_default(),
-                ResidualKind::VsOrder => {
-                    let mut v: Vec<[f64; 2]> = self.points.iter().map(|p| [p.0, p.1]).collect();
-                    v.sort_by(|a, b| a[0].partial_cmp(&b[0]).unwrap_or(std::cmp::Ordering::Equal));
-                    v
-                }
-                ResidualKind::VsFitted => Vec::new(),
-            };
+            let ymag = self.ymag;
+            let usual_runs = std::sync::Arc::clone(&self.usual_runs);
+            let unusual_runs = std::sync::Arc::clone(&self.unusual_runs);
+            let (usual_pts, unusual_pts, line_pts) =
+                (self.usual.clone(), self.unusual.clone(), self.line.clone());
             let kind = self.kind;
             let limit = self.limit;
             let (accent, warn, muted, grid) = (pal.accent, pal.warn, pal.muted, pal.grid);

@@ -37,31 +37,30 @@ fn build(res: &Report) -> Option<[ResidualPlot; 3]> {
     };
     let normal = d.normal_plot();
     Some([
-        ResidualPlot {
-            kind: ResidualKind::Normal,
-            points: normal
+        ResidualPlot::new(
+            ResidualKind::Normal,
+            normal
                 .iter()
                 .map(|p| (p.normal_score, p.residual))
                 .collect(),
-            runs: normal.iter().map(|p| run_no(p.run)).collect(),
-            limit: None,
-        },
-        ResidualPlot {
-            kind: ResidualKind::VsFitted,
-            points: d.runs.iter().map(|r| (r.fitted, r.residual)).collect(),
-            runs: d.runs.iter().map(|r| run_no(r.run)).collect(),
+            normal.iter().map(|p| run_no(p.run)).collect(),
+            None,
+        ),
+        ResidualPlot::new(
+            ResidualKind::VsFitted,
+            d.runs.iter().map(|r| (r.fitted, r.residual)).collect(),
+            d.runs.iter().map(|r| run_no(r.run)).collect(),
             limit,
-        },
-        ResidualPlot {
-            kind: ResidualKind::VsOrder,
-            points: d
-                .runs
+        ),
+        ResidualPlot::new(
+            ResidualKind::VsOrder,
+            d.runs
                 .iter()
                 .map(|r| (run_no(r.run) as f64, r.residual))
                 .collect(),
-            runs: d.runs.iter().map(|r| run_no(r.run)).collect(),
+            d.runs.iter().map(|r| run_no(r.run)).collect(),
             limit,
-        },
+        ),
     ])
 }
 

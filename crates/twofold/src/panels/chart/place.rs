@@ -25,7 +25,11 @@ pub fn place(
         let free = |r: &Rect| {
             bounds.contains_rect(*r) && placed.iter().all(|p| !p.expand(gap).intersects(*r))
         };
-        let clear = |r: &Rect| obstacles.iter().all(|o| !o.intersects(*r));
+        // Only the obstacles within reach of this label's candidates can be in its way (a
+        // chart of thousands of points has most of them far away).
+        let reach = candidates.iter().fold(Rect::NOTHING, |a, r| a.union(*r));
+        let near: Vec<&Rect> = obstacles.iter().filter(|o| o.intersects(reach)).collect();
+        let clear = |r: &Rect| near.iter().all(|o| !o.intersects(*r));
         let chosen = candidates
             .iter()
             .find(|r| free(r) && clear(r))

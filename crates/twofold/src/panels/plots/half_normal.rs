@@ -23,47 +23,70 @@ pub struct HalfNormalPoint {
 }
 
 /// The half-normal plot of absolute effects; clicking a point toggles its term.
+///
+/// Built once per data revision ([`HalfNormalPlot::new`] ranks the points then), so a frame
+/// only paints.
 #[derive(Debug, Clone, PartialEq, Default)]
 pub struct HalfNormalPlot {
     /// The points.
-    pub points: Vec<HalfNormalPoint>,
+    points: Vec<HalfNormalPoint>,
     /// Lenth's pseudo standard error: the reference line is `|effect| = PSE × quantile`.
-    pub pse: Option<f64>,
+    pse: Option<f64>,
     /// Lenth's margin of error, drawn as a vertical line.
-    pub me: Option<f64>,
+    me: Option<f64>,
+    /// Indices of the points, largest absolute effect first.
+    rank: Vec<usize>,
+    /// The points that carry a label, in the order they claim a place.
+    labelled: Vec<usize>,
 }
 
 /// Besides the model's terms, this many of the largest effects carry a label; the small effects
 /// near zero are named on hover only.
 const LABELLED_LARGEST: usize = 5;
 
+/// Besides the model's terms, this many of the largest effects answer the mouse (hover names
+/// them, a click toggles the term). The crowd of small effects near zero is only painted: its
+/// points overlap, and the term list reaches each of them.
+const POINTS_ANSWERING: usize = 255;
+
 const MARKER_R: f32 = 5.0;
 const LABEL_SIZE: f32 = 13.0;
 
 impl HalfNormalPlot {
-    /// Indices of the points, largest absolute effect first.
-    fn ranked(&self) -> Vec<usize> {
-        let mut rank: Vec<usize> = (0..self.points.len()).collect();
+    /// The plot of `points` with Lenth's PSE (reference line) and ME (vertical line).
+    pub fn new(points: Vec<HalfNormalPoint>, pse: Option<f64>, me: Option<f64>) -> Self {
+        let mut rank: Vec<usize> = (0..points.len()).collect();
         rank.sort_by(|&a, &b| {
-            self.points[b]
+            points[b]
                 .abs_effect
-                .partial_cmp(&self.points[a].abs_effect)
+                .partial_cmp(&points[a].abs_effect)
                 .unwrap_or(std::cmp::Ordering::Equal)
         });
-        rank
-    }
-
-    /// The points that get a label, in the order they claim a place: the model's terms, then
-    /// the largest other effects (each group largest first).
-    pub fn labelled(&self) -> Vec<usize> {
-        let rank = self.ranked();
-        let in_model = rank.iter().copied().filter(|&i| self.points[i].in_model);
+        let in_model = rank.iter().copied().filter(|&i| points[i].in_model);
         let largest = rank
             .iter()
             .copied()
             .take(LABELLED_LARGEST)
-            .filter(|&i| !self.points[i].in_model);
-        in_model.chain(largest).collect()
+            .filter(|&i| !points[i].in_model);
+        let labelled = in_model.chain(largest).collect();
+        HalfNormalPlot {
+            points,
+            pse,
+            me,
+            rank,
+            labelled,
+        }
+    }
+
+    /// The points.
+    pub fn points(&self) -> &[HalfNormalPoint] {
+        &self.points
+    }
+
+    /// The points that get a label, in the order they claim a place: the model's terms, then
+    /// the largest other effects (each group largest first).
+    pub fn labelled(&self) -> &[usize] {
+        &self.labelled
     }
 
     /// Draws the plot; returns the index of a clicked point. The points answer the mouse only:
@@ -128,36 +151,50 @@ impl HalfNormalPlot {
         }
         let base_id = ui.scope_id().with("half_normal");
         let mut clicked = None;
+        // A painted marker's pixel and look: a point that would paint the same marker on the same
+        // pixel as one already painted adds nothing to the picture (thousands of small effects
+        // crowd near zero).
+        let mut painted = std::collections::HashSet::new();
         // Small effects first so the large ones are painted on top.
-        for &i in self.ranked().iter().rev() {
+        for (k, &i) in self.rank.iter().enumerate().rev() {
             let p = &self.points[i];
             let c = frame.to_screen(p.abs_effect, p.quantile);
+            if k >= POINTS_ANSWERING && !p.in_model {
+                let pixel = (c.x.round() as i32, c.y.round() as i32, p.positive);
+                if painted.insert(pixel) {
+                    paint_effect_marker(ui, c, p.positive, false, MARKER_R, pal);
+                }
+                continue;
+            }
             let hit = Rect::from_center_size(c, vec2(16.0, 16.0));
             // Clicks and hover only: the chart is no stop of the Tab key.
             let resp = ui.interact(hit, base_id.with(i), Sense::CLICK);
-            let name = format!("point {}", p.label);
-            resp.widget_info(|| WidgetInfo::selected(Role::Button, true, p.in_model, &name));
+            resp.widget_info(|| {
+                WidgetInfo::selected(Role::Button, true, p.in_model, format!("point {}", p.label))
+            });
             if resp.clicked() {
                 clicked = Some(i);
             }
             let hovered = resp.hovered();
-            resp.on_hover_text(format!(
-                "{} {}: |effect| {}. Click to {} the model.",
-                p.label,
-                sign_label(p.positive),
-                fmt_num(p.abs_effect, 4),
-                if p.in_model {
-                    "remove it from"
-                } else {
-                    "add it to"
-                }
-            ));
+            resp.on_hover_ui(|ui| {
+                ui.label(format!(
+                    "{} {}: |effect| {}. Click to {} the model.",
+                    p.label,
+                    sign_label(p.positive),
+                    fmt_num(p.abs_effect, 4),
+                    if p.in_model {
+                        "remove it from"
+                    } else {
+                        "add it to"
+                    }
+                ));
+            });
             let r = if hovered { MARKER_R + 1.5 } else { MARKER_R };
             paint_effect_marker(ui, c, p.positive, p.in_model, r, pal);
         }
         // Labels of the points that matter, each where it overlaps no other label.
         let font = FontId::proportional(LABEL_SIZE);
-        let order = self.labelled();
+        let order = &self.labelled;
         let galleys: Vec<_> = order
             .iter()
             .map(|&i| {
@@ -219,11 +256,7 @@ mod tests {
         points.push(point("B", 6.0, false));
         // A small effect chosen into the model still carries its label.
         points[0].in_model = true;
-        let plot = HalfNormalPlot {
-            points,
-            pse: None,
-            me: None,
-        };
+        let plot = HalfNormalPlot::new(points, None, None);
         let names: Vec<&str> = plot
             .labelled()
             .iter()
