@@ -578,21 +578,7 @@ fn effects_by_completion(
     Some((effects_by_transform(aliasing, &z, &kept), lost))
 }
 
-/// In-place fast Walsh–Hadamard transform: `v[κ] ← Σ_x v[x]·(−1)^{|x ∧ κ|}` (length a power of 2).
-fn fwht(v: &mut [f64]) {
-    let n = v.len();
-    let mut h = 1;
-    while h < n {
-        for i in (0..n).step_by(2 * h) {
-            for j in i..i + h {
-                let (a, b) = (v[j], v[j + h]);
-                v[j] = a + b;
-                v[j + h] = a - b;
-            }
-        }
-        h *= 2;
-    }
-}
+use crate::anova::gram::fwht;
 
 fn effects_by_transform(
     aliasing: &AliasStructure,

@@ -26,3 +26,21 @@ pub(crate) fn observations(k: usize, levels: Vec<Vec<f64>>, y: &[f64]) -> Observ
     )
     .unwrap()
 }
+
+/// Every p-subset of `0..m`, in lexicographic order, handed to `visit` (nothing when p > m).
+pub(crate) fn all_subsets(m: usize, p: usize, mut visit: impl FnMut(&[usize])) {
+    if p > m {
+        return;
+    }
+    let mut idx: Vec<usize> = (0..p).collect();
+    loop {
+        visit(&idx);
+        let Some(i) = (0..p).rev().find(|&i| idx[i] < m - p + i) else {
+            return;
+        };
+        idx[i] += 1;
+        for j in i + 1..p {
+            idx[j] = idx[j - 1] + 1;
+        }
+    }
+}

@@ -24,7 +24,9 @@ fn write_table(path: &Path) -> std::io::Result<()> {
     writeln!(out, "{},Y", header.join(","))?;
     let mut state: u64 = 20_261_205;
     for r in 0..1usize << k {
-        let x: Vec<i32> = (0..k).map(|f| if r >> f & 1 == 1 { 1 } else { -1 }).collect();
+        let x: Vec<i32> = (0..k)
+            .map(|f| if r >> f & 1 == 1 { 1 } else { -1 })
+            .collect();
         state = state
             .wrapping_mul(6_364_136_223_846_793_005)
             .wrapping_add(1_442_695_040_888_963_407);
@@ -97,7 +99,9 @@ fn main() {
         c.arg(&script).arg(&table);
         c
     });
-    println!("2^16 table, 137-column model (intercept, 16 main effects, 120 two-factor interactions)");
+    println!(
+        "2^16 table, 137-column model (intercept, 16 main effects, 120 two-factor interactions)"
+    );
     let show = |what: &str, r: &Result<Duration, String>| match r {
         Ok(d) => println!("  {what:<44} {:>8.3} s", d.as_secs_f64()),
         Err(e) => println!("  {what:<44} not run: {e}"),

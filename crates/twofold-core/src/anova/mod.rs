@@ -51,7 +51,7 @@
 mod distributions;
 mod equation;
 mod fit;
-mod gram;
+pub(crate) mod gram;
 
 /// Most parameters one fit takes: its `(XᵀX)⁻¹` holds the square of this many numbers (4096²
 /// doubles are 128 MiB), so memory stays bounded whatever model is asked for.

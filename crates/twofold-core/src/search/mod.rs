@@ -395,20 +395,7 @@ mod tests {
         SearchBudget::new(Duration::from_secs(secs))
     }
 
-    /// Every p-subset of the interaction columns of the 2^q factorial, in lexicographic order.
-    fn all_subsets(m: usize, p: usize, mut visit: impl FnMut(&[usize])) {
-        let mut idx: Vec<usize> = (0..p).collect();
-        loop {
-            visit(&idx);
-            let Some(i) = (0..p).rev().find(|&i| idx[i] < m - p + i) else {
-                return;
-            };
-            idx[i] += 1;
-            for j in i + 1..p {
-                idx[j] = idx[j - 1] + 1;
-            }
-        }
-    }
+    use crate::test_support::all_subsets;
 
     /// The smallest word-length pattern over every fraction, by listing them all.
     fn exhaustive_minimum(k: usize, q: usize) -> Vec<u64> {

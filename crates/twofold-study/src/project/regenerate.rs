@@ -220,7 +220,7 @@ pub(crate) fn fraction_of(
 }
 
 /// The hard-to-change factors of `project` (0-based).
-pub(crate) fn hard_to_change_of(project: &Project) -> Vec<usize> {
+pub fn hard_to_change_of(project: &Project) -> Vec<usize> {
     project
         .factors
         .iter()

@@ -1,28 +1,11 @@
 use super::*;
 use crate::alias::word_length_pattern;
 use crate::splitplot::{Stratum, stratum_of, whole_plots_of};
+use crate::test_support::all_subsets;
 use std::time::Duration;
 
 fn budget() -> SearchBudget {
     SearchBudget::new(Duration::from_secs(30))
-}
-
-/// Every p-subset of `0..m` in lexicographic order.
-fn all_subsets(m: usize, p: usize, mut visit: impl FnMut(&[usize])) {
-    if p > m {
-        return;
-    }
-    let mut idx: Vec<usize> = (0..p).collect();
-    loop {
-        visit(&idx);
-        let Some(i) = (0..p).rev().find(|&i| idx[i] < m - p + i) else {
-            return;
-        };
-        idx[i] += 1;
-        for j in i + 1..p {
-            idx[j] = idx[j - 1] + 1;
-        }
-    }
 }
 
 /// Whether `design` is a split plot with the factors `hard` in `w` whole plots: its runs have

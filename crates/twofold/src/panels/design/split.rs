@@ -72,15 +72,7 @@ fn search(k: usize, htc: &[usize]) -> Found {
     Ok(out)
 }
 
-fn hard_to_change(project: &Project) -> Vec<usize> {
-    project
-        .factors
-        .iter()
-        .enumerate()
-        .filter(|(_, f)| f.hard_to_change)
-        .map(|(i, _)| i)
-        .collect()
-}
+use twofold_study::project::regenerate::hard_to_change_of as hard_to_change;
 
 /// The table of split-plot fractions, when some factor is hard to change.
 pub(super) fn table(
