@@ -93,25 +93,24 @@ impl BoxCox {
     }
 }
 
-/// The profile log-likelihood `L(λ)` for a response `y` (all positive) with log geometric mean
-/// `log_gm`, given a function returning the residual SS of the model for any response vector.
+/// The profile log-likelihood `L(λ)` for a response whose logarithms are `ln_y` (all values
+/// positive) with log geometric mean `log_gm`, given a function returning the residual SS of the
+/// model for any response vector.
 fn log_likelihood(
     lambda: f64,
-    y: &[f64],
+    ln_y: &[f64],
     log_gm: f64,
     ss: &dyn Fn(&[f64]) -> Option<f64>,
 ) -> Option<f64> {
     let gm = log_gm.exp();
     let z: Vec<f64> = if lambda == 0.0 {
-        y.iter().map(|v| gm * v.ln()).collect()
+        ln_y.iter().map(|l| gm * l).collect()
     } else {
         let scale = lambda * ((lambda - 1.0) * log_gm).exp();
-        y.iter()
-            .map(|v| (lambda * v.ln()).exp_m1() / scale)
-            .collect()
+        ln_y.iter().map(|l| (lambda * l).exp_m1() / scale).collect()
     };
     let s = ss(&z)?;
-    let n = y.len() as f64;
+    let n = ln_y.len() as f64;
     (s > 0.0).then(|| -0.5 * n * (s / n).ln())
 }
 
@@ -150,7 +149,8 @@ pub fn box_cox(obs: &Observations, spec: &ModelSpec) -> Result<BoxCox, BoxCoxErr
         let f = fit_model(&o, spec).ok()?;
         Some(f.residuals.iter().map(|e| e * e).sum())
     };
-    let ll = |l: f64| log_likelihood(l, &y, log_gm, &ss);
+    let ln_y: Vec<f64> = y.iter().map(|v| v.ln()).collect();
+    let ll = |l: f64| log_likelihood(l, &ln_y, log_gm, &ss);
 
     let (lo, hi) = LAMBDA_RANGE;
     let steps = ((hi - lo) / GRID_STEP).round() as usize;

@@ -6,7 +6,7 @@ use crate::data::Observations;
 use crate::prec::RANK_REL;
 use crate::term::Term;
 use nalgebra::{DMatrix, DVector};
-use std::collections::{BTreeMap, BTreeSet};
+use std::collections::BTreeSet;
 
 use super::*;
 
@@ -17,25 +17,56 @@ use super::*;
 pub(super) fn pure_error_of<'a>(
     runs: impl Iterator<Item = ((u32, &'a [f64]), f64)>,
 ) -> (f64, usize) {
-    let mut groups: BTreeMap<(u32, Vec<i8>), (usize, f64)> = BTreeMap::new();
-    let mut keyed: Vec<((u32, Vec<i8>), f64)> = Vec::new();
+    // Settings at −1, 0 or +1 pack into two bits a factor (25 factors fit in 64 bits); any other
+    // value keeps the whole row as its key.
+    #[derive(PartialEq, Eq, Hash)]
+    enum Key {
+        Packed(u32, u64),
+        Row(u32, Vec<i8>),
+    }
+    let key_of = |block: u32, row: &[f64]| -> Key {
+        let mut packed = 0u64;
+        let mut ok = row.len() <= 32;
+        for (f, &v) in row.iter().enumerate() {
+            let code = match v as i8 {
+                -1 => 1u64,
+                0 => 2,
+                1 => 3,
+                _ => {
+                    ok = false;
+                    0
+                }
+            };
+            if ok {
+                packed |= code << (2 * f);
+            }
+        }
+        if ok {
+            Key::Packed(block, packed)
+        } else {
+            Key::Row(block, row.iter().map(|&v| v as i8).collect())
+        }
+    };
+    let mut index: std::collections::HashMap<Key, usize> = std::collections::HashMap::new();
+    let mut groups: Vec<(usize, f64)> = Vec::new();
+    let mut member: Vec<(usize, f64)> = Vec::new();
     for ((block, row), y) in runs {
-        let key: Vec<i8> = row.iter().map(|&v| v as i8).collect();
-        let g = groups.entry((block, key.clone())).or_insert((0, 0.0));
-        g.0 += 1;
-        g.1 += y;
-        keyed.push(((block, key), y));
+        let next = groups.len();
+        let g = *index.entry(key_of(block, row)).or_insert(next);
+        if g == next {
+            groups.push((0, 0.0));
+        }
+        groups[g].0 += 1;
+        groups[g].1 += y;
+        member.push((g, y));
     }
     // Two passes (means, then squared deviations) to keep the precision of the textbook formula.
-    let mut ss = 0.0;
-    for (key, y) in &keyed {
-        if let Some(&(m, sum)) = groups.get(key)
-            && m > 1
-        {
-            ss += (y - sum / m as f64).powi(2);
-        }
-    }
-    let df = groups.values().map(|g| g.0 - 1).sum();
+    let ss = member
+        .iter()
+        .filter(|(g, _)| groups[*g].0 > 1)
+        .map(|&(g, y)| (y - groups[g].1 / groups[g].0 as f64).powi(2))
+        .sum();
+    let df = groups.iter().map(|g| g.0 - 1).sum();
     (ss, df)
 }
 
