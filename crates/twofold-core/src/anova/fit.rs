@@ -82,6 +82,32 @@ pub fn pure_error(obs: &Observations) -> (f64, usize) {
     }))
 }
 
+/// The block labels present, ascending.
+fn labels_of(block_of: &[u32]) -> Vec<u32> {
+    let s: BTreeSet<u32> = block_of.iter().copied().collect();
+    s.into_iter().collect()
+}
+
+/// The transform view of the runs `runs` of `obs` (blocks `block_of`, labels `labels`), or `None`
+/// when they are not a two-level table (see [`gram::Transform::new`]).
+fn transform_of(
+    obs: &Observations,
+    runs: &[usize],
+    block_of: &[u32],
+    labels: &[u32],
+) -> Option<gram::Transform> {
+    let levels = obs.levels();
+    let index: Vec<usize> = block_of
+        .iter()
+        .map(|b| labels.iter().position(|l| l == b).unwrap_or(0))
+        .collect();
+    let rows: Vec<&[f64]> = runs
+        .iter()
+        .map(|&r| levels.get(r).map_or(&[][..], Vec::as_slice))
+        .collect();
+    gram::Transform::new(obs.factor_count(), &rows, index, labels.len())
+}
+
 /// The residual sum of squares of `fit`'s model on the same runs for another response `z` (one
 /// value per run of `fit.runs`), without fitting again: `Σ(z − z̄)² − gᵀ(XᵀX)⁻¹g` with
 /// `g = Xᵀ(z − z̄)` by the transform (the model holds the intercept, so centring changes nothing
@@ -90,22 +116,9 @@ pub fn residual_ss_for<'a>(
     fit: &'a ModelFit,
     obs: &Observations,
 ) -> Option<impl Fn(&[f64]) -> f64 + 'a> {
-    let levels = obs.levels();
     let block_of: Vec<u32> = fit.runs.iter().map(|&r| obs.blocks()[r]).collect();
-    let labels: Vec<u32> = {
-        let s: BTreeSet<u32> = block_of.iter().copied().collect();
-        s.into_iter().collect()
-    };
-    let index: Vec<usize> = block_of
-        .iter()
-        .map(|b| labels.iter().position(|l| l == b).unwrap_or(0))
-        .collect();
-    let rows: Vec<&[f64]> = fit
-        .runs
-        .iter()
-        .map(|&r| levels.get(r).map_or(&[][..], Vec::as_slice))
-        .collect();
-    let t = gram::Transform::new(obs.factor_count(), &rows, index, labels.len())?;
+    let labels = labels_of(&block_of);
+    let t = transform_of(obs, &fit.runs, &block_of, &labels)?;
     Some(move |z: &[f64]| {
         let mean = z.iter().sum::<f64>() / z.len().max(1) as f64;
         let zc: Vec<f64> = z.iter().map(|v| v - mean).collect();
@@ -300,10 +313,7 @@ pub fn fit_model(obs: &Observations, spec: &ModelSpec) -> Result<ModelFit, FitEr
         .map(|&r| obs.response()[r].unwrap_or(0.0))
         .collect();
     let block_of: Vec<u32> = runs.iter().map(|&r| obs.blocks()[r]).collect();
-    let labels: Vec<u32> = {
-        let s: BTreeSet<u32> = block_of.iter().copied().collect();
-        s.into_iter().collect()
-    };
+    let labels = labels_of(&block_of);
     let centre: Vec<bool> = runs.iter().map(|&r| obs.is_centre(r)).collect();
     let centre_runs = centre.iter().filter(|&&c| c).count();
     let with_curvature = spec.curvature && centre_runs > 0 && centre_runs < n;
@@ -335,12 +345,7 @@ pub fn fit_model(obs: &Observations, spec: &ModelSpec) -> Result<ModelFit, FitEr
 
     // A two-level table (every used run at ±1 or at the centre) is solved from its cross
     // products by the transform, without building the columns; anything else densely.
-    let block_index: Vec<usize> = block_of
-        .iter()
-        .map(|b| labels.iter().position(|l| l == b).unwrap_or(0))
-        .collect();
-    let rows: Vec<&[f64]> = runs.iter().map(|&r| levels[r].as_slice()).collect();
-    let transform = gram::Transform::new(k, &rows, block_index, labels.len());
+    let transform = transform_of(obs, &runs, &block_of, &labels);
     let solved = match &transform {
         Some(t) => t.solve(&kinds, &labels, &y),
         None => dense_solve(&kinds, &runs, levels, &block_of, &labels, &centre, &y),

@@ -218,10 +218,13 @@ fn draft_plots(
         if runs == 1usize.checked_shl(k as u32).unwrap_or(0) {
             FractionalDesign::full(k).ok()?
         } else {
-            // No generators yet: the engine takes the split-plot fraction of this size.
-            split_plot_fraction(k, htc, runs, None, &SearchBudget::default())
-                .ok()?
-                .design
+            // No generators yet: the engine takes the split-plot fraction of this size with as
+            // many whole plots as it allows, which by construction holds no easy factor fixed;
+            // its count is known without searching (the search stays off the drawing thread).
+            let most = whole_plot_choices(htc.len(), k - htc.len(), runs)
+                .into_iter()
+                .max()?;
+            return Some((most, Vec::new()));
         }
     } else {
         FractionalDesign::from_text(k, Some(runs), &draft.generators.join(",")).ok()?
