@@ -790,3 +790,57 @@ fn replicated_split_plot_agrees_with_statsmodels() {
         );
     }
 }
+
+/// A 2^12 with more empty cells than the completion takes (`MAX_COMPLETION_CELLS`): the lowest
+/// chains are estimated, the rest counted in `effects_left_out`, and a warning says so. The data
+/// are exact (y = 50 + 3A + 2B + AB), so the effects are known whatever the route (common
+/// practice, no source).
+#[test]
+fn a_table_with_thousands_of_missing_runs_estimates_its_lowest_effects_and_says_so() {
+    let letters = "ABCDEFGHJKLM";
+    let mut text = letters
+        .chars()
+        .map(String::from)
+        .collect::<Vec<_>>()
+        .join(",");
+    text.push_str(",Y\n");
+    let mut missing = 0;
+    for r in 0..4096usize {
+        let x: Vec<i32> = (0..12)
+            .map(|f| if r >> f & 1 == 1 { 1 } else { -1 })
+            .collect();
+        let row: Vec<String> = x.iter().map(ToString::to_string).collect();
+        // Runs whose index has a remainder of 0, 1 or 2 on division by 5 (2 458 of them) have
+        // no value yet.
+        if r % 5 < 3 {
+            missing += 1;
+            text.push_str(&format!("{},\n", row.join(",")));
+        } else {
+            let y = 50.0 + 3.0 * f64::from(x[0]) + 2.0 * f64::from(x[1]) + f64::from(x[0] * x[1]);
+            text.push_str(&format!("{},{y}\n", row.join(",")));
+        }
+    }
+    assert_eq!(missing, 2458);
+    let csv = TempCsv::new(&text);
+    let j = analyze_json(&csv, &["--terms", "A,B,AB"]);
+    let left = j["effects_left_out"].as_u64().unwrap_or(0) as usize;
+    let shown = j["effects"].as_array().map_or(0, Vec::len);
+    let lost = j["not_estimable"].as_array().map_or(0, Vec::len);
+    assert_eq!(left + shown + lost, 4095);
+    assert_eq!(shown + lost, twofold_core::effects::REDUCED_CHAINS);
+    assert_close(
+        number(&find(&j["effects"], "term", "A")["effect"], "A"),
+        6.0,
+        1e-9,
+        "A",
+    );
+    assert_close(
+        number(&find(&j["effects"], "term", "AB")["effect"], "AB"),
+        2.0,
+        1e-9,
+        "AB",
+    );
+    let warnings = j["warnings"].to_string();
+    assert!(warnings.contains("2458 runs missing"), "{warnings}");
+    assert!(warnings.contains("left in the residual"), "{warnings}");
+}

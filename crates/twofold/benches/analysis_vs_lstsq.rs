@@ -10,10 +10,13 @@
 //!
 //! Run with `cargo bench -p twofold --bench analysis_vs_lstsq`.
 
+mod common;
+
+use common::best_of_three;
 use std::io::Write;
 use std::path::{Path, PathBuf};
-use std::process::{Command, Stdio};
-use std::time::{Duration, Instant};
+use std::process::Command;
+use std::time::Duration;
 
 const LETTERS: &str = "ABCDEFGHJKLMNOPQ";
 
@@ -38,25 +41,6 @@ fn write_table(path: &Path) -> std::io::Result<()> {
         writeln!(out, "{},{y:.4}", cells.join(","))?;
     }
     out.flush()
-}
-
-/// The fastest of three runs of `cmd`, or why it could not run.
-fn best_of_three(mut make: impl FnMut() -> Command) -> Result<Duration, String> {
-    let mut best = Duration::MAX;
-    for _ in 0..3 {
-        let start = Instant::now();
-        let status = make()
-            .stdout(Stdio::null())
-            .stderr(Stdio::piped())
-            .output()
-            .map_err(|e| e.to_string())?;
-        let took = start.elapsed();
-        if !status.status.success() {
-            return Err(String::from_utf8_lossy(&status.stderr).trim().to_string());
-        }
-        best = best.min(took);
-    }
-    Ok(best)
 }
 
 fn main() {

@@ -386,6 +386,21 @@ impl Report {
                     ),
                 );
             }
+            if table.left_out > 0 {
+                let tried = table.effects.len() + table.not_estimable.len();
+                push_warning(
+                    &mut warnings,
+                    WarningKind::Effects,
+                    format!(
+                        "With {} runs missing, separating all {} effects would take more time and \
+                         memory than a desk computer has: only the {tried} lowest (main effects \
+                         first) are estimated and shown; the other {} are left in the residual.",
+                        self.missing_runs + self.bad_cells.len(),
+                        tried + table.left_out + table.confounded_with_blocks.len(),
+                        table.left_out,
+                    ),
+                );
+            }
             for term in &self.chosen_terms {
                 if let Some(rep) = table.aliasing.representative_of(*term)
                     && let Some(e) = table.get(rep.term)

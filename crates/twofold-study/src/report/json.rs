@@ -48,7 +48,8 @@ pub(super) fn labels(terms: &[Term]) -> Vec<String> {
 ///
 /// Keys: `response`, `transform`, `factors`, `runs` (`total`, `factorial_used`, `centre_used`,
 /// `missing`, `excluded`), `method`, `defining_relation`, `generators`, `effects` (`term`,
-/// `aliases`, `effect`, `coefficient`, `lenth`), `not_estimable`, `confounded_with_blocks`,
+/// `aliases`, `effect`, `coefficient`, `lenth`), `not_estimable`, `effects_left_out` (chains not
+/// tried, to keep the work bounded), `confounded_with_blocks`,
 /// `lenth` (`pse`, `me`, `sme`, `df`, `s0`, `m`, `t_me`, `t_sme`, `gamma`, or null with
 /// `lenth_note`), `half_normal` (`term`, `effect`, `abs_effect`, `rank`, `quantile`),
 /// `normal_probability`, `error_basis` (`pure_error`, `residual` or `lenth_pse`: which error the
@@ -126,6 +127,7 @@ pub fn report_json(r: &Report) -> Result<Value, String> {
         "generators": e.aliasing.generators().iter().map(|g| g.label()).collect::<Vec<_>>(),
         "effects": effects,
         "not_estimable": labels(&e.not_estimable),
+        "effects_left_out": e.left_out,
         "confounded_with_blocks": labels(&e.confounded_with_blocks),
         "lenth": lenth_value,
         "half_normal": r.half_normal.iter().map(|p| json!({

@@ -89,6 +89,13 @@ pub fn report_text(r: &Report) -> Result<String, String> {
             labels(&e.not_estimable).join(", ")
         );
     }
+    if e.left_out > 0 {
+        let _ = writeln!(
+            s,
+            "Left out to keep the work bounded (highest chains): {}",
+            e.left_out
+        );
+    }
     if !e.confounded_with_blocks.is_empty() {
         let _ = writeln!(
             s,
