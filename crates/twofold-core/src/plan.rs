@@ -130,6 +130,7 @@ impl Plan {
 /// Builds the plan.
 pub fn build_plan(spec: &PlanSpec) -> Result<Plan, PlanError> {
     let design = &spec.design;
+    refuse_early(spec, design.base_runs())?;
     let scheme = match &spec.blocking {
         Blocking::None => scheme_from_generators(design, &[])?,
         Blocking::Count(n) => choose_scheme(design, *n)?,
@@ -152,6 +153,7 @@ pub fn build_fold_over_plan(spec: &PlanSpec, fold: &FoldOver) -> Result<Plan, Pl
     if spec.blocking != Blocking::None || spec.replicates_as_blocks {
         return Err(PlanError::FoldWithBlocks);
     }
+    refuse_early(spec, spec.design.base_runs().saturating_mul(2))?;
     let scheme = scheme_from_generators(&spec.design, &[])?;
     let halves = [spec.design.coded_runs(), fold.follow_up_runs.clone()];
     let (runs, block_count) = lay_out(spec, &halves, &scheme)?;
@@ -171,6 +173,7 @@ pub fn build_added_block_plan(spec: &PlanSpec, added: &[Vec<i8>]) -> Result<Plan
     if spec.blocking != Blocking::None || spec.replicates_as_blocks {
         return Err(PlanError::FoldWithBlocks);
     }
+    refuse_early(spec, spec.design.base_runs().saturating_add(added.len()))?;
     let scheme = scheme_from_generators(&spec.design, &[])?;
     let halves = [spec.design.coded_runs(), added.to_vec()];
     let (runs, block_count) = lay_out(spec, &halves, &scheme)?;
@@ -180,6 +183,17 @@ pub fn build_added_block_plan(spec: &PlanSpec, added: &[Vec<i8>]) -> Result<Plan
         block_count,
         runs,
     })
+}
+
+/// Refuses a plan whose base runs times its replicates exceed [`MAX_PLAN_RUNS`] before any row is
+/// written out, so a request far too large costs nothing (the exact total, centre points
+/// included, is checked again when the runs are laid out).
+fn refuse_early(spec: &PlanSpec, base_runs: usize) -> Result<(), PlanError> {
+    let total = base_runs.saturating_mul(spec.replicates.max(1));
+    if total > MAX_PLAN_RUNS {
+        return Err(PlanError::TooLarge(total));
+    }
+    Ok(())
 }
 
 /// Lays out one or more sets of base rows (each set its own group of blocks): replicates,
