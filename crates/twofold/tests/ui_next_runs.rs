@@ -331,3 +331,36 @@ fn the_half_chosen_for_a_semifold_adds_the_runs_plan_gives_for_it() {
     h.run();
     assert_eq!(h.state().project(), &before, "one undo step");
 }
+
+#[test]
+fn the_design_step_counts_the_follow_up_block_in_the_run_total() {
+    use twofold_core::semifold::SemiFold;
+    for (follow_up, total) in [
+        // Counted by hand: the eight runs of the fraction and the eight of its fold-over.
+        (
+            FollowUp::FoldOver(FoldKind::Full),
+            "16 runs: 8 in the fraction, 8 in the fold-over block",
+        ),
+        // Half the fold-over on A: the four fold-over runs with B at +.
+        (
+            FollowUp::SemiFold(SemiFold::with_default_half(FoldKind::Factor(0))),
+            "12 runs: 8 in the fraction, 4 in the half fold-over block",
+        ),
+    ] {
+        let mut p = screened();
+        let mut plain = harness(TwofoldApp::new_for_test(p.clone()));
+        plain.state_mut().set_step(Step::Design);
+        plain.run();
+        assert!(plain.query_by_label("8 runs in the fraction").is_some());
+        if let Err(e) = p.apply(Edit::AddFollowUp(follow_up.clone())) {
+            panic!("{follow_up:?} adds: {e}");
+        }
+        let mut h = harness(TwofoldApp::new_for_test(p));
+        h.state_mut().set_step(Step::Design);
+        h.run();
+        assert!(
+            h.query_by_label(total).is_some(),
+            "{total} on the design step"
+        );
+    }
+}
