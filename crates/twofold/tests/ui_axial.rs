@@ -109,11 +109,23 @@ fn the_design_step_shows_the_axial_runs_and_can_leave_them_out() {
         h.query_by_label_contains("Follow-up: 4 axial runs and 3 centre runs")
             .is_some()
     );
+    // The total counts the axial block (counted by hand: 4 corners, 3 centre points, 2k = 4
+    // axial runs and 3 centre runs in the axial block).
+    assert!(
+        h.query_by_label(
+            "14 runs: 4 in the full factorial, 3 centre points, 4 axial runs and 3 centre runs in the axial block"
+        )
+        .is_some()
+    );
     h.get_by_label("Leave out the axial runs").click();
     h.run();
     assert!(
         h.query_by_label_contains("Follow-up: 4 axial runs")
             .is_none()
+    );
+    assert!(
+        h.query_by_label("7 runs: 4 in the full factorial, 3 centre points")
+            .is_some()
     );
     // Only the draft changed: the sheet keeps its axial runs until the design is applied.
     assert!(h.state().project().design.axial.is_some());

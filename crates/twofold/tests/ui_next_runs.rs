@@ -204,3 +204,163 @@ fn typing_interactions_offers_runs_that_separate_them() {
     h.run();
     assert_eq!(h.state().project(), &before, "one undo step");
 }
+
+/// `twofold plan` called in-process: the JSON it prints.
+fn plan_json(args: &[&str]) -> serde_json::Value {
+    let args: Vec<String> = args.iter().map(|s| s.to_string()).collect();
+    let mut out = Vec::new();
+    let mut err = Vec::new();
+    let code = twofold_app::cli::run(&args, &mut out, &mut err);
+    assert_eq!(code, 0, "{}", String::from_utf8_lossy(&err));
+    match serde_json::from_str(&String::from_utf8_lossy(&out)) {
+        Ok(v) => v,
+        Err(e) => panic!("plan prints JSON: {e}"),
+    }
+}
+
+#[test]
+fn the_half_chosen_for_a_semifold_adds_the_runs_plan_gives_for_it() {
+    use twofold_app::panels::next_runs::half_chooser_name;
+    use twofold_core::semifold::SemiFold;
+    use twofold_study::project::AddedBlock;
+    use twofold_study::report::semifold_option;
+    let before = screened();
+    let chosen = SemiFold {
+        fold: FoldKind::Factor(0),
+        keep: 2,
+        level: -1,
+    };
+    let Ok(option) = semifold_option(&before, chosen) else {
+        panic!("the half with C at − can be added");
+    };
+    let default_label = {
+        let list = next_runs(&before, None);
+        let spec = SemiFold::with_default_half(FoldKind::Factor(0));
+        let Some(half) = list
+            .iter()
+            .find(|o| o.follow_up == FollowUp::SemiFold(spec))
+        else {
+            panic!("a semifold on A is offered");
+        };
+        add_button_name(half)
+    };
+    let label = add_button_name(&option);
+    assert_ne!(label, default_label);
+    let mut h = tall_harness(TwofoldApp::new_for_test(before.clone()));
+    h.state_mut().set_step(Step::NextRuns);
+    h.run();
+    assert!(h.query_by_label(&default_label).is_some());
+    assert!(h.query_by_label(&label).is_none(), "the default half first");
+    h.get_by_label(&half_chooser_name(FoldKind::Factor(0)))
+        .click();
+    h.run();
+    h.get_by_label("C at − (Speed)").click();
+    h.run();
+    h.run();
+    // The option now names the chosen half; its text and run count follow.
+    assert!(h.query_by_label(&default_label).is_none());
+    assert!(
+        h.query_by_label("Semifold on A (Temperature), half the runs: C at −")
+            .is_some()
+    );
+    h.get_by_label(&label).click();
+    h.run();
+    h.run();
+    let after = h.state().project().clone();
+    assert_eq!(h.state().step(), Step::Runs);
+    assert_eq!(after.design.added, Some(AddedBlock::Semifold(chosen)));
+    assert_sheet_kept(&before, &after);
+    // The same design planned by the command with the same half and seed.
+    let plan = plan_json(&[
+        "plan",
+        "--factors",
+        "5",
+        "--runs",
+        "8",
+        "--generators",
+        "D=AB,E=AC",
+        "--fold",
+        "semifold:A:C-",
+        "--seed",
+        "42",
+        "--json",
+    ]);
+    let mut from_plan: Vec<(u64, u64, Vec<i64>)> = plan["runs"]
+        .as_array()
+        .into_iter()
+        .flatten()
+        .map(|r| {
+            (
+                r["block"].as_u64().unwrap_or(0),
+                r["run_order"].as_u64().unwrap_or(0),
+                r["levels"]
+                    .as_array()
+                    .into_iter()
+                    .flatten()
+                    .filter_map(serde_json::Value::as_i64)
+                    .collect(),
+            )
+        })
+        .collect();
+    let mut from_window: Vec<(u64, u64, Vec<i64>)> = after
+        .runs
+        .iter()
+        .map(|r| {
+            (
+                u64::from(r.block),
+                u64::from(r.run_order),
+                r.levels.iter().map(|&v| i64::from(v)).collect(),
+            )
+        })
+        .collect();
+    from_plan.sort();
+    from_window.sort();
+    assert_eq!(from_window.iter().filter(|r| r.0 == 2).count(), 4);
+    assert!(
+        from_window
+            .iter()
+            .filter(|r| r.0 == 2)
+            .all(|r| r.2[2] == -1)
+    );
+    assert_eq!(
+        from_window, from_plan,
+        "block, run order and settings of every run"
+    );
+    // One undo step takes the half away again.
+    h.state_mut().undo();
+    h.run();
+    assert_eq!(h.state().project(), &before, "one undo step");
+}
+
+#[test]
+fn the_design_step_counts_the_follow_up_block_in_the_run_total() {
+    use twofold_core::semifold::SemiFold;
+    for (follow_up, total) in [
+        // Counted by hand: the eight runs of the fraction and the eight of its fold-over.
+        (
+            FollowUp::FoldOver(FoldKind::Full),
+            "16 runs: 8 in the fraction, 8 in the fold-over block",
+        ),
+        // Half the fold-over on A: the four fold-over runs with B at +.
+        (
+            FollowUp::SemiFold(SemiFold::with_default_half(FoldKind::Factor(0))),
+            "12 runs: 8 in the fraction, 4 in the half fold-over block",
+        ),
+    ] {
+        let mut p = screened();
+        let mut plain = harness(TwofoldApp::new_for_test(p.clone()));
+        plain.state_mut().set_step(Step::Design);
+        plain.run();
+        assert!(plain.query_by_label("8 runs in the fraction").is_some());
+        if let Err(e) = p.apply(Edit::AddFollowUp(follow_up.clone())) {
+            panic!("{follow_up:?} adds: {e}");
+        }
+        let mut h = harness(TwofoldApp::new_for_test(p));
+        h.state_mut().set_step(Step::Design);
+        h.run();
+        assert!(
+            h.query_by_label(total).is_some(),
+            "{total} on the design step"
+        );
+    }
+}

@@ -237,6 +237,9 @@ fn design_facts(project: &Project, warnings: &mut Vec<String>) -> DesignFacts {
         screening_runs: d.screening_runs(),
         follow_up: crate::report::next_runs_added::follow_up_facts(project),
         irregular: d.added.is_some(),
+        runs_in_words: crate::project::SheetRuns::of(d, k)
+            .filter(|c| c.total() == project.runs.len() && !project.runs_outdated)
+            .map(|c| c.describe()),
     };
     if let Some(n) = facts.screening_runs {
         warnings.push(format!(
@@ -663,5 +666,35 @@ mod tests {
         );
         assert_eq!(d.interaction_chains, ["AB = CD", "AC = BD", "AD = BC"]);
         assert_eq!(d.tangled_chains, 3);
+    }
+
+    #[test]
+    fn the_page_counts_the_fold_over_block_in_the_runs() {
+        let mut p = demo_project();
+        p.apply(Edit::SetDesign(crate::project::DesignSettings {
+            generators: vec!["D=ABC".into()],
+            base_runs: Some(8),
+            centre_points_per_block: 0,
+            ..p.design.clone()
+        }))
+        .unwrap();
+        p.apply(Edit::RegenerateRuns).unwrap();
+        let words = |p: &Project| {
+            let r = Report::for_response(p, 0, 0);
+            summary_input(p, &[&r], &BuildOptions::default())
+                .design
+                .runs_in_words
+        };
+        assert_eq!(words(&p).as_deref(), Some("8 runs in the fraction"));
+        // The fold-over on A (a full fold-over would only repeat the runs of I = ABCD).
+        p.apply(Edit::AddFollowUp(crate::project::FollowUp::FoldOver(
+            twofold_core::foldover::FoldKind::Factor(0),
+        )))
+        .unwrap();
+        // Counted by hand: the eight runs of the half fraction and the eight of its fold-over.
+        assert_eq!(
+            words(&p).as_deref(),
+            Some("16 runs: 8 in the fraction, 8 in the fold-over block")
+        );
     }
 }

@@ -162,6 +162,11 @@ pub struct DesignFacts {
     /// Whether the follow-up block makes the runs an irregular design (no alias chains apply).
     #[serde(default)]
     pub irregular: bool,
+    /// The runs of the whole sheet in words, block by block (the design step's line, from
+    /// [`crate::project::SheetRuns`]); `None` when the sheet does not follow the design settings,
+    /// and the page then states its parts from the runs themselves.
+    #[serde(default)]
+    pub runs_in_words: Option<String>,
 }
 
 /// One effect.

@@ -13,6 +13,7 @@
 //! - [`goals`]: goals of the responses, noise factors' spread, power settings.
 //! - [`follow_up`]: follow-up runs (fold-over, centre points, a replicate) added as one edit.
 //! - [`axial`]: axial runs, the follow-up that makes a central composite design.
+//! - [`sheet_runs`]: the runs of the whole sheet counted block by block ([`SheetRuns`]).
 
 pub mod added_block;
 pub mod axial;
@@ -29,6 +30,7 @@ pub mod places;
 pub mod recent;
 pub mod recovery;
 pub mod regenerate;
+pub mod sheet_runs;
 pub mod validate;
 
 pub use added_block::{AddedBlock, parse_interactions};
@@ -47,6 +49,7 @@ pub use model::{
 pub use recent::RecentFiles;
 pub use recovery::{RecoveryDebouncer, RecoveryOffer, RecoveryStore};
 pub use regenerate::PlanError;
+pub use sheet_runs::{BaseKind, FollowUpBlock, SheetRuns};
 pub use validate::{FactorField, Field, Problem, Severity, levels_far_apart};
 
 impl Project {

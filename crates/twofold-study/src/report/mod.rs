@@ -70,7 +70,7 @@ pub use data::{
 };
 pub use decision::{Choice, DecideOptions, Decision, ResponseOutcome, Setting, decide};
 pub use next_runs::{NextRun, next_runs};
-pub use next_runs_added::separate_option;
+pub use next_runs_added::{half_words, semifold_halves, semifold_option, separate_option};
 pub use quadratic::QuadraticReport;
 
 /// Why (part of) a report could not be made.

@@ -551,6 +551,61 @@ mod tests {
     }
 
     #[test]
+    fn any_half_of_a_semifold_can_be_chosen_and_adds_those_runs() {
+        use twofold_core::semifold::SemiFold;
+        let p = seven_factors(|_, _| 1.0);
+        let fold = FoldKind::Factor(0);
+        let halves = super::super::semifold_halves(fold, 7);
+        // Six other factors, each at + or −; the default (B at +) first.
+        assert_eq!(halves.len(), 12);
+        assert_eq!(halves[0], SemiFold::with_default_half(fold));
+        assert!(halves.iter().all(|h| h.keep != 0));
+        let spec = SemiFold {
+            fold,
+            keep: 2,
+            level: -1,
+        };
+        let option = super::super::semifold_option(&p, spec).unwrap();
+        assert_eq!(option.title, "Semifold on A (Temp), half the runs: C at −");
+        assert_eq!(option.key(), "semifold_A_C-");
+        assert_eq!(option.runs_added(), 4);
+        // The sheet after it holds, as block 2, the fold-over runs on A with C at −: the
+        // fraction's runs with A switched, kept where C is −1 (Mee & Peralta 2000's rule).
+        let Ok(preview) = &option.preview else {
+            panic!("the half can be added")
+        };
+        let mut after = p.clone();
+        after.design = preview.design.clone();
+        after.apply(Edit::RegenerateRuns).unwrap();
+        let mut added: Vec<Vec<i8>> = after
+            .runs
+            .iter()
+            .filter(|r| r.block == 2)
+            .map(|r| r.levels.clone())
+            .collect();
+        let mut expected: Vec<Vec<i8>> = p
+            .runs
+            .iter()
+            .map(|r| {
+                let mut l = r.levels.clone();
+                l[0] = -l[0];
+                l
+            })
+            .filter(|l| l[2] == -1)
+            .collect();
+        added.sort();
+        expected.sort();
+        assert_eq!(added, expected);
+        // The folded factor cannot pick the half.
+        let bad = SemiFold {
+            fold,
+            keep: 0,
+            level: 1,
+        };
+        assert!(super::super::semifold_option(&p, bad).is_err());
+    }
+
+    #[test]
     fn an_active_main_effect_in_doubt_suggests_the_folds_that_free_it() {
         // y = 20 + 6A plus a small wobble: A stands out on Lenth's margin, but A = BD = CE = FG.
         let wobble = [0.3, -0.2, 0.1, -0.4, 0.2, 0.0, -0.1, 0.25];

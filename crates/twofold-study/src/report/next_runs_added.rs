@@ -43,38 +43,81 @@ pub(crate) fn semifold_options(project: &Project, fraction: &FractionalDesign) -
     let k = project.factors.len();
     std::iter::once(FoldKind::Full)
         .chain((0..k).map(FoldKind::Factor))
-        .filter_map(|kind| {
-            let spec = SemiFold::with_default_half(kind);
-            let s = semifold(fraction, spec).ok()?;
-            let name = |f: usize| project.factors.get(f).map_or("", |x| x.name.as_str());
-            let title = match kind {
-                FoldKind::Full => format!(
-                    "Full semifold (every sign switched, half the runs: {} at {})",
-                    letter(spec.keep),
-                    sign(spec.level)
-                ),
-                FoldKind::Factor(f) => format!(
-                    "Semifold on {} ({}), half the runs: {} at {}",
-                    letter(f),
-                    name(f),
-                    letter(spec.keep),
-                    sign(spec.level)
-                ),
-            };
-            let follow_up = FollowUp::SemiFold(spec);
-            Some(NextRun {
-                preview: project
-                    .preview_follow_up(follow_up.clone())
-                    .map_err(|e| e.to_string()),
-                follow_up,
-                title,
-                resolves: semifold_words(fraction, &s),
-                resolution_after: None,
-                suggested: false,
-                reason: None,
-            })
-        })
+        .filter_map(|kind| semifold_run(project, fraction, SemiFold::with_default_half(kind)).ok())
         .collect()
+}
+
+/// The halves a semifold of `fold` can keep in a design of `k` factors: each factor other than
+/// the folded one at + then at −, the default half ([`SemiFold::with_default_half`]) first.
+pub fn semifold_halves(fold: FoldKind, k: usize) -> Vec<SemiFold> {
+    let default = SemiFold::with_default_half(fold);
+    let mut out = vec![default];
+    for keep in (0..k).filter(|&f| fold != FoldKind::Factor(f)) {
+        for level in [1, -1] {
+            let s = SemiFold { fold, keep, level };
+            if s != default {
+                out.push(s);
+            }
+        }
+    }
+    out
+}
+
+/// The semifold option of `project` that keeps the half `spec` names (the window's choice of
+/// half, the same block `twofold plan --fold semifold:A:B+` plans), or why there is none.
+pub fn semifold_option(project: &Project, spec: SemiFold) -> Result<NextRun, String> {
+    use crate::project::regenerate::{fraction_of, hard_to_change_of};
+    if project.design.screening_runs().is_some() {
+        return Err("a screening design is followed up by its full fold-over only".into());
+    }
+    let fraction = fraction_of(
+        project.factors.len(),
+        &project.design,
+        &hard_to_change_of(project),
+    )
+    .map_err(|e| e.to_string())?;
+    semifold_run(project, &fraction, spec)
+}
+
+/// The option of the semifold `spec` of `fraction`, with its title, sentences and sheet.
+fn semifold_run(
+    project: &Project,
+    fraction: &FractionalDesign,
+    spec: SemiFold,
+) -> Result<NextRun, String> {
+    let s = semifold(fraction, spec).map_err(|e| e.to_string())?;
+    let name = |f: usize| project.factors.get(f).map_or("", |x| x.name.as_str());
+    let title = match spec.fold {
+        FoldKind::Full => format!(
+            "Full semifold (every sign switched, half the runs: {} at {})",
+            letter(spec.keep),
+            sign(spec.level)
+        ),
+        FoldKind::Factor(f) => format!(
+            "Semifold on {} ({}), half the runs: {} at {}",
+            letter(f),
+            name(f),
+            letter(spec.keep),
+            sign(spec.level)
+        ),
+    };
+    let follow_up = FollowUp::SemiFold(spec);
+    Ok(NextRun {
+        preview: project
+            .preview_follow_up(follow_up.clone())
+            .map_err(|e| e.to_string()),
+        follow_up,
+        title,
+        resolves: semifold_words(fraction, &s),
+        resolution_after: None,
+        suggested: false,
+        reason: None,
+    })
+}
+
+/// A half in words for a chooser: `B at +`.
+pub fn half_words(spec: &SemiFold) -> String {
+    format!("{} at {}", letter(spec.keep), sign(spec.level))
 }
 
 fn sign(level: i8) -> char {

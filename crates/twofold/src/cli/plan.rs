@@ -24,6 +24,7 @@ use twofold_core::plan::{Blocking, Plan, PlanSpec, build_fold_over_plan, build_p
 use twofold_core::search::{SearchBudget, minimum_aberration};
 use twofold_core::splitplot::fraction::split_plot_fraction;
 use twofold_core::term::{LETTERS, MAX_FACTORS, Term, factor_index};
+use twofold_study::project::{AddedBlock, AxialRuns, BlockChoice, DesignSettings, SheetRuns};
 
 /// The long description shown by `--help`.
 pub(crate) const LONG_ABOUT: &str = "\
@@ -164,6 +165,8 @@ struct Planned {
     power: Option<PlanPower>,
     required: Vec<Term>,
     axial: Option<super::plan_axial::Axial>,
+    /// The runs of the whole sheet, block by block (the engine's count the window states).
+    sheet: Option<SheetRuns>,
 }
 
 /// Runs `twofold plan`.
@@ -381,6 +384,34 @@ fn compute(a: &PlanArgs) -> Result<Planned, PlanInputError> {
         None => alias_report(&design),
         Some(f) => f.combined_aliases.clone(),
     };
+    let settings = DesignSettings {
+        generators: design.generator_labels(),
+        base_runs: u32::try_from(design.base_runs()).ok(),
+        centre_points_per_block: u32::try_from(centre_points).unwrap_or(u32::MAX),
+        replicates: u32::try_from(replicates).unwrap_or(u32::MAX),
+        blocks: match &spec.blocking {
+            Blocking::None => BlockChoice::Count(1),
+            Blocking::Count(n) => BlockChoice::Count(u32::try_from(*n).unwrap_or(u32::MAX)),
+            Blocking::Generators(g) => BlockChoice::Generators(labels(g)),
+        },
+        replicates_as_blocks: a.replicates_as_blocks,
+        fold: fold.as_ref().map(|f| f.kind),
+        axial: axial.as_ref().map(|x| AxialRuns {
+            centre_points: u32::try_from(x.centre_runs).unwrap_or(u32::MAX),
+        }),
+        added: follow_request.as_ref().and_then(|r| match r {
+            super::plan_follow::FollowRequest::Semi(s) => Some(AddedBlock::Semifold(*s)),
+            super::plan_follow::FollowRequest::Separate(terms) => {
+                follow.as_ref().map(|f| AddedBlock::Separate {
+                    interactions: labels(terms),
+                    runs: f.added_runs().to_vec(),
+                })
+            }
+        }),
+        ..DesignSettings::default()
+    };
+    // The sheet laid out above is the one counted: the count is stated only when they agree.
+    let sheet = SheetRuns::of(&settings, k).filter(|c| c.total() == plan.total_runs());
     let design = plan.design.clone();
     let power = plan_power(a, &plan, k, replicates).map_err(invalid)?;
     Ok(Planned {
@@ -398,6 +429,7 @@ fn compute(a: &PlanArgs) -> Result<Planned, PlanInputError> {
         power,
         required,
         axial,
+        sheet,
     })
 }
 
@@ -604,12 +636,20 @@ fn write_text(p: &Planned, out: &mut dyn Write) -> std::io::Result<()> {
             roman(res)
         ),
     };
-    writeln!(
-        out,
-        "Design: {kind}, {} base runs, {} runs in all",
-        p.design.base_runs(),
-        p.plan.total_runs()
-    )?;
+    match &p.sheet {
+        Some(sheet) => writeln!(
+            out,
+            "Design: {kind}, {} base runs; {}",
+            p.design.base_runs(),
+            sheet.describe()
+        )?,
+        None => writeln!(
+            out,
+            "Design: {kind}, {} base runs, {} runs in all",
+            p.design.base_runs(),
+            p.plan.total_runs()
+        )?,
+    }
     for (i, n) in p.names.iter().enumerate() {
         if n.as_str() != LETTERS[i].to_string() {
             writeln!(out, "  {} = {n}", LETTERS[i])?;

@@ -193,6 +193,11 @@ fn pairs(list: &[(Term, Term)]) -> Vec<[String; 2]> {
 }
 
 impl FollowPlan {
+    /// The runs of the follow-up block, coded.
+    pub(crate) fn added_runs(&self) -> &[Vec<i8>] {
+        &self.added_runs
+    }
+
     /// Adds `follow_up` to the plan's JSON object: `kind` (`semifold` or `separate`), `label`,
     /// `description`, `runs_added`, `added_runs` (coded, block 2), `estimable` (each model term
     /// with whether the combined runs estimate it and its variance inflation), `d_efficiency`,

@@ -21,7 +21,7 @@ use twofold_core::alias::{AliasReport, alias_report, roman};
 use twofold_core::design::{FractionalDesign, Generator};
 use twofold_core::search::{DesignOption, SearchBudget, design_options};
 use twofold_study::jobs::{Control, Job};
-use twofold_study::project::{BlockChoice, DesignSettings, Project};
+use twofold_study::project::{BlockChoice, DesignSettings, Project, SheetRuns};
 
 use aliases::alias_preview;
 pub use aliases::{AliasRow, alias_rows};
@@ -133,11 +133,7 @@ fn search(k: usize) -> OptionsResult {
 
 /// Runs of one replicate of the draft: `base_runs`, or 2^(k − generators), or 2^k.
 fn base_runs(draft: &DesignSettings, k: usize) -> Option<usize> {
-    if let Some(n) = draft.base_runs {
-        return Some(n as usize);
-    }
-    let p = draft.generators.len();
-    (k >= p && k - p < usize::BITS as usize - 1).then(|| 1usize << (k - p))
+    SheetRuns::of(draft, k).map(|c| c.base)
 }
 
 /// The alias report of the draft, or why there is none.
@@ -655,6 +651,8 @@ fn fresh_seed(old: u64) -> u64 {
     if s == old { s + 1 } else { s }
 }
 
+/// The runs of the whole sheet the draft gives, block by block (the engine's count, as the page
+/// and `twofold plan` state it), with warnings; the total, or `None` when it cannot be told.
 fn summary(
     ui: &mut Ui,
     draft: &DesignSettings,
@@ -662,31 +660,9 @@ fn summary(
     project: &Project,
     pal: &crate::theme::Palette,
 ) -> Option<usize> {
-    let n = base_runs(draft, k)?;
-    let blocks = match &draft.blocks {
-        BlockChoice::Count(b) => (*b).max(1) as usize,
-        BlockChoice::Generators(g) => 1usize << g.len().min(8),
-    };
-    let reps = draft.replicates.max(1) as usize;
-    let centre = draft.centre_points_per_block as usize * blocks * reps;
-    let total = n * reps + centre;
-    ui.label(
-        RichText::new(format!(
-            "{n} runs{}{}  =  {total} runs in all",
-            if reps > 1 {
-                format!(" × {reps} replicates")
-            } else {
-                String::new()
-            },
-            if centre > 0 {
-                format!(" + {centre} centre points")
-            } else {
-                String::new()
-            }
-        ))
-        .size(17.0)
-        .strong(),
-    );
+    let count = SheetRuns::of(draft, k)?;
+    let total = count.total();
+    ui.label(RichText::new(count.describe()).size(17.0).strong());
     if total > MAX_OFFERED_RUNS {
         ui.colored_label(pal.warn, format!("{total} runs is a very large sheet."));
     }

@@ -1,7 +1,9 @@
 //! What to run next: the follow-up runs the project can add (fold-overs and semifolds, centre
 //! points, a replicate, and runs chosen to separate the interactions typed in the field at the
 //! top), each with the runs it adds and what it resolves, the one the analysis points to
-//! first with its reason. A button per option pushes the edit that adds the runs (one undo
+//! first with its reason. Each semifold has a chooser of the half it keeps (the fold-over runs
+//! with one other factor at + or −); the engine offers the default half, and a choice swaps in
+//! the engine's option for the chosen one, so its text, run count and edit follow. A button per option pushes the edit that adds the runs (one undo
 //! step) and goes to the run sheet, where the entry field of the next run takes the keyboard.
 //!
 //! The options come from the engine ([`twofold_study::report::next_runs`]), built once per data
@@ -13,9 +15,12 @@ use super::run_sheet::card_entry_id;
 use super::widgets::{not_available, tag, text_field};
 use super::{Command, Pane, Step, View};
 use twofold_core::foldover::FoldKind;
+use twofold_core::semifold::SemiFold;
 use twofold_core::term::LETTERS;
-use twofold_study::project::Edit;
-use twofold_study::report::{NextRun, next_runs, separate_option};
+use twofold_study::project::{Edit, FollowUp};
+use twofold_study::report::{
+    NextRun, half_words, next_runs, semifold_halves, semifold_option, separate_option,
+};
 
 /// What the options were built from: project revision, shown response, revision of its report.
 type BuiltFor = (u64, Option<usize>, Option<u64>);
@@ -27,13 +32,56 @@ pub const SEPARATE_FIELD: &str = "interactions to separate";
 /// of the shown response's report, text.
 type SeparateFor = (u64, Option<u64>, String);
 
-/// View state of the pane: the options built once per data revision and analysis, and the
-/// option of runs to separate the interactions typed (built once per revision and text).
+/// View state of the pane: the options built once per data revision and analysis, the half
+/// chosen for each semifold (the engine offers the default half; a choice here replaces that
+/// option by the engine's option for the chosen half), and the option of runs to separate the
+/// interactions typed (built once per revision and text).
 #[derive(Debug, Default)]
 pub struct NextRunsPane {
     built: Option<(BuiltFor, Vec<NextRun>)>,
+    halves: Vec<SemiFold>,
     separate_text: String,
     separate: Option<(SeparateFor, Result<NextRun, String>)>,
+}
+
+/// Accessible name of the chooser of the half a semifold keeps, e.g. `half kept: semifold on A`.
+pub fn half_chooser_name(fold: FoldKind) -> String {
+    match fold {
+        FoldKind::Full => "half kept: full semifold".into(),
+        FoldKind::Factor(f) => format!(
+            "half kept: semifold on {}",
+            LETTERS.get(f).copied().unwrap_or('?')
+        ),
+    }
+}
+
+/// Replaces each semifold option of `options` whose fold has a chosen half in `halves` by the
+/// engine's option for that half; a choice the project no longer allows is forgotten.
+fn apply_halves(
+    project: &twofold_study::project::Project,
+    options: &mut [NextRun],
+    halves: &mut Vec<SemiFold>,
+) {
+    halves.retain(|&chosen| {
+        let Some(slot) = options
+            .iter_mut()
+            .find(|o| matches!(o.follow_up, FollowUp::SemiFold(s) if s.fold == chosen.fold))
+        else {
+            return false;
+        };
+        if slot.follow_up == FollowUp::SemiFold(chosen) {
+            return true;
+        }
+        match semifold_option(project, chosen) {
+            Ok(mut option) => {
+                option.suggested = slot.suggested;
+                option.reason = slot.reason.take();
+                *slot = option;
+                true
+            }
+            Err(_) => false,
+        }
+    });
 }
 
 /// Name of the button that adds an option's runs, e.g. `Add 8 runs: Full fold-over`.
@@ -45,6 +93,7 @@ impl Pane for NextRunsPane {
     fn ui(&mut self, ui: &mut Ui, view: &View<'_>, out: &mut Vec<Command>) {
         let Self {
             built,
+            halves,
             separate_text,
             separate,
         } = self;
@@ -64,9 +113,11 @@ impl Pane for NextRunsPane {
             view.results.map(|r| r.revision),
         );
         if built.as_ref().is_none_or(|(k, _)| *k != key) {
-            *built = Some((key, next_runs(project, view.results)));
+            let mut options = next_runs(project, view.results);
+            apply_halves(project, &mut options, halves);
+            *built = Some((key, options));
         }
-        let Some((_, options)) = built.as_ref() else {
+        let Some((_, options)) = built.as_mut() else {
             return;
         };
         match project.design.fold {
@@ -118,16 +169,30 @@ impl Pane for NextRunsPane {
             .show(ui, |ui| {
                 separate_row(ui, view, separate_text, separate, out);
                 ui.add_space(6.0);
-                for option in options {
-                    option_card(ui, view, option, out);
+                let mut chosen = None;
+                for option in options.iter() {
+                    if let Some(half) = option_card(ui, view, option, out) {
+                        chosen = Some(half);
+                    }
                     ui.add_space(6.0);
+                }
+                if let Some(half) = chosen {
+                    halves.retain(|h| h.fold != half.fold);
+                    halves.push(half);
+                    apply_halves(project, options, halves);
                 }
             });
     }
 }
 
-/// One option: title, runs added, the reason when suggested, what it resolves, and its button.
-fn option_card(ui: &mut Ui, view: &View<'_>, option: &NextRun, out: &mut Vec<Command>) {
+/// One option: title, runs added, the reason when suggested, what it resolves, the chooser of
+/// the half kept for a semifold, and its button. Returns the half newly chosen, if any.
+fn option_card(
+    ui: &mut Ui,
+    view: &View<'_>,
+    option: &NextRun,
+    out: &mut Vec<Command>,
+) -> Option<SemiFold> {
     let pal = view.pal;
     let frame = egui::Frame::new()
         .fill(if option.suggested {
@@ -145,6 +210,7 @@ fn option_card(ui: &mut Ui, view: &View<'_>, option: &NextRun, out: &mut Vec<Com
         ))
         .corner_radius(3.0)
         .inner_margin(egui::Margin::symmetric(10, 8));
+    let mut chosen = None;
     frame.show(ui, |ui| {
         ui.set_width(ui.available_width());
         ui.horizontal_wrapped(|ui| {
@@ -158,6 +224,9 @@ fn option_card(ui: &mut Ui, view: &View<'_>, option: &NextRun, out: &mut Vec<Com
         }
         for line in &option.resolves {
             ui.label(format!("• {line}"));
+        }
+        if let FollowUp::SemiFold(now) = option.follow_up {
+            chosen = half_chooser(ui, view, now);
         }
         match &option.preview {
             Ok(p) => {
@@ -186,6 +255,36 @@ fn option_card(ui: &mut Ui, view: &View<'_>, option: &NextRun, out: &mut Vec<Com
             }
         }
     });
+    chosen
+}
+
+/// The chooser of the half a semifold keeps: which factor and at which level. Returns the half
+/// picked when it differs from `now`.
+fn half_chooser(ui: &mut Ui, view: &View<'_>, now: SemiFold) -> Option<SemiFold> {
+    let k = view.project.factors.len();
+    let mut picked = now;
+    ui.horizontal(|ui| {
+        ui.label("Keep the fold-over runs with");
+        egui::ComboBox::from_id_salt(("semifold_half", half_chooser_name(now.fold)))
+            .selected_text(half_words(&now))
+            .show_ui(ui, |ui| {
+                for half in semifold_halves(now.fold, k) {
+                    let name = view
+                        .project
+                        .factors
+                        .get(half.keep)
+                        .map_or("", |f| f.name.as_str());
+                    ui.selectable_value(
+                        &mut picked,
+                        half,
+                        format!("{} ({name})", half_words(&half)),
+                    );
+                }
+            })
+            .response
+            .accessible_name(half_chooser_name(now.fold));
+    });
+    (picked != now).then_some(picked)
 }
 
 /// The field of interactions to separate and, once something is typed, the option of runs
@@ -226,7 +325,10 @@ fn separate_row(
         *built = Some((key, separate_option(view.project, &typed, view.results)));
     }
     match built.as_ref().map(|(_, r)| r) {
-        Some(Ok(option)) => option_card(ui, view, option, out),
+        Some(Ok(option)) => {
+            // Runs to separate interactions have no half to choose.
+            let _ = option_card(ui, view, option, out);
+        }
         Some(Err(why)) => {
             ui.label(RichText::new(why).color(view.pal.warn));
         }

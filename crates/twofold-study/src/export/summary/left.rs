@@ -104,14 +104,21 @@ fn design(svg: &mut Svg, flow: &mut Flow, input: &SummaryInput, more: &mut More)
         kind.push_str(&format!(", resolution {}", roman(r)));
     }
     flow.fact(svg, "Design", &kind, LABEL_W, 3);
-    let mut runs = format!("{} runs per replicate", d.base_runs);
-    if d.replicates > 1 {
-        runs.push_str(&format!(" × {} replicates", d.replicates));
-    }
-    if d.centre_points > 0 {
-        runs.push_str(&format!(" + {} centre points", d.centre_points));
-    }
-    runs.push_str(&format!(" = {} runs", d.total_runs));
+    let runs = match &d.runs_in_words {
+        // The engine's count of every block, as the design step states it.
+        Some(words) => words.clone(),
+        None => {
+            let mut runs = format!("{} runs per replicate", d.base_runs);
+            if d.replicates > 1 {
+                runs.push_str(&format!(" × {} replicates", d.replicates));
+            }
+            if d.centre_points > 0 {
+                runs.push_str(&format!(" + {} centre points", d.centre_points));
+            }
+            runs.push_str(&format!(" = {} runs", d.total_runs));
+            runs
+        }
+    };
     flow.fact(svg, "Runs", &runs, LABEL_W, 3);
     if d.centre_points == 0 {
         flow.fact(

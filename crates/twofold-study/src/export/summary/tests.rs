@@ -143,6 +143,7 @@ fn crowded() -> SummaryInput {
             screening_runs: None,
             follow_up: None,
             irregular: false,
+            runs_in_words: None,
             detectable: Some(
                 "an effect of 3.79 is found with probability 0.8 (σ = 2.5, two-sided test at α = 0.05, 13 error df, main-effects model); an effect of 2 needs 4 replicates".into(),
             ),
