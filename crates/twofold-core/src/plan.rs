@@ -333,6 +333,18 @@ mod tests {
     }
 
     #[test]
+    fn a_plan_far_too_large_is_refused_before_its_rows_exist() {
+        // 2^25 = 33 554 432 base runs: 800 MB of rows were written out before the refusal.
+        let d = FractionalDesign::full(25).unwrap();
+        let err = build_plan(&PlanSpec::new(d, 1)).unwrap_err();
+        assert_eq!(err, PlanError::TooLarge(1 << 25));
+        // Replicates multiply before anything is laid out too.
+        let mut spec = PlanSpec::new(FractionalDesign::full(18).unwrap(), 1);
+        spec.replicates = 8;
+        assert_eq!(build_plan(&spec).unwrap_err(), PlanError::TooLarge(8 << 18));
+    }
+
+    #[test]
     fn same_seed_same_order_other_seed_other_order() {
         let d = FractionalDesign::full(4).unwrap();
         let a = build_plan(&PlanSpec::new(d.clone(), 42)).unwrap();
