@@ -139,28 +139,31 @@ pub fn read_coded_csv(bytes: &[u8]) -> Result<CodedTable, TableError> {
         .flexible(true)
         .trim(csv::Trim::All)
         .from_reader(bytes);
-    let mut rows: Vec<(u64, Vec<String>)> = Vec::new();
-    for record in reader.records() {
-        let record = record.map_err(|e| {
-            let line = e.position().map_or(0, csv::Position::line);
-            let message = match e.kind() {
-                csv::ErrorKind::Utf8 { .. } => "the text is not valid UTF-8".to_string(),
-                _ => e.to_string(),
-            };
-            TableError::Csv { line, message }
-        })?;
+    // Rows are read one at a time, so the table in memory is the numbers, not the text.
+    let mut rows = reader.records().filter_map(|record| {
+        let record = match record {
+            Ok(r) => r,
+            Err(e) => {
+                let line = e.position().map_or(0, csv::Position::line);
+                let message = match e.kind() {
+                    csv::ErrorKind::Utf8 { .. } => "the text is not valid UTF-8".to_string(),
+                    _ => e.to_string(),
+                };
+                return Some(Err(TableError::Csv { line, message }));
+            }
+        };
         let line = record.position().map_or(0, csv::Position::line);
-        let cells: Vec<String> = record.iter().map(str::to_string).collect();
         // Blank rows (also `,,,` from spreadsheets) carry nothing.
-        if cells.iter().all(String::is_empty) {
-            continue;
+        if record.iter().all(str::is_empty) {
+            return None;
         }
-        rows.push((line, cells));
-    }
-    let mut rows = rows.into_iter();
-    let Some((_, header)) = rows.next() else {
+        let cells: Vec<String> = record.iter().map(str::to_string).collect();
+        Some(Ok((line, cells)))
+    });
+    let Some(first) = rows.next() else {
         return Err(TableError::Empty);
     };
+    let (_, header) = first?;
     // Trailing empty header cells (a trailing comma) are not columns.
     let mut header = header;
     while header.last().is_some_and(String::is_empty) {
@@ -227,7 +230,8 @@ pub fn read_coded_csv(bytes: &[u8]) -> Result<CodedTable, TableError> {
     };
     let width = header.len();
     let mut wp_labels: Vec<String> = Vec::new();
-    for (index, (line, mut cells)) in rows.enumerate() {
+    for (index, item) in rows.enumerate() {
+        let (line, mut cells) = item?;
         let row = index + 1;
         // Trailing empty cells past the header are harmless.
         while cells.len() > width && cells.last().is_some_and(String::is_empty) {

@@ -62,24 +62,19 @@ pub(super) fn labels(terms: &[Term]) -> Vec<String> {
 /// named by `error`), `warnings`, and for a study with axial runs `quadratic` (see
 /// [`super::quadratic::quadratic_json`]). Undefined numbers are null.
 pub fn report_json(r: &Report) -> Result<Value, String> {
+    serde_json::to_value(report_json_stream(r)?).map_err(|e| e.to_string())
+}
+
+/// The report as [`report_json`] writes it, but ready to be written out without building the
+/// long arrays (`effects`, `half_normal`, `normal_probability`: one entry per alias chain, 65 535
+/// for a 2^16) as a value tree first: serialise it straight to the output. The keys come out in
+/// the same (sorted) order and with the same values as [`report_json`], which is this one turned
+/// into a value.
+pub fn report_json_stream(r: &Report) -> Result<ReportJson<'_>, String> {
     let e = r.effects.as_ref().map_err(Clone::clone)?;
     let m = r.fit.as_ref().map_err(Clone::clone)?;
     let choice = r.choice.as_ref().map_err(Clone::clone)?;
-    let lenth_ok = r.lenth.as_ref().ok();
-    let effects: Vec<Value> = e
-        .effects
-        .iter()
-        .map(|e| {
-            json!({
-                "term": e.term.label(),
-                "aliases": e.aliases.iter().map(ToString::to_string).collect::<Vec<_>>(),
-                "effect": e.effect,
-                "coefficient": e.coefficient,
-                "lenth": lenth_ok.map(|l| significance_key(l.classify(e.effect))),
-            })
-        })
-        .collect();
-    let lenth_value = match lenth_ok {
+    let lenth_value = match r.lenth.as_ref().ok() {
         Some(l) => json!({
             "pse": l.pse, "me": l.me, "sme": l.sme, "df": l.df, "s0": l.s0, "m": l.m,
             "t_me": l.t_me, "t_sme": l.t_sme, "gamma": l.gamma,
@@ -125,18 +120,10 @@ pub fn report_json(r: &Report) -> Result<Value, String> {
         "method": method_key(e.method),
         "defining_relation": e.aliasing.defining_words().iter().map(ToString::to_string).collect::<Vec<_>>(),
         "generators": e.aliasing.generators().iter().map(|g| g.label()).collect::<Vec<_>>(),
-        "effects": effects,
         "not_estimable": labels(&e.not_estimable),
         "effects_left_out": e.left_out,
         "confounded_with_blocks": labels(&e.confounded_with_blocks),
         "lenth": lenth_value,
-        "half_normal": r.half_normal.iter().map(|p| json!({
-            "term": p.term.label(), "effect": p.effect, "abs_effect": p.abs_effect,
-            "rank": p.rank, "quantile": p.quantile,
-        })).collect::<Vec<_>>(),
-        "normal_probability": r.normal.iter().map(|p| json!({
-            "term": p.term.label(), "effect": p.effect, "rank": p.rank, "quantile": p.quantile,
-        })).collect::<Vec<_>>(),
         "error_basis": r.error_basis.key(),
         "pure_error": r.pure_error.map(|pe| json!({ "ss": pe.ss, "df": pe.df, "ms": pe.ms })),
         "model": {
@@ -173,20 +160,143 @@ pub fn report_json(r: &Report) -> Result<Value, String> {
     if let Some(strata) = &r.strata {
         add_strata(&mut obj, strata);
     }
-    Ok(obj)
+    let small = match obj {
+        Value::Object(map) => map,
+        _ => serde_json::Map::new(),
+    };
+    Ok(ReportJson { small, report: r })
+}
+
+/// A report's JSON object, written entry by entry (see [`report_json_stream`]).
+#[derive(Debug)]
+pub struct ReportJson<'a> {
+    small: serde_json::Map<String, Value>,
+    report: &'a Report,
+}
+
+impl ReportJson<'_> {
+    /// Adds a key beside the report's own (e.g. `follow_up`).
+    pub fn insert(&mut self, key: &str, value: Value) {
+        self.small.insert(key.into(), value);
+    }
+}
+
+/// The keys written from the report itself, in sorted order.
+const LONG_KEYS: [&str; 3] = ["effects", "half_normal", "normal_probability"];
+
+#[derive(serde::Serialize)]
+struct EffectRow {
+    aliases: Vec<String>,
+    coefficient: f64,
+    effect: f64,
+    lenth: Option<&'static str>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    stratum: Option<&'static str>,
+    term: String,
+}
+
+#[derive(serde::Serialize)]
+struct HalfNormalRow {
+    abs_effect: f64,
+    effect: f64,
+    quantile: f64,
+    rank: usize,
+    term: String,
+}
+
+#[derive(serde::Serialize)]
+struct NormalRow {
+    effect: f64,
+    quantile: f64,
+    rank: usize,
+    term: String,
+}
+
+/// One of the long arrays, its entries made as they are written.
+struct Long<'a>(&'static str, &'a Report);
+
+impl serde::Serialize for Long<'_> {
+    fn serialize<S: serde::Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
+        use serde::ser::SerializeSeq;
+        let r = self.1;
+        match self.0 {
+            "effects" => {
+                let Ok(table) = r.effects.as_ref() else {
+                    return s.serialize_seq(Some(0))?.end();
+                };
+                let lenth = r.lenth.as_ref().ok();
+                let strata = r.strata.as_ref().map(|st| &st.of_effect);
+                let mut seq = s.serialize_seq(Some(table.effects.len()))?;
+                for (i, e) in table.effects.iter().enumerate() {
+                    seq.serialize_element(&EffectRow {
+                        aliases: e.aliases.iter().map(ToString::to_string).collect(),
+                        coefficient: e.coefficient,
+                        effect: e.effect,
+                        lenth: lenth.map(|l| significance_key(l.classify(e.effect))),
+                        stratum: strata.and_then(|of| of.get(i)).map(|st| st.key()),
+                        term: e.term.label(),
+                    })?;
+                }
+                seq.end()
+            }
+            "half_normal" => {
+                let mut seq = s.serialize_seq(Some(r.half_normal.len()))?;
+                for p in &r.half_normal {
+                    seq.serialize_element(&HalfNormalRow {
+                        abs_effect: p.abs_effect,
+                        effect: p.effect,
+                        quantile: p.quantile,
+                        rank: p.rank,
+                        term: p.term.label(),
+                    })?;
+                }
+                seq.end()
+            }
+            _ => {
+                let mut seq = s.serialize_seq(Some(r.normal.len()))?;
+                for p in &r.normal {
+                    seq.serialize_element(&NormalRow {
+                        effect: p.effect,
+                        quantile: p.quantile,
+                        rank: p.rank,
+                        term: p.term.label(),
+                    })?;
+                }
+                seq.end()
+            }
+        }
+    }
+}
+
+impl serde::Serialize for ReportJson<'_> {
+    fn serialize<S: serde::Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
+        use serde::ser::SerializeMap;
+        // Both key lists are sorted (the map's keys by its order, the long ones as written):
+        // merge them so the output is in the order of a value tree's map.
+        let mut map = s.serialize_map(Some(self.small.len() + LONG_KEYS.len()))?;
+        let mut long = LONG_KEYS.iter().peekable();
+        for (k, v) in &self.small {
+            while let Some(&&l) = long.peek() {
+                if l < k.as_str() {
+                    map.serialize_entry(l, &Long(l, self.report))?;
+                    long.next();
+                } else {
+                    break;
+                }
+            }
+            map.serialize_entry(k, v)?;
+        }
+        for &l in long {
+            map.serialize_entry(l, &Long(l, self.report))?;
+        }
+        map.end()
+    }
 }
 
 /// A split-plot study: each effect gains `stratum` (`whole_plot` or `subplot`), and
 /// `lenth_by_stratum` gives each stratum's `pse`, `me`, `sme` and `m` (null with a `note` when
 /// the stratum has too few contrasts); `whole_plots` counts them.
 fn add_strata(obj: &mut Value, strata: &super::Strata) {
-    if let Some(list) = obj.get_mut("effects").and_then(Value::as_array_mut) {
-        for (e, s) in list.iter_mut().zip(&strata.of_effect) {
-            if let Some(o) = e.as_object_mut() {
-                o.insert("stratum".into(), Value::from(s.key()));
-            }
-        }
-    }
     let mut by = serde_json::Map::new();
     for (s, l) in &strata.lenth {
         by.insert(

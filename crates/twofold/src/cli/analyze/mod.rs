@@ -27,7 +27,7 @@ use twofold_core::effects::EffectsError;
 use twofold_core::term::Term;
 use twofold_core::transform::TransformError;
 use twofold_study::project::{ModelSettings, Project};
-use twofold_study::report::json::{follow_up_json, report_json};
+use twofold_study::report::json::{follow_up_json, report_json_stream};
 use twofold_study::report::text::{follow_up_text, report_text};
 use twofold_study::report::{NextRun, Report, ReportError, next_runs};
 
@@ -86,20 +86,25 @@ pub fn run(a: AnalyzeArgs, out: &mut dyn Write, err: &mut dyn Write) -> i32 {
         Err(message) => return bad_input(err, &message),
     };
     let text = if a.json {
-        let mut value = match report_json(&report) {
+        let mut value = match report_json_stream(&report) {
             Ok(v) => v,
             Err(message) => return bad_input(err, &message),
         };
-        if let Some(map) = value.as_object_mut() {
-            map.insert("follow_up".into(), follow_up_json(&follow_up));
-        }
-        match serde_json::to_string_pretty(&value) {
-            Ok(s) => s + "\n",
+        value.insert("follow_up", follow_up_json(&follow_up));
+        // Written as it is made: a 2^16 has 65 535 effects, and a value tree of them would
+        // take hundreds of megabytes.
+        let mut buffered = std::io::BufWriter::new(out);
+        let written = serde_json::to_writer_pretty(&mut buffered, &value)
+            .map_err(|e| e.to_string())
+            .and_then(|()| buffered.write_all(b"\n").map_err(|e| e.to_string()))
+            .and_then(|()| buffered.flush().map_err(|e| e.to_string()));
+        return match written {
+            Ok(()) => 0,
             Err(e) => {
                 let _ = writeln!(err, "error: could not write the results as JSON: {e}");
-                return EXIT_FAILURE;
+                EXIT_FAILURE
             }
-        }
+        };
     } else {
         match report_text(&report) {
             Ok(s) => {
