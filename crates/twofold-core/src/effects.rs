@@ -43,6 +43,7 @@ use crate::term::{SignedTerm, Term};
 use nalgebra::{DMatrix, DVector};
 use std::collections::{BTreeSet, HashMap, HashSet};
 
+mod block_words;
 mod greedy_lu;
 mod reduced;
 
@@ -113,6 +114,17 @@ pub enum EffectsError {
     /// The least-squares solve failed on columns judged independent (should not happen).
     #[error("the least-squares solve for the effects failed")]
     Solve,
+    /// A layout that is neither a regular fraction in blocks made by confounding nor small
+    /// enough to sort its chains one column at a time in bounded memory.
+    #[error(
+        "{runs} runs with {chains} effects to sort is too large a table for blocks or a layout that is not a regular fraction: analyse it without its block column, or in parts"
+    )]
+    TooLarge {
+        /// Runs of the layout.
+        runs: usize,
+        /// Chains listed.
+        chains: usize,
+    },
 }
 
 /// The estimate for one alias chain.
@@ -238,7 +250,13 @@ pub fn estimate_effects_with(
         return Err(EffectsError::TooFewRuns { used: used.len() });
     }
 
-    let layout = classify_layout(obs, &aliasing, &layout_rows);
+    let layout_blocks: BTreeSet<u32> = layout_rows.iter().map(|&r| obs.blocks()[r]).collect();
+    let words = if layout_blocks.len() > 1 {
+        block_words::block_words(obs, &aliasing, &layout_rows)
+    } else {
+        None
+    };
+    let layout = classify_layout(obs, &aliasing, &layout_rows, words.as_deref())?;
     let y: Vec<f64> = used
         .iter()
         .map(|&r| obs.response()[r].unwrap_or(0.0))
@@ -255,16 +273,24 @@ pub fn estimate_effects_with(
         centre_runs,
         left_out: 0,
     };
-    let blocks_ok = table.confounded_with_blocks.is_empty()
-        || blocks_follow_chains(obs, &table.aliasing, &used, &table.confounded_with_blocks);
+    // Blocks made by confounding span the columns of their words, so the cells serve.
+    let blocks_ok = layout_blocks.len() <= 1 || words.is_some();
     let cells = if options.force_least_squares || !blocks_ok {
         None
     } else {
         cell_means(obs, &table.aliasing, &used)
     };
-    let fixed = table.confounded_with_blocks.len();
+    let fixed_keys: Vec<usize> = words.unwrap_or_default();
+    let fixed = fixed_keys.len();
+    // A layout of more than `MAX_CHAINS` chains lists only its lower ones; the rest are left
+    // out whatever the route.
+    let listed_all = table.aliasing.is_complete();
     let by_cells = match &cells {
-        Some(c) if c.balanced && layout.candidates.len() + fixed + 1 == c.means.len() => {
+        Some(c)
+            if c.balanced
+                && (!listed_all || layout.candidates.len() + fixed + 1 == c.means.len()) =>
+        {
+            table.left_out = c.means.len() - 1 - fixed - layout.candidates.len();
             table.method = EffectMethod::FastTransform;
             let means: Vec<f64> = c.means.iter().map(|m| m.unwrap_or(0.0)).collect();
             Some((
@@ -272,12 +298,10 @@ pub fn estimate_effects_with(
                 Vec::new(),
             ))
         }
-        Some(c) if c.means.iter().filter(|m| m.is_none()).count() > MAX_COMPLETION_CELLS => {
-            let fixed_keys: Vec<usize> = table
-                .confounded_with_blocks
-                .iter()
-                .map(|&t| table.aliasing.key_of(t).bits as usize)
-                .collect();
+        Some(c)
+            if !listed_all
+                || c.means.iter().filter(|m| m.is_none()).count() > MAX_COMPLETION_CELLS =>
+        {
             let sums: Vec<f64> = c
                 .means
                 .iter()
@@ -292,7 +316,7 @@ pub fn estimate_effects_with(
                 &fixed_keys,
             )
             .map(|r| {
-                table.left_out = r.left_out;
+                table.left_out = r.left_out + c.means.len() - 1 - fixed - layout.candidates.len();
                 (r.effects, r.not_estimable)
             })
         }
@@ -334,19 +358,42 @@ struct LayoutClasses {
 }
 
 /// Which chains the complete layout (every planned run, blocks included) can estimate.
-fn classify_layout(obs: &Observations, aliasing: &AliasStructure, rows: &[usize]) -> LayoutClasses {
+fn classify_layout(
+    obs: &Observations,
+    aliasing: &AliasStructure,
+    rows: &[usize],
+    block_words: Option<&[usize]>,
+) -> Result<LayoutClasses, EffectsError> {
     let chains = aliasing.chains();
     let distinct_blocks: BTreeSet<u32> = rows.iter().map(|&r| obs.blocks()[r]).collect();
     if aliasing.is_regular() && distinct_blocks.len() <= 1 {
         // The 2^r characters of a regular layout are linearly independent: all estimable.
-        return LayoutClasses {
+        return Ok(LayoutClasses {
             candidates: (0..chains.len()).collect(),
             confounded: Vec::new(),
             dependent: 0,
+        });
+    }
+    if let Some(words) = block_words {
+        // Blocks made by confounding: their words' chains go to the blocks, the rest are
+        // orthogonal to them and estimable.
+        let mut out = LayoutClasses {
+            candidates: Vec::new(),
+            confounded: Vec::new(),
+            dependent: 0,
         };
+        for (i, chain) in chains.iter().enumerate() {
+            let key = aliasing.chain_key(i).map(|k| k as usize);
+            if key.is_some_and(|k| words.binary_search(&k).is_ok()) {
+                out.confounded.push(chain.representative);
+            } else {
+                out.candidates.push(i);
+            }
+        }
+        return Ok(out);
     }
     if let Some(found) = classify_by_block_contrasts(obs, aliasing, rows, &distinct_blocks) {
-        return found;
+        return Ok(found);
     }
     if !aliasing.is_regular() && main_effects_orthogonal(obs, rows, &distinct_blocks) {
         // A non-regular screening layout (Plackett & Burman 1946): the main effects are
@@ -360,13 +407,21 @@ fn classify_layout(obs: &Observations, aliasing: &AliasStructure, rows: &[usize]
             .filter(|(_, c)| c.representative.order() == 1)
             .map(|(i, _)| i)
             .collect();
-        return LayoutClasses {
+        return Ok(LayoutClasses {
             dependent: chains.len() - candidates.len(),
             candidates,
             confounded: Vec::new(),
-        };
+        });
     }
-    classify_by_columns(obs, aliasing, rows)
+    // Column by column: the basis kept can grow to one vector per distinct run.
+    let could_keep = chains.len().min(aliasing.distinct_runs()) + distinct_blocks.len();
+    if rows.len().saturating_mul(could_keep) > DENSE_MAX_ENTRIES {
+        return Err(EffectsError::TooLarge {
+            runs: rows.len(),
+            chains: chains.len(),
+        });
+    }
+    Ok(classify_by_columns(obs, aliasing, rows))
 }
 
 /// Whether every main-effect column of the layout is balanced within every block and
@@ -532,9 +587,9 @@ struct CellMeans {
 }
 
 /// Cell means when the layout is a regular fraction; `None` otherwise. Blocks are the caller's
-/// to check ([`blocks_follow_chains`]).
+/// to check (`block_words`).
 fn cell_means(obs: &Observations, aliasing: &AliasStructure, used: &[usize]) -> Option<CellMeans> {
-    if !aliasing.is_regular() || !aliasing.is_complete() {
+    if !aliasing.is_regular() {
         return None;
     }
     let cells = 1usize << aliasing.basis().len();
@@ -588,7 +643,7 @@ fn character(kappa: usize, x: usize) -> f64 {
 /// Blocks whose runs are the cells on which some chains (`fixed`, those confounded with blocks)
 /// take given signs span the same columns as those chains, so a blocked layout is the same
 /// saturated fit with the `fixed` chains never left out and not reported: the caller checks that
-/// the blocks are of that kind ([`blocks_follow_chains`]).
+/// the blocks are of that kind (`block_words`).
 ///
 /// Returns `None` (the caller then uses the dense route) when the candidates and the fixed chains
 /// are not every chain, or the missing cells leave a fixed chain inestimable.
@@ -655,47 +710,6 @@ fn effects_by_completion(
         .map(|i| aliasing.chains()[i].representative)
         .collect();
     Some((effects_by_transform(aliasing, &z, &kept), lost))
-}
-
-/// Whether every used run's block is read off its cell and each chain in `confounded` keeps one
-/// sign within each block, so that the blocks span the same columns as those chains (with the
-/// intercept): one block per sign pattern, `|confounded| + 1` blocks. That is regular blocking
-/// by confounding, where the confounded chains are a group's non-zero words
-/// (Montgomery, *Design and Analysis of Experiments*, chapter on blocking and confounding in the
-/// 2^k design; from memory).
-fn blocks_follow_chains(
-    obs: &Observations,
-    aliasing: &AliasStructure,
-    used: &[usize],
-    confounded: &[Term],
-) -> bool {
-    let keys: Option<Vec<usize>> = confounded
-        .iter()
-        .map(|&t| {
-            let key = aliasing.key_of(t);
-            (key.bits != 0).then_some(key.bits as usize)
-        })
-        .collect();
-    let Some(keys) = keys else {
-        return false;
-    };
-    let mut sign_of_block: HashMap<u32, usize> = HashMap::new();
-    let mut block_of_cell: HashMap<usize, u32> = HashMap::new();
-    for &r in used {
-        let cell = aliasing.cell_of(&obs.levels()[r]) as usize;
-        let block = obs.blocks()[r];
-        if *block_of_cell.entry(cell).or_insert(block) != block {
-            return false;
-        }
-        let signs = keys.iter().enumerate().fold(0usize, |acc, (i, &k)| {
-            acc | usize::from(character(k, cell) < 0.0) << i
-        });
-        if *sign_of_block.entry(block).or_insert(signs) != signs {
-            return false;
-        }
-    }
-    let distinct: HashSet<usize> = sign_of_block.values().copied().collect();
-    distinct.len() == sign_of_block.len() && sign_of_block.len() == keys.len() + 1
 }
 
 use crate::anova::gram::fwht;
@@ -1317,22 +1331,22 @@ mod tests {
             table.confounded_with_blocks,
             vec![t("AB"), t("CD"), t("ABCD")]
         );
-        let used: Vec<usize> = (0..16).filter(|&r| r != 3).collect();
-        assert!(blocks_follow_chains(
-            &o,
-            &table.aliasing,
-            &used,
-            &table.confounded_with_blocks
-        ));
-        // Blocks that cut across the cells of a chain do not follow it.
+        let rows: Vec<usize> = (0..16).collect();
+        let key = |label: &str| table.aliasing.key_of(t(label)).bits as usize;
+        let mut expect = vec![key("AB"), key("CD"), key("ABCD")];
+        expect.sort_unstable();
+        assert_eq!(
+            block_words::block_words(&o, &table.aliasing, &rows),
+            Some(expect)
+        );
+        // Blocks that cut across the cells of a chain are not made by confounding.
         let mut odd = blocks;
         odd.swap(0, 1);
         let o2 = Observations::new(4, full(4), odd, vec![Some(1.0); 16], vec![]).unwrap();
-        assert!(!blocks_follow_chains(
-            &o2,
-            &table.aliasing,
-            &used,
-            &table.confounded_with_blocks
-        ));
+        assert_eq!(block_words::block_words(&o2, &table.aliasing, &rows), None);
+        // Three blocks cannot be.
+        let three: Vec<u32> = (0..16).map(|i| 1 + (i % 3) as u32).collect();
+        let o3 = Observations::new(4, full(4), three, vec![Some(1.0); 16], vec![]).unwrap();
+        assert_eq!(block_words::block_words(&o3, &table.aliasing, &rows), None);
     }
 }
