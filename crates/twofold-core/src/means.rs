@@ -160,24 +160,36 @@ fn cells(
         }
     }
     let tq = t_quantile(0.5 + confidence / 2.0, fit.df_residual);
-    let used = obs.used_runs();
-    let mut out = Vec::with_capacity(1 << factors.len());
-    for c in 0..1usize << factors.len() {
+    // One pass over the runs: each run at ±1 on every factor of the cell goes to its cell
+    // (index bit i set when factor i is at +1); runs at the centre on any of them go nowhere.
+    let cell_count = 1usize << factors.len();
+    let mut sums = vec![0.0; cell_count];
+    let mut counts = vec![0usize; cell_count];
+    for r in obs.used_runs() {
+        let row = &obs.levels()[r];
+        let mut cell = 0usize;
+        let mut corner = true;
+        for (i, &f) in factors.iter().enumerate() {
+            let v = row[f];
+            if v == 1.0 {
+                cell |= 1 << i;
+            } else if v != -1.0 {
+                corner = false;
+                break;
+            }
+        }
+        if corner {
+            sums[cell] += obs.response()[r].unwrap_or(0.0);
+            counts[cell] += 1;
+        }
+    }
+    let mut out = Vec::with_capacity(cell_count);
+    for c in 0..cell_count {
         let settings: Vec<f64> = (0..factors.len())
             .map(|i| if c >> i & 1 == 1 { 1.0 } else { -1.0 })
             .collect();
-        let ys: Vec<f64> = used
-            .iter()
-            .filter(|&&r| {
-                factors
-                    .iter()
-                    .zip(&settings)
-                    .all(|(&f, &s)| obs.levels()[r][f] == s)
-            })
-            .map(|&r| obs.response()[r].unwrap_or(0.0))
-            .collect();
-        let n = ys.len();
-        let observed = (n > 0).then(|| ys.iter().sum::<f64>() / n as f64);
+        let n = counts[c];
+        let observed = (n > 0).then(|| sums[c] / n as f64);
         let observed_interval = match (observed, fit.sigma, tq) {
             (Some(m), Some(s), Some(t)) => {
                 let h = t * s / (n as f64).sqrt();

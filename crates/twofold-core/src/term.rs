@@ -182,9 +182,22 @@ impl Term {
 }
 
 impl Ord for Term {
-    /// Order of the trade: by number of letters, then alphabetically.
+    /// Order of the trade: by number of letters, then alphabetically — the order of
+    /// [`Term::trade_key`], compared without building the keys. Of two different terms with as
+    /// many letters, the lists of their letters agree up to the first letter only one of them
+    /// has, and that letter comes before the other's letter at the same place, so the term
+    /// holding the lowest letter of the two's difference comes first.
     fn cmp(&self, other: &Self) -> std::cmp::Ordering {
-        self.trade_key().cmp(&other.trade_key())
+        let (a, b) = (self.bits(), other.bits());
+        a.count_ones().cmp(&b.count_ones()).then_with(|| {
+            if a == b {
+                std::cmp::Ordering::Equal
+            } else if a >> (a ^ b).trailing_zeros() & 1 == 1 {
+                std::cmp::Ordering::Less
+            } else {
+                std::cmp::Ordering::Greater
+            }
+        })
     }
 }
 
@@ -272,6 +285,19 @@ pub fn main_effects_and_two_factor_interactions(factor_count: usize) -> Vec<Term
 #[cfg(test)]
 mod tests {
     use super::*;
+    use proptest::prelude::*;
+
+    proptest! {
+        /// Two implementations that must agree: the comparison without keys and the order of
+        /// the keys (number of letters, then the letters' indices lexicographically).
+        #[test]
+        fn comparison_follows_the_trade_key(a in 0u32..(1 << 25), b in 0u32..(1 << 25), near in 0u32..(1 << 25)) {
+            for (x, y) in [(a, b), (a, a ^ (near & 0b111)), (a, a ^ near)] {
+                let (s, t) = (Term::from_bits(x), Term::from_bits(y));
+                prop_assert_eq!(s.cmp(&t), s.trade_key().cmp(&t.trade_key()), "{} vs {}", x, y);
+            }
+        }
+    }
 
     #[test]
     fn letters_skip_i() {
