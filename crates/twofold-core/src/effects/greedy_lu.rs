@@ -26,7 +26,7 @@ use crate::prec::RANK_REL;
 use nalgebra::{DMatrix, DVector};
 
 /// Candidate columns formed and brought up to date at a time.
-const PANEL: usize = 48;
+const PANEL: usize = 64;
 
 /// The kept columns' factors: `P·G = L·U` for the `d × d` matrix `G` of the kept columns in the
 /// order kept, with `L` unit lower triangular below the diagonal of `factors` and `U` on and above
@@ -81,11 +81,18 @@ impl GreedyLu {
             let start = rank;
             for c in 0..width {
                 let now = kept.len();
-                for r in start..now {
-                    let v = panel[(r, c)];
-                    if v != 0.0 {
-                        for i in r + 1..d {
-                            panel[(i, c)] -= factors[(i, r)] * v;
+                {
+                    // Column slices (both matrices are stored by column), so the updates run
+                    // over contiguous memory.
+                    let pcol = &mut panel.as_mut_slice()[c * d..(c + 1) * d];
+                    let f = factors.as_slice();
+                    for r in start..now {
+                        let v = pcol[r];
+                        if v != 0.0 {
+                            let lcol = &f[r * d + r + 1..(r + 1) * d];
+                            for (p, l) in pcol[r + 1..].iter_mut().zip(lcol) {
+                                *p -= l * v;
+                            }
                         }
                     }
                 }
@@ -105,7 +112,10 @@ impl GreedyLu {
                 }
                 if pivot_row != now {
                     perm.swap(now, pivot_row);
-                    factors.swap_rows(now, pivot_row);
+                    // Columns from `now` on are still zero: only the kept ones need the swap.
+                    for j in 0..now {
+                        factors.swap((now, j), (pivot_row, j));
+                    }
                     panel.swap_rows(now, pivot_row);
                 }
                 let pivot = panel[(now, c)];
