@@ -64,7 +64,8 @@ pub enum DataError {
 #[derive(Debug, Clone, PartialEq)]
 pub struct Observations {
     factor_count: usize,
-    levels: Vec<Vec<f64>>,
+    /// Shared: copies of a table (another response, a transform) point at the same settings.
+    levels: std::sync::Arc<[Vec<f64>]>,
     blocks: Vec<u32>,
     response: Vec<Option<f64>>,
     excluded: Vec<bool>,
@@ -124,19 +125,10 @@ impl Observations {
                 return Err(DataError::Length { what, found, runs });
             }
         }
-        for (r, v) in response.iter().enumerate() {
-            if let Some(x) = v
-                && !x.is_finite()
-            {
-                return Err(DataError::NotFinite {
-                    run: r + 1,
-                    value: *x,
-                });
-            }
-        }
+        check_finite(&response)?;
         Ok(Observations {
             factor_count,
-            levels,
+            levels: levels.into(),
             blocks,
             response,
             excluded,
@@ -197,12 +189,36 @@ impl Observations {
 
     /// The same table with another response column (same length), e.g. after a transform.
     pub fn with_response(&self, response: Vec<Option<f64>>) -> Result<Observations, DataError> {
-        Observations::new(
-            self.factor_count,
-            self.levels.clone(),
-            self.blocks.clone(),
+        let runs = self.run_count();
+        if response.len() != runs {
+            return Err(DataError::Length {
+                what: "the response column",
+                found: response.len(),
+                runs,
+            });
+        }
+        check_finite(&response)?;
+        Ok(Observations {
+            factor_count: self.factor_count,
+            levels: std::sync::Arc::clone(&self.levels),
+            blocks: self.blocks.clone(),
             response,
-            self.excluded.clone(),
-        )
+            excluded: self.excluded.clone(),
+        })
     }
+}
+
+/// Every present response finite.
+fn check_finite(response: &[Option<f64>]) -> Result<(), DataError> {
+    for (r, v) in response.iter().enumerate() {
+        if let Some(x) = v
+            && !x.is_finite()
+        {
+            return Err(DataError::NotFinite {
+                run: r + 1,
+                value: *x,
+            });
+        }
+    }
+    Ok(())
 }
