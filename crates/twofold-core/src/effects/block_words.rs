@@ -32,16 +32,7 @@ pub(super) fn block_words(
         return None;
     }
     let cells = 1usize << aliasing.basis().len();
-    let mut block_of: Vec<Option<u32>> = vec![None; cells];
-    for &r in rows {
-        let c = aliasing.cell_of(&obs.levels()[r]) as usize;
-        let b = obs.blocks()[r];
-        let slot = block_of.get_mut(c)?;
-        match *slot {
-            Some(x) if x != b => return None,
-            _ => *slot = Some(b),
-        }
-    }
+    let block_of = super::layout::block_of_cells(obs, aliasing, rows)?;
     let blocks: BTreeSet<u32> = block_of.iter().flatten().copied().collect();
     let count = blocks.len();
     if !(2..=MAX_BLOCKS).contains(&count) || !count.is_power_of_two() {

@@ -18,7 +18,7 @@
 //! dependent (not estimable) and skipped, as the dense route's Gram–Schmidt does. Cost
 //! `O(N·log N + P³)` for `N` cells and `P` chains, memory `O(N + P²)`.
 
-use super::Effect;
+use super::{Effect, chain_effect};
 use crate::anova::gram::fwht;
 use crate::columns::AliasStructure;
 use crate::prec::GRAM_RANK_REL;
@@ -121,24 +121,7 @@ pub(super) fn lowest_chains(
         .iter()
         .zip(&beta)
         .filter(|(j, _)| **j >= always)
-        .map(|(&j, &b)| {
-            let i = tried[j - always];
-            let chain = &aliasing.chains()[i];
-            let sign = if aliasing.key_of(chain.representative).negative {
-                -1.0
-            } else {
-                1.0
-            };
-            // The representative's column is `sign·χ_κ`.
-            let coefficient = sign * b;
-            Effect {
-                term: chain.representative,
-                aliases: chain.aliases.clone(),
-                effect: 2.0 * coefficient,
-                coefficient,
-                chain: i,
-            }
-        })
+        .map(|(&j, &b)| chain_effect(aliasing, tried[j - always], b))
         .collect();
     Some(Reduced {
         effects,
