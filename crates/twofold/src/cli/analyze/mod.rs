@@ -163,7 +163,10 @@ fn report_csv(path: &std::path::Path, a: &AnalyzeArgs) -> Result<(Report, Vec<Ne
             return Err(format!("cannot read `{}`: {e}", path.display()));
         }
     };
-    let table = match read_coded_csv(&bytes) {
+    let table = read_coded_csv(&bytes);
+    // The file's text is not needed past this point (a 2^20 table is 61 MB of it).
+    drop(bytes);
+    let mut table = match table {
         Ok(t) => t,
         Err(e) => return Err(format!("{}: {e}", path.display())),
     };
@@ -191,6 +194,12 @@ fn report_csv(path: &std::path::Path, a: &AnalyzeArgs) -> Result<(Report, Vec<Ne
         .file_stem()
         .map_or_else(String::new, |s| s.to_string_lossy().into_owned());
     let project = twofold_study::report::project_from_coded(&table, &name);
+    // The project holds the settings and values now; the table keeps only what locates a row
+    // in an error message.
+    table.levels = Vec::new();
+    for r in &mut table.responses {
+        r.values = Vec::new();
+    }
     build(&project, index, &model, |e| {
         report_message(e, &table, &response)
     })
