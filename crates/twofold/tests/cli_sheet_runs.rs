@@ -79,3 +79,27 @@ fn the_plan_text_counts_every_block_and_agrees_with_the_sheet() {
         );
     }
 }
+
+#[test]
+fn a_fold_over_plan_says_its_design_is_the_fraction_and_its_fold_over() {
+    // The design of a full fold-over is the combined 2^(7-3) of 16 runs; the first line names
+    // it by its parts instead of calling its 16 runs the base runs of the first block.
+    let text = run(&[
+        "plan",
+        "--factors",
+        "7",
+        "--runs",
+        "8",
+        "--generators",
+        "D=AB,E=AC,F=BC,G=ABC",
+        "--fold",
+        "full",
+        "--seed",
+        "1",
+    ]);
+    let first = text.lines().next().unwrap_or_default();
+    assert!(
+        first.starts_with("Design: 2^(7-3) fraction, resolution IV, the 8-run fraction and its fold-over; 16 runs: 8 in the fraction, 8 in the fold-over block"),
+        "{first}"
+    );
+}

@@ -636,17 +636,20 @@ fn write_text(p: &Planned, out: &mut dyn Write) -> std::io::Result<()> {
             roman(res)
         ),
     };
+    // With a fold-over the design described is the combined one: say what it is made of, so
+    // its runs are not read as the first block's.
+    let base = match &p.fold {
+        Some(_) => format!(
+            "the {}-run fraction and its fold-over",
+            p.design.base_runs() / 2
+        ),
+        None => format!("{} base runs", p.design.base_runs()),
+    };
     match &p.sheet {
-        Some(sheet) => writeln!(
-            out,
-            "Design: {kind}, {} base runs; {}",
-            p.design.base_runs(),
-            sheet.describe()
-        )?,
+        Some(sheet) => writeln!(out, "Design: {kind}, {base}; {}", sheet.describe())?,
         None => writeln!(
             out,
-            "Design: {kind}, {} base runs, {} runs in all",
-            p.design.base_runs(),
+            "Design: {kind}, {base}, {} runs in all",
             p.plan.total_runs()
         )?,
     }
