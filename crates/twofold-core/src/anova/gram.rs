@@ -66,6 +66,71 @@ pub(crate) fn fwht(v: &mut [f64]) {
     }
 }
 
+/// An incremental Cholesky factorisation `G = LLᵀ` of the Gram matrix of the columns kept, taking
+/// the columns in order and keeping each one whose squared distance from the span of those kept
+/// before it (the pivot) exceeds [`GRAM_RANK_REL`] of its squared length.
+pub(crate) struct GreedyCholesky {
+    /// Indices of the kept columns, in order.
+    pub kept: Vec<usize>,
+    /// Row `i` of `L` (its first `i + 1` entries).
+    pub rows: Vec<Vec<f64>>,
+    /// Each column left out, with the coefficients of the kept columns before it that make it up.
+    pub dropped: Vec<(usize, Vec<(usize, f64)>)>,
+}
+
+impl GreedyCholesky {
+    /// Factorises the `p` columns whose cross products `entry(i, j)` gives.
+    pub fn new(p: usize, entry: impl Fn(usize, usize) -> f64) -> Self {
+        let mut out = GreedyCholesky {
+            kept: Vec::new(),
+            rows: Vec::new(),
+            dropped: Vec::new(),
+        };
+        for c in 0..p {
+            let g: Vec<f64> = out.kept.iter().map(|&j| entry(j, c)).collect();
+            let gcc = entry(c, c);
+            let l = out.forward(&g);
+            let d = gcc - l.iter().map(|v| v * v).sum::<f64>();
+            if gcc <= 0.0 || d <= GRAM_RANK_REL * gcc {
+                // Coefficients on the kept columns: L⁻ᵀ l.
+                let coef = out.backward(&l);
+                out.dropped
+                    .push((c, out.kept.iter().copied().zip(coef).collect()));
+            } else {
+                let mut row = l;
+                row.push(d.sqrt());
+                out.rows.push(row);
+                out.kept.push(c);
+            }
+        }
+        out
+    }
+
+    /// `L⁻¹g` (forward substitution; leading zeros of `g`, the usual case for a column
+    /// orthogonal to those before it, cost nothing).
+    pub fn forward(&self, g: &[f64]) -> Vec<f64> {
+        let n = self.kept.len();
+        let mut l = vec![0.0; n];
+        let first = g.iter().position(|&v| v != 0.0).unwrap_or(n);
+        for i in first..n {
+            let s: f64 = (first..i).map(|m| self.rows[i][m] * l[m]).sum();
+            l[i] = (g[i] - s) / self.rows[i][i];
+        }
+        l
+    }
+
+    /// `L⁻ᵀv` (back substitution).
+    pub fn backward(&self, v: &[f64]) -> Vec<f64> {
+        let n = self.kept.len();
+        let mut x = vec![0.0; n];
+        for i in (0..n).rev() {
+            let s: f64 = (i + 1..n).map(|m| self.rows[m][i] * x[m]).sum();
+            x[i] = (v[i] - s) / self.rows[i][i];
+        }
+        x
+    }
+}
+
 /// The used runs of a two-level table in the form the transform route reads.
 pub(super) struct Transform {
     k: usize,
@@ -206,47 +271,13 @@ impl Transform {
                     .sum(),
             }
         };
-        // Incremental Cholesky with the rank check, in the candidates' order.
-        let mut kept: Vec<usize> = Vec::new();
-        let mut l_rows: Vec<Vec<f64>> = Vec::new();
-        let mut dropped = Vec::new();
-        for ci in 0..pc {
-            let c = candidates[ci];
-            let g: Vec<f64> = kept.iter().map(|&j| entry(candidates[j], c)).collect();
-            let gcc = entry(c, c);
-            // l = L⁻¹ g (forward substitution; nothing to do for a column orthogonal to all
-            // kept before it, the usual case).
-            let mut l = vec![0.0; kept.len()];
-            let first = g.iter().position(|&v| v != 0.0).unwrap_or(kept.len());
-            for i in first..kept.len() {
-                let s: f64 = (first..i).map(|m| l_rows[i][m] * l[m]).sum();
-                l[i] = (g[i] - s) / l_rows[i][i];
-            }
-            let d = gcc - l.iter().map(|v| v * v).sum::<f64>();
-            if gcc <= 0.0 || d <= GRAM_RANK_REL * gcc {
-                // Coefficients on the kept columns: L⁻ᵀ l (back substitution).
-                let mut coef = vec![0.0; kept.len()];
-                for i in (0..kept.len()).rev() {
-                    let s: f64 = (i + 1..kept.len()).map(|m| l_rows[m][i] * coef[m]).sum();
-                    coef[i] = (l[i] - s) / l_rows[i][i];
-                }
-                dropped.push((ci, kept.iter().copied().zip(coef).collect()));
-            } else {
-                let mut row = l;
-                row.push(d.sqrt());
-                l_rows.push(row);
-                kept.push(ci);
-            }
-        }
-        let p = kept.len();
-        let r = DMatrix::from_fn(p, p, |i, j| if i <= j { l_rows[j][i] } else { 0.0 });
+        let chol = GreedyCholesky::new(pc, |i, j| entry(candidates[i], candidates[j]));
+        let p = chol.kept.len();
+        let r = DMatrix::from_fn(p, p, |i, j| if i <= j { chol.rows[j][i] } else { 0.0 });
         // Qᵀy = L⁻¹ Xᵀy.
-        let g: Vec<f64> = kept.iter().map(|&j| xty(candidates[j])).collect();
-        let mut qty = vec![0.0; p];
-        for i in 0..p {
-            let s: f64 = (0..i).map(|m| l_rows[i][m] * qty[m]).sum();
-            qty[i] = (g[i] - s) / l_rows[i][i];
-        }
+        let g: Vec<f64> = chol.kept.iter().map(|&j| xty(candidates[j])).collect();
+        let qty = chol.forward(&g);
+        let GreedyCholesky { kept, dropped, .. } = chol;
         Solved {
             kept,
             dropped,

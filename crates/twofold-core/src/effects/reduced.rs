@@ -19,11 +19,9 @@
 //! `O(N·log N + P³)` for `N` cells and `P` chains, memory `O(N + P²)`.
 
 use super::{Effect, chain_effect};
-use crate::anova::gram::fwht;
+use crate::anova::gram::{GreedyCholesky, fwht};
 use crate::columns::AliasStructure;
-use crate::prec::GRAM_RANK_REL;
 use crate::term::Term;
-use nalgebra::DMatrix;
 
 /// Most empty cells for which every chain is separated by the completion (`|M|²` numbers of
 /// 8 bytes: 32 MiB, and about `(2/3)·|M|³` operations, a second or so here).
@@ -63,60 +61,25 @@ pub(super) fn lowest_chains(
         keys.push(aliasing.chain_key(i)? as usize);
     }
     let always = 1 + fixed.len();
-    let p = keys.len();
-    // Cholesky factor of the kept columns' normal equations, grown one column at a time.
-    let mut l = DMatrix::<f64>::zeros(p, p);
-    let mut kept: Vec<usize> = Vec::new();
-    let mut not_estimable = Vec::new();
-    let mut row = vec![0.0; p];
-    for (j, &kj) in keys.iter().enumerate() {
-        let gjj = *t_counts.first()?;
-        for (slot, &ki) in row.iter_mut().zip(&kept) {
-            *slot = *t_counts.get(keys[ki] ^ kj)?;
-        }
-        // Forward substitution: row = L⁻¹·g.
-        let m = kept.len();
-        for a in 0..m {
-            let mut s = row[a];
-            for b in 0..a {
-                s -= l[(a, b)] * row[b];
-            }
-            row[a] = s / l[(a, a)];
-        }
-        let d = gjj - row[..m].iter().map(|v| v * v).sum::<f64>();
-        if gjj <= 0.0 || d <= GRAM_RANK_REL * gjj {
-            if j < always {
-                return None;
-            }
-            not_estimable.push(aliasing.chains()[tried[j - always]].representative);
-            continue;
-        }
-        for (b, &v) in row[..m].iter().enumerate() {
-            l[(m, b)] = v;
-        }
-        l[(m, m)] = d.sqrt();
-        kept.push(j);
+    // Keys lie below the number of cells, and so does the symmetric difference of two.
+    let cross = |i: usize, j: usize| t_counts.get(keys[i] ^ keys[j]).copied().unwrap_or(0.0);
+    let chol = GreedyCholesky::new(keys.len(), cross);
+    if chol.kept.len() < always || chol.kept[always - 1] != always - 1 {
+        return None;
     }
+    let not_estimable = chol
+        .dropped
+        .iter()
+        .map(|&(j, _)| aliasing.chains()[tried[j - always]].representative)
+        .collect();
     // Solve L·Lᵀ·β = Xᵀy.
-    let m = kept.len();
-    let mut beta: Vec<f64> = kept
+    let xty: Vec<f64> = chol
+        .kept
         .iter()
         .map(|&j| t_sums.get(keys[j]).copied())
         .collect::<Option<_>>()?;
-    for a in 0..m {
-        let mut s = beta[a];
-        for b in 0..a {
-            s -= l[(a, b)] * beta[b];
-        }
-        beta[a] = s / l[(a, a)];
-    }
-    for a in (0..m).rev() {
-        let mut s = beta[a];
-        for b in a + 1..m {
-            s -= l[(b, a)] * beta[b];
-        }
-        beta[a] = s / l[(a, a)];
-    }
+    let beta = chol.backward(&chol.forward(&xty));
+    let kept = chol.kept;
     let effects = kept
         .iter()
         .zip(&beta)
