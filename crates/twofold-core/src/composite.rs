@@ -485,20 +485,12 @@ fn lack_of_fit(
     residual_ss: f64,
     residual_df: usize,
 ) -> Option<LackOfFit> {
-    let mut groups: Vec<(Vec<u64>, u32, Vec<f64>)> = Vec::new();
-    for ((row, &b), &v) in rows.iter().zip(blocks).zip(y) {
-        let key: Vec<u64> = row.iter().map(|x| x.to_bits()).collect();
-        match groups.iter_mut().find(|g| g.0 == key && g.1 == b) {
-            Some(g) => g.2.push(v),
-            None => groups.push((key, b, vec![v])),
-        }
-    }
-    let (mut pe_ss, mut pe_df) = (0.0, 0usize);
-    for (_, _, vals) in &groups {
-        let m = vals.iter().sum::<f64>() / vals.len() as f64;
-        pe_ss += vals.iter().map(|v| (v - m) * (v - m)).sum::<f64>();
-        pe_df += vals.len() - 1;
-    }
+    let (pe_ss, pe_df) = crate::anova::fit::pure_error_of(
+        rows.iter()
+            .zip(blocks)
+            .map(|(r, &b)| (b, r.as_slice()))
+            .zip(y.iter().copied()),
+    );
     let df = residual_df.checked_sub(pe_df)?;
     if df == 0 || pe_df == 0 || pe_ss <= 0.0 {
         return None;

@@ -14,28 +14,29 @@ use super::*;
 /// responses from their group means, groups being runs with identical settings in the same block,
 /// and its degrees of freedom (Montgomery, *Design and Analysis of Experiments*, pure error of
 /// replicated runs and centre points).
-pub(super) fn pure_error_of<'a>(
+pub(crate) fn pure_error_of<'a>(
     runs: impl Iterator<Item = ((u32, &'a [f64]), f64)>,
 ) -> (f64, usize) {
     // Settings at −1, 0 or +1 pack into two bits a factor (25 factors fit in 64 bits); any other
-    // value keeps the whole row as its key.
+    // value (an axial run at ±α, say) keeps the whole row, exactly, as its key.
     #[derive(PartialEq, Eq, Hash)]
     enum Key {
         Packed(u32, u64),
-        Row(u32, Vec<i8>),
+        Row(u32, Vec<u64>),
     }
     let key_of = |block: u32, row: &[f64]| -> Key {
         let mut packed = 0u64;
         let mut ok = row.len() <= 32;
         for (f, &v) in row.iter().enumerate() {
-            let code = match v as i8 {
-                -1 => 1u64,
-                0 => 2,
-                1 => 3,
-                _ => {
-                    ok = false;
-                    0
-                }
+            let code = if v == -1.0 {
+                1u64
+            } else if v == 0.0 {
+                2
+            } else if v == 1.0 {
+                3
+            } else {
+                ok = false;
+                0
             };
             if ok {
                 packed |= code << (2 * f);
@@ -44,7 +45,8 @@ pub(super) fn pure_error_of<'a>(
         if ok {
             Key::Packed(block, packed)
         } else {
-            Key::Row(block, row.iter().map(|&v| v as i8).collect())
+            // `+ 0.0` makes −0 and 0 one key.
+            Key::Row(block, row.iter().map(|&v| (v + 0.0).to_bits()).collect())
         }
     };
     let mut index: std::collections::HashMap<Key, usize> = std::collections::HashMap::new();

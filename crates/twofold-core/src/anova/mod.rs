@@ -50,7 +50,7 @@
 
 mod distributions;
 mod equation;
-mod fit;
+pub(crate) mod fit;
 pub(crate) mod gram;
 
 /// Most parameters one fit takes: its `(XᵀX)⁻¹` holds the square of this many numbers (4096²

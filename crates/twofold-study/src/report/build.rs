@@ -171,11 +171,6 @@ impl Report {
                 return out;
             }
         };
-        if out.pure_error.is_none() {
-            // A model of the engineer's may show pure error the full fit could not (not
-            // expected: pure error depends on the runs only); keep the fit's word.
-            out.pure_error = super::PureError::of(&fit);
-        }
         out.curvature = CurvatureTest::of(&fit, out.pure_error.as_ref());
         out.equation_coded = Some(fit.equation_coded());
         out.equation_natural = natural_ranges(project)

@@ -135,13 +135,12 @@ pub struct PureError {
 }
 
 impl PureError {
-    /// The pure error of a fit's ANOVA table, if the data carry any.
-    pub fn of(fit: &ModelFit) -> Option<PureError> {
-        let row = fit.anova_row(Source::PureError)?;
-        (row.df > 0).then(|| PureError {
-            ss: row.ss,
-            df: row.df,
-            ms: row.ss / row.df as f64,
+    /// The pure error of a sum of squares and its degrees of freedom; `None` without any.
+    pub fn from_ss_df(ss: f64, df: usize) -> Option<PureError> {
+        (df > 0).then(|| PureError {
+            ss,
+            df,
+            ms: ss / df as f64,
         })
     }
 
@@ -270,6 +269,36 @@ pub fn given_choice(
     })
 }
 
+/// The effects Lenth's margins choose: those beyond the ME, or, when those kept hierarchical would
+/// make more than [`DEFAULT_MAX_TERMS`] terms, those beyond the SME (which allows for testing so
+/// many), with a note saying so. The one rule for the default choice and the effects step's
+/// button.
+pub fn lenth_selection(effects: &EffectTable, lenth: &Lenth) -> (Vec<Term>, Option<String>) {
+    let beyond = |sme_only: bool| -> Vec<Term> {
+        effects
+            .effects
+            .iter()
+            .filter(|e| match lenth.classify(e.effect) {
+                Significance::WithinMe => false,
+                Significance::BeyondMe => !sme_only,
+                _ => true,
+            })
+            .map(|e| e.term)
+            .collect()
+    };
+    let me = beyond(false);
+    if hierarchical_closure(&me).len() > DEFAULT_MAX_TERMS {
+        let note = format!(
+            "of {} effects, {} lie beyond Lenth's ME, more than a model can hold once kept hierarchical (at most {DEFAULT_MAX_TERMS} terms): the effects beyond the SME, which allows for testing so many, are taken instead",
+            effects.effects.len(),
+            me.len()
+        );
+        (beyond(true), Some(note))
+    } else {
+        (me, None)
+    }
+}
+
 /// The default choice (see the module documentation), with the pure error of the data when it
 /// carries any.
 pub fn default_choice(
@@ -283,11 +312,7 @@ pub fn default_choice(
     // times the squared coefficient; otherwise the full model is fitted, when it is small enough.
     let pure = {
         let (ss, df) = pure_error(obs);
-        (df > 0).then(|| PureError {
-            ss,
-            df,
-            ms: ss / df as f64,
-        })
+        PureError::from_ss_df(ss, df)
     };
     let mut notes = Vec::new();
     let mut tests = Vec::new();
@@ -347,29 +372,9 @@ pub fn default_choice(
             }
             match lenth {
                 Some(l) => {
-                    let beyond = |sme_only: bool| -> Vec<Term> {
-                        effects
-                            .effects
-                            .iter()
-                            .filter(|e| match l.classify(e.effect) {
-                                Significance::WithinMe => false,
-                                Significance::BeyondMe => !sme_only,
-                                _ => true,
-                            })
-                            .map(|e| e.term)
-                            .collect()
-                    };
-                    let me = beyond(false);
-                    if hierarchical_closure(&me).len() > DEFAULT_MAX_TERMS {
-                        notes.push(format!(
-                            "of {} effects, {} lie beyond Lenth's ME, more than a model can hold once kept hierarchical (at most {DEFAULT_MAX_TERMS} terms): the effects beyond the SME, which allows for testing so many, are taken instead",
-                            effects.effects.len(),
-                            me.len()
-                        ));
-                        (beyond(true), Selection::LenthMargin)
-                    } else {
-                        (me, Selection::LenthMargin)
-                    }
+                    let (terms, note) = lenth_selection(effects, l);
+                    notes.extend(note);
+                    (terms, Selection::LenthMargin)
                 }
                 None => (
                     effects

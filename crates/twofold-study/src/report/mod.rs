@@ -62,7 +62,7 @@ use crate::project::ModelSettings;
 pub use cache::{CACHE_ENTRIES, ReportCache};
 pub use choice::{
     CurvatureTest, ErrorBasis, ModelChoice, PureError, Selection, TERM_ALPHA, TermTest,
-    default_choice, given_choice,
+    default_choice, given_choice, lenth_selection,
 };
 pub use data::{
     ResponseData, core_transform, natural_ranges, plot_ranges, project_from_coded,

@@ -165,13 +165,13 @@ fn build(view: &View<'_>, res: &Report) -> Option<Built> {
         })
         .unwrap_or_default();
     let beyond = res.lenth.as_ref().ok().map(|l| {
-        let beyond: Vec<String> = table
-            .effects
-            .iter()
-            .filter(|e| l.classify(e.effect) != Significance::WithinMe)
-            .map(|e| e.term.label())
-            .collect();
-        let hover = format!("Sets the model to: {}", beyond.join(", "));
+        // The same rule as the default choice (beyond the SME when the ME's list is too long).
+        let (terms, note) = twofold_study::report::lenth_selection(table, l);
+        let beyond: Vec<String> = terms.iter().map(|t| t.label()).collect();
+        let mut hover = format!("Sets the model to: {}", beyond.join(", "));
+        if let Some(note) = note {
+            hover.push_str(&format!(" ({note})"));
+        }
         (beyond, hover)
     });
     let term_list = order

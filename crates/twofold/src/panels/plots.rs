@@ -253,13 +253,13 @@ pub struct ResidualPlot {
     /// Lines at ±this value mark unusually large residuals (e.g. 3 standard deviations).
     limit: Option<f64>,
     /// The points within the limit, and their run numbers (for hover text).
-    usual: Vec<[f64; 2]>,
+    usual: Vec<egui_plot::PlotPoint>,
     usual_runs: std::sync::Arc<Vec<usize>>,
     /// The points beyond the limit, and their run numbers.
-    unusual: Vec<[f64; 2]>,
+    unusual: Vec<egui_plot::PlotPoint>,
     unusual_runs: std::sync::Arc<Vec<usize>>,
     /// The reference line of the normal plot, or the points in run order joined.
-    line: Vec<[f64; 2]>,
+    line: Vec<egui_plot::PlotPoint>,
     /// Largest absolute residual or limit (the y range is ± this).
     ymag: f64,
 }
@@ -302,14 +302,17 @@ impl ResidualPlot {
             }
             ResidualKind::VsFitted => Vec::new(),
         };
+        let plot_points = |v: Vec<[f64; 2]>| -> Vec<egui_plot::PlotPoint> {
+            v.into_iter().map(egui_plot::PlotPoint::from).collect()
+        };
         ResidualPlot {
             kind,
             limit,
-            usual: pts(&usual),
+            usual: plot_points(pts(&usual)),
             usual_runs: std::sync::Arc::new(runs_of(&usual)),
-            unusual: pts(&unusual),
+            unusual: plot_points(pts(&unusual)),
             unusual_runs: std::sync::Arc::new(runs_of(&unusual)),
-            line,
+            line: plot_points(line),
             ymag,
         }
     }
@@ -336,8 +339,9 @@ impl ResidualPlot {
             let ymag = self.ymag;
             let usual_runs = std::sync::Arc::clone(&self.usual_runs);
             let unusual_runs = std::sync::Arc::clone(&self.unusual_runs);
+            // Borrowed, not copied: the points are made once per revision.
             let (usual_pts, unusual_pts, line_pts) =
-                (self.usual.clone(), self.unusual.clone(), self.line.clone());
+                (&self.usual[..], &self.unusual[..], &self.line[..]);
             let kind = self.kind;
             let limit = self.limit;
             let (accent, warn, muted, grid) = (pal.accent, pal.warn, pal.muted, pal.grid);
