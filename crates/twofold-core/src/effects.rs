@@ -286,12 +286,18 @@ pub fn estimate_effects_with(
     // A layout of more than `MAX_CHAINS` chains lists only its lower ones; the rest are left
     // out whatever the route.
     let listed_all = table.aliasing.is_complete();
+    // Chains beyond the listed ones (none when every chain is listed).
+    let unlisted = cells.as_ref().map_or(0, |c| {
+        c.means
+            .len()
+            .saturating_sub(1 + fixed + layout.candidates.len())
+    });
     let by_cells = match &cells {
         Some(c)
             if c.balanced
                 && (!listed_all || layout.candidates.len() + fixed + 1 == c.means.len()) =>
         {
-            table.left_out = c.means.len() - 1 - fixed - layout.candidates.len();
+            table.left_out = unlisted;
             table.method = EffectMethod::FastTransform;
             let means: Vec<f64> = c.means.iter().map(|m| m.unwrap_or(0.0)).collect();
             Some((
@@ -303,21 +309,15 @@ pub fn estimate_effects_with(
             if !listed_all
                 || c.means.iter().filter(|m| m.is_none()).count() > MAX_COMPLETION_CELLS =>
         {
-            let sums: Vec<f64> = c
-                .means
-                .iter()
-                .zip(&c.counts)
-                .map(|(m, &n)| m.unwrap_or(0.0) * n)
-                .collect();
             reduced::lowest_chains(
                 &table.aliasing,
                 &c.counts,
-                &sums,
+                &c.sums,
                 &layout.candidates,
                 &fixed_keys,
             )
             .map(|r| {
-                table.left_out = r.left_out + c.means.len() - 1 - fixed - layout.candidates.len();
+                table.left_out = r.left_out + unlisted;
                 (r.effects, r.not_estimable)
             })
         }
@@ -355,6 +355,8 @@ pub fn estimate_effects_with(
 struct CellMeans {
     /// One entry per cell (`None` = no used run there).
     means: Vec<Option<f64>>,
+    /// Response sums of the used runs in each cell.
+    sums: Vec<f64>,
     /// Used runs in each cell.
     counts: Vec<f64>,
     /// Every cell present, equally often.
@@ -377,13 +379,14 @@ fn cell_means(obs: &Observations, aliasing: &AliasStructure, used: &[usize]) -> 
     }
     let balanced = counts.iter().all(|&c| c == counts[0] && c > 0);
     let means = sums
-        .into_iter()
+        .iter()
         .zip(&counts)
         .map(|(s, &c)| (c > 0).then(|| s / c as f64))
         .collect();
     let counts = counts.into_iter().map(|c| c as f64).collect();
     Some(CellMeans {
         means,
+        sums,
         counts,
         balanced,
     })

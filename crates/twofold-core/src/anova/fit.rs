@@ -121,15 +121,25 @@ pub fn residual_ss_for<'a>(
     let block_of: Vec<u32> = fit.runs.iter().map(|&r| obs.blocks()[r]).collect();
     let labels = labels_of(&block_of);
     let t = transform_of(obs, &fit.runs, &block_of, &labels)?;
+    let inv = &fit.xtx_inv;
+    // Orthogonal columns (the usual case) make (XᵀX)⁻¹ diagonal: the quadratic form is then a
+    // sum over p terms, not p², at every call.
+    let diagonal = (0..inv.ncols()).all(|j| (0..inv.nrows()).all(|i| i == j || inv[(i, j)] == 0.0));
     Some(move |z: &[f64]| {
         let mean = z.iter().sum::<f64>() / z.len().max(1) as f64;
         let zc: Vec<f64> = z.iter().map(|v| v - mean).collect();
         let g = t.xty(&fit.columns, &labels, &zc);
         let p = g.len();
         let mut quad = 0.0;
-        for i in 0..p {
-            for j in 0..p {
-                quad += g[i] * fit.xtx_inv[(i, j)] * g[j];
+        if diagonal {
+            for i in 0..p {
+                quad += g[i] * inv[(i, i)] * g[i];
+            }
+        } else {
+            for i in 0..p {
+                for j in 0..p {
+                    quad += g[i] * inv[(i, j)] * g[j];
+                }
             }
         }
         (zc.iter().map(|v| v * v).sum::<f64>() - quad).max(0.0)

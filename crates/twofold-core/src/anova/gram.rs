@@ -175,32 +175,26 @@ impl Transform {
         })
     }
 
-    /// Per block, the transform of the run counts and of the response sums over the corners;
-    /// and per block the (factorial runs, centre runs, response sum at the centre).
-    #[allow(clippy::type_complexity)]
-    fn tables(&self, y: &[f64]) -> (Vec<Vec<f64>>, Vec<Vec<f64>>, Vec<(f64, f64, f64)>) {
+    /// Per block, the transform of the run counts over the corners, and per block the
+    /// (factorial runs, centre runs).
+    fn tables(&self) -> (Vec<Vec<f64>>, Vec<(f64, f64)>) {
         let size = 1usize << self.k;
         let mut counts = vec![vec![0.0; size]; self.blocks];
-        let mut sums = vec![vec![0.0; size]; self.blocks];
-        let mut centre = vec![(0.0, 0.0, 0.0); self.blocks];
+        let mut centre = vec![(0.0, 0.0); self.blocks];
         for (i, c) in self.corner.iter().enumerate() {
             let b = self.block[i];
             match c {
                 Some(c) => {
                     counts[b][*c] += 1.0;
-                    sums[b][*c] += y[i];
                     centre[b].0 += 1.0;
                 }
-                None => {
-                    centre[b].1 += 1.0;
-                    centre[b].2 += y[i];
-                }
+                None => centre[b].1 += 1.0,
             }
         }
-        for v in counts.iter_mut().chain(sums.iter_mut()) {
+        for v in &mut counts {
             fwht(v);
         }
-        (counts, sums, centre)
+        (counts, centre)
     }
 
     /// Value of a non-term column in block `b` at a two-level run (`centre` false) or a centre
@@ -233,7 +227,7 @@ impl Transform {
     /// Solves the normal equations of `candidates` (in the fit's order) by the transform (see the
     /// module documentation); the fitted values are filled in by [`Transform::fitted`].
     pub fn solve(&self, candidates: &[Column], labels: &[u32], y: &[f64]) -> Solved {
-        let (counts, sums, centre) = self.tables(y);
+        let (counts, centre) = self.tables();
         let nb = self.blocks;
         let pc = candidates.len();
         // Cross products of the candidates.
@@ -260,23 +254,12 @@ impl Transform {
                     .sum(),
             }
         };
-        let xty = |a: Column| -> f64 {
-            match a {
-                Column::Term(t) => (0..nb).map(|b| sums[b][t.bits() as usize]).sum(),
-                other => (0..nb)
-                    .map(|b| {
-                        self.nuisance(other, labels, b, false).unwrap_or(0.0) * sums[b][0]
-                            + self.nuisance(other, labels, b, true).unwrap_or(0.0) * centre[b].2
-                    })
-                    .sum(),
-            }
-        };
         let chol = GreedyCholesky::new(pc, |i, j| entry(candidates[i], candidates[j]));
         let p = chol.kept.len();
         let r = DMatrix::from_fn(p, p, |i, j| if i <= j { chol.rows[j][i] } else { 0.0 });
         // Qᵀy = L⁻¹ Xᵀy.
-        let g: Vec<f64> = chol.kept.iter().map(|&j| xty(candidates[j])).collect();
-        let qty = chol.forward(&g);
+        let kept_columns: Vec<Column> = chol.kept.iter().map(|&j| candidates[j]).collect();
+        let qty = chol.forward(&self.xty(&kept_columns, labels, y));
         let GreedyCholesky { kept, dropped, .. } = chol;
         Solved {
             kept,

@@ -181,8 +181,26 @@ impl ReportJson<'_> {
     }
 }
 
-/// The keys written from the report itself, in sorted order.
-const LONG_KEYS: [&str; 3] = ["effects", "half_normal", "normal_probability"];
+/// The long arrays written from the report itself.
+#[derive(Clone, Copy)]
+enum LongKey {
+    Effects,
+    HalfNormal,
+    NormalProbability,
+}
+
+impl LongKey {
+    /// In the order of their keys.
+    const ALL: [LongKey; 3] = [Self::Effects, Self::HalfNormal, Self::NormalProbability];
+
+    fn key(self) -> &'static str {
+        match self {
+            Self::Effects => "effects",
+            Self::HalfNormal => "half_normal",
+            Self::NormalProbability => "normal_probability",
+        }
+    }
+}
 
 #[derive(serde::Serialize)]
 struct EffectRow {
@@ -213,14 +231,14 @@ struct NormalRow {
 }
 
 /// One of the long arrays, its entries made as they are written.
-struct Long<'a>(&'static str, &'a Report);
+struct Long<'a>(LongKey, &'a Report);
 
 impl serde::Serialize for Long<'_> {
     fn serialize<S: serde::Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
         use serde::ser::SerializeSeq;
         let r = self.1;
         match self.0 {
-            "effects" => {
+            LongKey::Effects => {
                 let Ok(table) = r.effects.as_ref() else {
                     return s.serialize_seq(Some(0))?.end();
                 };
@@ -239,7 +257,7 @@ impl serde::Serialize for Long<'_> {
                 }
                 seq.end()
             }
-            "half_normal" => {
+            LongKey::HalfNormal => {
                 let mut seq = s.serialize_seq(Some(r.half_normal.len()))?;
                 for p in &r.half_normal {
                     seq.serialize_element(&HalfNormalRow {
@@ -252,7 +270,7 @@ impl serde::Serialize for Long<'_> {
                 }
                 seq.end()
             }
-            _ => {
+            LongKey::NormalProbability => {
                 let mut seq = s.serialize_seq(Some(r.normal.len()))?;
                 for p in &r.normal {
                     seq.serialize_element(&NormalRow {
@@ -273,21 +291,16 @@ impl serde::Serialize for ReportJson<'_> {
         use serde::ser::SerializeMap;
         // Both key lists are sorted (the map's keys by its order, the long ones as written):
         // merge them so the output is in the order of a value tree's map.
-        let mut map = s.serialize_map(Some(self.small.len() + LONG_KEYS.len()))?;
-        let mut long = LONG_KEYS.iter().peekable();
+        let mut map = s.serialize_map(Some(self.small.len() + LongKey::ALL.len()))?;
+        let mut long = LongKey::ALL.iter().copied().peekable();
         for (k, v) in &self.small {
-            while let Some(&&l) = long.peek() {
-                if l < k.as_str() {
-                    map.serialize_entry(l, &Long(l, self.report))?;
-                    long.next();
-                } else {
-                    break;
-                }
+            while let Some(l) = long.next_if(|l| l.key() < k.as_str()) {
+                map.serialize_entry(l.key(), &Long(l, self.report))?;
             }
             map.serialize_entry(k, v)?;
         }
-        for &l in long {
-            map.serialize_entry(l, &Long(l, self.report))?;
+        for l in long {
+            map.serialize_entry(l.key(), &Long(l, self.report))?;
         }
         map.end()
     }
