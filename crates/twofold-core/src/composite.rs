@@ -369,21 +369,14 @@ pub fn quadratic_terms(k: usize, blocks: &[u32]) -> Vec<QuadTerm> {
     terms
 }
 
-/// Fits the quadratic model to coded settings `rows`, their `blocks` and responses `y` (the runs
-/// to use only; see the module documentation for the model and the canonical analysis).
-pub fn fit_quadratic(
+/// The quadratic model's matrix on coded settings `rows` and their `blocks`, checked for rank:
+/// `(k, terms, X, (XᵀX)⁻¹)`, or why the model cannot be fitted whatever the responses.
+#[allow(clippy::type_complexity)]
+fn model_matrix(
     rows: &[Vec<f64>],
     blocks: &[u32],
-    y: &[f64],
-) -> Result<QuadraticFit, CompositeError> {
+) -> Result<(usize, Vec<QuadTerm>, DMatrix<f64>, DMatrix<f64>), CompositeError> {
     let n = rows.len();
-    if blocks.len() != n || y.len() != n {
-        return Err(CompositeError::Lengths {
-            rows: n,
-            blocks: blocks.len(),
-            values: y.len(),
-        });
-    }
     let k = rows.first().map_or(0, Vec::len);
     if k < 2 {
         return Err(CompositeError::TooFewFactors(k));
@@ -399,7 +392,6 @@ pub fn fit_quadratic(
     }
     let first = labels[0];
     let x = DMatrix::from_fn(n, p, |r, c| terms[c].value(&rows[r], blocks[r], first));
-    let yv = DVector::from_column_slice(y);
     let xtx = x.transpose() * &x;
     // Rank check on the scaled cross-product: a pivot below RANK_REL of the largest is zero.
     let sv = xtx.clone().singular_values();
@@ -408,6 +400,39 @@ pub fn fit_quadratic(
         return Err(not_estimable);
     }
     let inv = xtx.try_inverse().ok_or(not_estimable)?;
+    Ok((k, terms, x, inv))
+}
+
+/// Whether the quadratic model (with a shift per block) can be fitted to runs given as (coded
+/// settings, block), whatever values they get.
+pub fn quadratic_estimable<'a>(
+    runs: impl IntoIterator<Item = (&'a [i8], u32)>,
+) -> Result<(), CompositeError> {
+    let (rows, blocks): (Vec<Vec<f64>>, Vec<u32>) = runs
+        .into_iter()
+        .map(|(levels, block)| (levels.iter().map(|&v| f64::from(v)).collect(), block))
+        .unzip();
+    model_matrix(&rows, &blocks).map(|_| ())
+}
+
+/// Fits the quadratic model to coded settings `rows`, their `blocks` and responses `y` (the runs
+/// to use only; see the module documentation for the model and the canonical analysis).
+pub fn fit_quadratic(
+    rows: &[Vec<f64>],
+    blocks: &[u32],
+    y: &[f64],
+) -> Result<QuadraticFit, CompositeError> {
+    let n = rows.len();
+    if blocks.len() != n || y.len() != n {
+        return Err(CompositeError::Lengths {
+            rows: n,
+            blocks: blocks.len(),
+            values: y.len(),
+        });
+    }
+    let (k, terms, x, inv) = model_matrix(rows, blocks)?;
+    let p = terms.len();
+    let yv = DVector::from_column_slice(y);
     let beta = &inv * (x.transpose() * &yv);
     let fitted = &x * &beta;
     let residual_ss: f64 = (&yv - &fitted).iter().map(|e| e * e).sum();

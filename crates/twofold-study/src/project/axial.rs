@@ -89,22 +89,16 @@ pub(crate) fn with_axial_block(
 }
 
 /// Whether the sheet `design` gives `project` can fit the quadratic model (every run with a
-/// value): laid out, then fitted to zeros, which fails exactly when some term is not estimable.
+/// value), by the rank of the model on the laid-out runs.
 pub(crate) fn check_estimable(
     project: &Project,
     design: &DesignSettings,
 ) -> Result<(), super::FollowUpError> {
     let (runs, _) = super::regenerate::plan_runs(project, design)?;
-    let rows: Vec<Vec<f64>> = runs
-        .iter()
-        .map(|r| r.levels.iter().map(|&v| f64::from(v)).collect())
-        .collect();
-    let blocks: Vec<u32> = runs.iter().map(|r| r.block).collect();
-    let zeros = vec![0.0; runs.len()];
-    match twofold_core::composite::fit_quadratic(&rows, &blocks, &zeros) {
-        Ok(_) => Ok(()),
-        Err(e) => Err(super::FollowUpError::QuadraticNotEstimable(e.to_string())),
-    }
+    twofold_core::composite::quadratic_estimable(
+        runs.iter().map(|r| (r.levels.as_slice(), r.block)),
+    )
+    .map_err(|e| super::FollowUpError::QuadraticNotEstimable(e.to_string()))
 }
 
 impl Project {

@@ -10,7 +10,6 @@
 
 use serde_json::{Value, json};
 use twofold_core::composite::{QuadraticFit, SurfaceKind, fit_quadratic};
-use twofold_core::term::LETTERS;
 
 use super::Report;
 use super::choice::TERM_ALPHA;
@@ -36,7 +35,7 @@ pub struct QuadraticReport {
 }
 
 fn letter(i: usize) -> char {
-    LETTERS.get(i).copied().unwrap_or('?')
+    twofold_core::term::factor_letter(i).unwrap_or('?')
 }
 
 fn num(x: f64) -> String {
@@ -93,12 +92,10 @@ pub(super) fn quadratic_report(
     });
     if let Ok(fit) = &out.fit {
         let ranges = plot_ranges(project);
-        out.stationary_natural = fit.stationary.as_ref().map(|s| {
-            s.x.iter()
-                .zip(&ranges)
-                .map(|(x, (lo, hi))| (lo + hi) / 2.0 + x * (hi - lo) / 2.0)
-                .collect()
-        });
+        out.stationary_natural = fit
+            .stationary
+            .as_ref()
+            .and_then(|s| twofold_core::predict::to_natural(&s.x, &ranges).ok());
         let names: Vec<String> = project.factors.iter().map(|f| f.name.clone()).collect();
         out.notes
             .extend(fit_notes(fit, out.stationary_natural.as_deref(), &names));

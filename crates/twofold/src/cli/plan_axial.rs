@@ -2,7 +2,7 @@
 //! composite design (see `twofold_core::composite`), and the α choices.
 
 use serde_json::{Value, json};
-use twofold_core::composite::{AxialAlphas, add_axial_block, axial_alphas, fit_quadratic};
+use twofold_core::composite::{AxialAlphas, add_axial_block, axial_alphas, quadratic_estimable};
 use twofold_core::plan::Plan;
 
 /// The axial block added to a plan.
@@ -51,12 +51,7 @@ pub(crate) fn augment(
         randomise,
     )
     .map_err(|e| format!("--augment axial: {e}"))?;
-    let rows: Vec<Vec<f64>> = runs
-        .iter()
-        .map(|r| r.levels.iter().map(|&v| f64::from(v)).collect())
-        .collect();
-    let blocks: Vec<u32> = runs.iter().map(|r| r.block).collect();
-    fit_quadratic(&rows, &blocks, &vec![0.0; rows.len()]).map_err(|e| {
+    quadratic_estimable(runs.iter().map(|r| (r.levels.as_slice(), r.block))).map_err(|e| {
         format!(
             "--augment axial: even with axial runs {e}; the fraction aliases two-factor interactions: use a resolution V fraction, the full factorial, or a fold-over first"
         )
