@@ -200,7 +200,7 @@ pub(crate) fn block_for(
     d: &DesignSettings,
     follow_up: &FollowUp,
 ) -> Result<AddedBlock, FollowUpError> {
-    if d.fold.is_some() || d.added.is_some() {
+    if d.has_follow_up_block() {
         return Err(FollowUpError::AlreadyFolded);
     }
     if d.screening_runs().is_some() {
@@ -457,6 +457,74 @@ mod tests {
         ] {
             let e = separate_option(&before, text, None).unwrap_err();
             assert!(e.starts_with(want), "{e}");
+        }
+    }
+
+    #[test]
+    fn a_replicate_after_an_added_block_repeats_each_block_within_it() {
+        // Counted by hand: 16 fraction runs in block 1 and 8 semifold runs in block 2, each
+        // repeated once within its own block, gives 48 runs in the same 2 blocks.
+        let mut p = res_iv();
+        let spec = SemiFold::with_default_half(FoldKind::Factor(0));
+        p.apply(Edit::AddFollowUp(FollowUp::SemiFold(spec)))
+            .unwrap();
+        assert!(p.design.has_follow_up_block());
+        let preview = p.preview_follow_up(FollowUp::Replicate).unwrap();
+        assert_eq!((preview.runs_after, preview.blocks_after), (48, 2));
+        assert!(!preview.design.replicates_as_blocks);
+        // The option is offered and says where its runs go; the other blocks are not.
+        let list = crate::report::next_runs(&p, None);
+        let rep = list
+            .iter()
+            .find(|n| n.follow_up == FollowUp::Replicate)
+            .unwrap_or_else(|| panic!("no replicate option"));
+        assert!(rep.preview.is_ok(), "{:?}", rep.preview);
+        assert!(
+            rep.resolves
+                .iter()
+                .any(|l| l.starts_with("Repeats each block's runs within that block")),
+            "{:?}",
+            rep.resolves
+        );
+        for f in [
+            FollowUp::FoldOver(FoldKind::Full),
+            FollowUp::SemiFold(spec),
+            FollowUp::Separate(parse_interactions("AE", 6).unwrap()),
+        ] {
+            assert_eq!(p.follow_up_design(f), Err(FollowUpError::AlreadyFolded));
+        }
+        let before = p.clone();
+        p.apply(Edit::AddFollowUp(FollowUp::Replicate)).unwrap();
+        assert_eq!(p.runs.len(), 48);
+        typed_kept(&before, &p);
+        // Runs chosen to separate interactions take a replicate the same way.
+        let mut q = res_iv();
+        q.apply(Edit::AddFollowUp(FollowUp::Separate(
+            parse_interactions("AE, BC", 6).unwrap(),
+        )))
+        .unwrap();
+        let before = q.clone();
+        q.apply(Edit::AddFollowUp(FollowUp::Replicate)).unwrap();
+        assert_eq!(q.runs.len(), 2 * before.runs.len());
+        typed_kept(&before, &q);
+    }
+
+    /// Every typed run of `before` is in `after` with its values and note, in the same block
+    /// (the run order within the block may change: the preview counts those runs).
+    fn typed_kept(before: &Project, after: &Project) {
+        for r in before
+            .runs
+            .iter()
+            .filter(|r| r.values.iter().any(|c| c.is_typed()))
+        {
+            assert!(
+                after.runs.iter().any(|n| n.levels == r.levels
+                    && n.block == r.block
+                    && n.values == r.values
+                    && n.note == r.note),
+                "run {:?} lost its values",
+                r.levels
+            );
         }
     }
 

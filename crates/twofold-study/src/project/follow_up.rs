@@ -142,7 +142,12 @@ impl Project {
             return Err(FollowUpError::AlreadyAxial);
         }
         let screening = d.screening_runs().is_some();
-        if d.added.is_some() && matches!(follow_up, FollowUp::FoldOver(_)) {
+        if d.has_follow_up_block()
+            && matches!(
+                follow_up,
+                FollowUp::FoldOver(_) | FollowUp::SemiFold(_) | FollowUp::Separate(_)
+            )
+        {
             return Err(FollowUpError::AlreadyFolded);
         }
         match follow_up {
@@ -150,9 +155,6 @@ impl Project {
                 d.added = Some(super::added_block::block_for(self, &d, &follow_up)?);
             }
             FollowUp::FoldOver(kind) if screening => {
-                if d.fold.is_some() {
-                    return Err(FollowUpError::AlreadyFolded);
-                }
                 if kind != twofold_core::foldover::FoldKind::Full {
                     return Err(FollowUpError::from(PlanError::Invalid(
                         "a screening design is folded over in full; single-factor folds are not offered for it".into(),
@@ -161,9 +163,6 @@ impl Project {
                 d.fold = Some(kind);
             }
             FollowUp::FoldOver(kind) => {
-                if d.fold.is_some() {
-                    return Err(FollowUpError::AlreadyFolded);
-                }
                 let fraction = fraction_of(
                     self.factors.len(),
                     &d,
@@ -183,7 +182,10 @@ impl Project {
             }
             FollowUp::Replicate => {
                 // Screening designs are planned in one block (their blocking is not offered yet).
-                if d.replicates == 1 && d.fold.is_none() && !screening {
+                // After a follow-up block the sheet holds two blocks already, laid out without
+                // other blocking: the replicate repeats each block's runs within that block
+                // (`twofold_core::plan::build_added_block_plan` refuses replicates as blocks).
+                if d.replicates == 1 && !d.has_follow_up_block() && !screening {
                     d.replicates_as_blocks = true;
                 }
                 d.replicates = d.replicates.saturating_add(1);
