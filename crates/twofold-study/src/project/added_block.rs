@@ -12,7 +12,7 @@ use serde::{Deserialize, Serialize};
 use twofold_core::augment::separate_interactions;
 use twofold_core::foldover::FoldKind;
 use twofold_core::semifold::{SemiFold, semifold};
-use twofold_core::term::Term;
+use twofold_core::term::{MAX_FACTORS, Term};
 
 use super::follow_up::{FollowUp, FollowUpError};
 use super::model::{BlockChoice, DesignSettings, Project};
@@ -65,11 +65,7 @@ impl AddedBlock {
     pub(crate) fn factor_removed(self, index: usize) -> Option<AddedBlock> {
         match self {
             AddedBlock::Semifold(mut s) => {
-                let down = |i: usize| match i.cmp(&index) {
-                    std::cmp::Ordering::Less => Some(i),
-                    std::cmp::Ordering::Equal => None,
-                    std::cmp::Ordering::Greater => Some(i - 1),
-                };
+                let down = super::edit::index_after_removal(index);
                 s.keep = down(s.keep)?;
                 if let FoldKind::Factor(f) = s.fold {
                     s.fold = FoldKind::Factor(down(f)?);
@@ -92,7 +88,6 @@ impl AddedBlock {
                 AddedBlock::Semifold(s)
             }
             AddedBlock::Separate { interactions, runs } => {
-                let k = runs.first().map_or(0, Vec::len);
                 let runs = runs
                     .into_iter()
                     .map(|r| {
@@ -105,18 +100,13 @@ impl AddedBlock {
                         out
                     })
                     .collect();
+                // Read against the largest factor count, not the runs' length: a block may hold
+                // no runs, and its labels must still follow the letters.
                 let interactions = interactions
                     .into_iter()
-                    .map(|label| match Term::parse(&label, k) {
-                        Ok(t) => {
-                            let mut factors: Vec<usize> = t.factors().map(&moved).collect();
-                            factors.sort_unstable();
-                            factors
-                                .into_iter()
-                                .fold(Term::IDENTITY, |acc, f| acc.times(Term::main(f)))
-                                .label()
-                        }
-                        Err(_) => label,
+                    .map(|label| {
+                        super::edit::remap_label(&label, |i| Some(moved(i)), MAX_FACTORS)
+                            .unwrap_or(label)
                     })
                     .collect();
                 AddedBlock::Separate { interactions, runs }
@@ -562,6 +552,20 @@ mod tests {
             AddedBlock::Separate {
                 interactions: vec!["BC".into()],
                 runs: vec![vec![-1, -1, 1]],
+            }
+        );
+        // Without runs the labels follow the letters all the same (the letters were once read
+        // against the runs' length, zero here, and kept as they were).
+        let empty = AddedBlock::Separate {
+            interactions: vec!["AC".into(), "BE".into()],
+            runs: Vec::new(),
+        };
+        let m5 = |i: usize| if i == 0 { 4 } else { i - 1 };
+        assert_eq!(
+            empty.factor_moved(m5),
+            AddedBlock::Separate {
+                interactions: vec!["BE".into(), "AD".into()],
+                runs: Vec::new(),
             }
         );
     }
