@@ -11,7 +11,7 @@
 use serde::{Deserialize, Serialize};
 use twofold_core::augment::separate_interactions;
 use twofold_core::foldover::FoldKind;
-use twofold_core::semifold::{SemiFold, semifold};
+use twofold_core::semifold::{SemiFold, semifold_runs};
 use twofold_core::term::{MAX_FACTORS, Term};
 
 use super::follow_up::{FollowUp, FollowUpError};
@@ -39,9 +39,9 @@ impl AddedBlock {
         fraction: &twofold_core::design::FractionalDesign,
     ) -> Result<Vec<Vec<i8>>, PlanError> {
         match self {
-            AddedBlock::Semifold(s) => semifold(fraction, *s)
-                .map(|x| x.follow_up_runs)
-                .map_err(|e| PlanError::Invalid(e.to_string())),
+            AddedBlock::Semifold(s) => {
+                semifold_runs(fraction, *s).map_err(|e| PlanError::Invalid(e.to_string()))
+            }
             AddedBlock::Separate { runs, .. } => Ok(runs.clone()),
         }
     }
@@ -202,7 +202,7 @@ pub(crate) fn block_for(
     match follow_up {
         FollowUp::SemiFold(s) => {
             let fraction = fraction_of(k, d, &super::regenerate::hard_to_change_of(project))?;
-            semifold(&fraction, *s).map_err(|e| match e {
+            semifold_runs(&fraction, *s).map_err(|e| match e {
                 twofold_core::semifold::SemiFoldError::RepeatsRuns => FollowUpError::RepeatsRuns,
                 other => FollowUpError::from(PlanError::Invalid(other.to_string())),
             })?;
