@@ -9,7 +9,7 @@
 //! already run.
 
 use serde::{Deserialize, Serialize};
-use twofold_core::augment::separate_interactions;
+use twofold_core::augment::{Augmentation, separate_interactions};
 use twofold_core::foldover::FoldKind;
 use twofold_core::semifold::{SemiFold, semifold_runs};
 use twofold_core::term::{MAX_FACTORS, Term};
@@ -184,12 +184,13 @@ pub fn parse_interactions(text: &str, k: usize) -> Result<Vec<Term>, String> {
     Ok(out)
 }
 
-/// The added block a semifold or a separation request gives for `project` with design `d`.
+/// The added block a semifold or a separation request gives for `project` with design `d`,
+/// with the search result for a separation request (so its description needs no second search).
 pub(crate) fn block_for(
     project: &Project,
     d: &DesignSettings,
     follow_up: &FollowUp,
-) -> Result<AddedBlock, FollowUpError> {
+) -> Result<(AddedBlock, Option<Augmentation>), FollowUpError> {
     if d.has_follow_up_block() {
         return Err(FollowUpError::AlreadyFolded);
     }
@@ -206,7 +207,7 @@ pub(crate) fn block_for(
                 twofold_core::semifold::SemiFoldError::RepeatsRuns => FollowUpError::RepeatsRuns,
                 other => FollowUpError::from(PlanError::Invalid(other.to_string())),
             })?;
-            Ok(AddedBlock::Semifold(*s))
+            Ok((AddedBlock::Semifold(*s), None))
         }
         FollowUp::Separate(terms) => {
             if d.replicates > 1 {
@@ -219,10 +220,11 @@ pub(crate) fn block_for(
             let a =
                 separate_interactions(&rows, &blocks, k, terms, d.centre_points_per_block as usize)
                     .map_err(|e| FollowUpError::from(PlanError::Invalid(e.to_string())))?;
-            Ok(AddedBlock::Separate {
+            let block = AddedBlock::Separate {
                 interactions: terms.iter().map(|t| t.label()).collect(),
-                runs: a.added_runs,
-            })
+                runs: a.added_runs.clone(),
+            };
+            Ok((block, Some(a)))
         }
         _ => Err(FollowUpError::from(PlanError::Invalid(
             "not an added block".into(),
@@ -407,6 +409,12 @@ mod tests {
         let option = separate_option(&before, "AE, BC", None).unwrap();
         assert_eq!(option.key(), "separate");
         assert_eq!(option.runs_added(), 3);
+        // The sentences describe the same search result as the preview's runs.
+        assert!(
+            option.resolves[0].starts_with("Adds 3 runs as block 2"),
+            "{:?}",
+            option.resolves
+        );
         assert!(
             option
                 .resolves

@@ -23,6 +23,7 @@
 
 use super::model::{DesignSettings, Project};
 use super::regenerate::{PlanError, carry_over, fraction_of, partners, plan_runs};
+use twofold_core::augment::Augmentation;
 use twofold_core::foldover::{FoldKind, fold_over};
 
 /// Centre points a follow-up adds to each block. Common practice, no source for the exact
@@ -130,6 +131,16 @@ impl FollowUpPreview {
 impl Project {
     /// The design settings after `follow_up`, or why it cannot be added.
     pub fn follow_up_design(&self, follow_up: FollowUp) -> Result<DesignSettings, FollowUpError> {
+        self.follow_up_design_with(follow_up).map(|(d, _)| d)
+    }
+
+    /// [`Self::follow_up_design`], with the search result of runs chosen to separate
+    /// interactions (`None` for every other follow-up), so a caller that describes them does
+    /// not search again.
+    pub(crate) fn follow_up_design_with(
+        &self,
+        follow_up: FollowUp,
+    ) -> Result<(DesignSettings, Option<Augmentation>), FollowUpError> {
         if self.runs.is_empty() {
             return Err(FollowUpError::NoRuns);
         }
@@ -150,9 +161,12 @@ impl Project {
         {
             return Err(FollowUpError::AlreadyFolded);
         }
+        let mut augmentation = None;
         match follow_up {
             FollowUp::SemiFold(_) | FollowUp::Separate(_) => {
-                d.added = Some(super::added_block::block_for(self, &d, &follow_up)?);
+                let (block, found) = super::added_block::block_for(self, &d, &follow_up)?;
+                d.added = Some(block);
+                augmentation = found;
             }
             FollowUp::FoldOver(kind) if screening => {
                 if kind != twofold_core::foldover::FoldKind::Full {
@@ -195,13 +209,22 @@ impl Project {
                 super::axial::check_estimable(self, &d)?;
             }
         }
-        Ok(d)
+        Ok((d, augmentation))
     }
 
     /// What `follow_up` would do to the sheet, computed by laying the new sheet out; an error
     /// says why it cannot be added.
     pub fn preview_follow_up(&self, follow_up: FollowUp) -> Result<FollowUpPreview, FollowUpError> {
-        let design = self.follow_up_design(follow_up)?;
+        self.preview_follow_up_with(follow_up).map(|(p, _)| p)
+    }
+
+    /// [`Self::preview_follow_up`], with the search result of runs chosen to separate
+    /// interactions (see [`Self::follow_up_design_with`]).
+    pub(crate) fn preview_follow_up_with(
+        &self,
+        follow_up: FollowUp,
+    ) -> Result<(FollowUpPreview, Option<Augmentation>), FollowUpError> {
+        let (design, augmentation) = self.follow_up_design_with(follow_up)?;
         let (fresh, _) = plan_runs(self, &design)?;
         let pairs = partners(&self.runs, &fresh);
         let lost: usize = self
@@ -223,7 +246,7 @@ impl Project {
                     .is_none_or(|n| n.run_order != r.run_order || n.block != r.block)
             })
             .count();
-        Ok(FollowUpPreview {
+        let preview = FollowUpPreview {
             design,
             runs_before: self.runs.len(),
             runs_after: fresh.len(),
@@ -231,7 +254,8 @@ impl Project {
             pure_error_df_before: pure_error_df(&self.runs),
             pure_error_df_after: pure_error_df(&fresh),
             blocks_after: fresh.iter().map(|r| r.block).max().unwrap_or(1),
-        })
+        };
+        Ok((preview, augmentation))
     }
 
     /// Adds `follow_up` (see the module documentation); the project is unchanged on error.
