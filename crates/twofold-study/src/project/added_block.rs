@@ -9,10 +9,10 @@
 //! already run.
 
 use serde::{Deserialize, Serialize};
-use twofold_core::augment::separate_interactions;
+use twofold_core::augment::{Augmentation, separate_interactions};
 use twofold_core::foldover::FoldKind;
-use twofold_core::semifold::{SemiFold, semifold};
-use twofold_core::term::Term;
+use twofold_core::semifold::{SemiFold, semifold_runs};
+use twofold_core::term::{MAX_FACTORS, Term};
 
 use super::follow_up::{FollowUp, FollowUpError};
 use super::model::{BlockChoice, DesignSettings, Project};
@@ -39,9 +39,9 @@ impl AddedBlock {
         fraction: &twofold_core::design::FractionalDesign,
     ) -> Result<Vec<Vec<i8>>, PlanError> {
         match self {
-            AddedBlock::Semifold(s) => semifold(fraction, *s)
-                .map(|x| x.follow_up_runs)
-                .map_err(|e| PlanError::Invalid(e.to_string())),
+            AddedBlock::Semifold(s) => {
+                semifold_runs(fraction, *s).map_err(|e| PlanError::Invalid(e.to_string()))
+            }
             AddedBlock::Separate { runs, .. } => Ok(runs.clone()),
         }
     }
@@ -65,11 +65,7 @@ impl AddedBlock {
     pub(crate) fn factor_removed(self, index: usize) -> Option<AddedBlock> {
         match self {
             AddedBlock::Semifold(mut s) => {
-                let down = |i: usize| match i.cmp(&index) {
-                    std::cmp::Ordering::Less => Some(i),
-                    std::cmp::Ordering::Equal => None,
-                    std::cmp::Ordering::Greater => Some(i - 1),
-                };
+                let down = super::edit::index_after_removal(index);
                 s.keep = down(s.keep)?;
                 if let FoldKind::Factor(f) = s.fold {
                     s.fold = FoldKind::Factor(down(f)?);
@@ -92,7 +88,6 @@ impl AddedBlock {
                 AddedBlock::Semifold(s)
             }
             AddedBlock::Separate { interactions, runs } => {
-                let k = runs.first().map_or(0, Vec::len);
                 let runs = runs
                     .into_iter()
                     .map(|r| {
@@ -105,18 +100,13 @@ impl AddedBlock {
                         out
                     })
                     .collect();
+                // Read against the largest factor count, not the runs' length: a block may hold
+                // no runs, and its labels must still follow the letters.
                 let interactions = interactions
                     .into_iter()
-                    .map(|label| match Term::parse(&label, k) {
-                        Ok(t) => {
-                            let mut factors: Vec<usize> = t.factors().map(&moved).collect();
-                            factors.sort_unstable();
-                            factors
-                                .into_iter()
-                                .fold(Term::IDENTITY, |acc, f| acc.times(Term::main(f)))
-                                .label()
-                        }
-                        Err(_) => label,
+                    .map(|label| {
+                        super::edit::remap_label(&label, |i| Some(moved(i)), MAX_FACTORS)
+                            .unwrap_or(label)
                     })
                     .collect();
                 AddedBlock::Separate { interactions, runs }
@@ -194,13 +184,14 @@ pub fn parse_interactions(text: &str, k: usize) -> Result<Vec<Term>, String> {
     Ok(out)
 }
 
-/// The added block a semifold or a separation request gives for `project` with design `d`.
+/// The added block a semifold or a separation request gives for `project` with design `d`,
+/// with the search result for a separation request (so its description needs no second search).
 pub(crate) fn block_for(
     project: &Project,
     d: &DesignSettings,
     follow_up: &FollowUp,
-) -> Result<AddedBlock, FollowUpError> {
-    if d.fold.is_some() || d.added.is_some() {
+) -> Result<(AddedBlock, Option<Augmentation>), FollowUpError> {
+    if d.has_follow_up_block() {
         return Err(FollowUpError::AlreadyFolded);
     }
     if d.screening_runs().is_some() {
@@ -212,11 +203,11 @@ pub(crate) fn block_for(
     match follow_up {
         FollowUp::SemiFold(s) => {
             let fraction = fraction_of(k, d, &super::regenerate::hard_to_change_of(project))?;
-            semifold(&fraction, *s).map_err(|e| match e {
+            semifold_runs(&fraction, *s).map_err(|e| match e {
                 twofold_core::semifold::SemiFoldError::RepeatsRuns => FollowUpError::RepeatsRuns,
                 other => FollowUpError::from(PlanError::Invalid(other.to_string())),
             })?;
-            Ok(AddedBlock::Semifold(*s))
+            Ok((AddedBlock::Semifold(*s), None))
         }
         FollowUp::Separate(terms) => {
             if d.replicates > 1 {
@@ -229,10 +220,11 @@ pub(crate) fn block_for(
             let a =
                 separate_interactions(&rows, &blocks, k, terms, d.centre_points_per_block as usize)
                     .map_err(|e| FollowUpError::from(PlanError::Invalid(e.to_string())))?;
-            Ok(AddedBlock::Separate {
+            let block = AddedBlock::Separate {
                 interactions: terms.iter().map(|t| t.label()).collect(),
-                runs: a.added_runs,
-            })
+                runs: a.added_runs.clone(),
+            };
+            Ok((block, Some(a)))
         }
         _ => Err(FollowUpError::from(PlanError::Invalid(
             "not an added block".into(),
@@ -417,6 +409,12 @@ mod tests {
         let option = separate_option(&before, "AE, BC", None).unwrap();
         assert_eq!(option.key(), "separate");
         assert_eq!(option.runs_added(), 3);
+        // The sentences describe the same search result as the preview's runs.
+        assert!(
+            option.resolves[0].starts_with("Adds 3 runs as block 2"),
+            "{:?}",
+            option.resolves
+        );
         assert!(
             option
                 .resolves
@@ -461,6 +459,74 @@ mod tests {
     }
 
     #[test]
+    fn a_replicate_after_an_added_block_repeats_each_block_within_it() {
+        // Counted by hand: 16 fraction runs in block 1 and 8 semifold runs in block 2, each
+        // repeated once within its own block, gives 48 runs in the same 2 blocks.
+        let mut p = res_iv();
+        let spec = SemiFold::with_default_half(FoldKind::Factor(0));
+        p.apply(Edit::AddFollowUp(FollowUp::SemiFold(spec)))
+            .unwrap();
+        assert!(p.design.has_follow_up_block());
+        let preview = p.preview_follow_up(FollowUp::Replicate).unwrap();
+        assert_eq!((preview.runs_after, preview.blocks_after), (48, 2));
+        assert!(!preview.design.replicates_as_blocks);
+        // The option is offered and says where its runs go; the other blocks are not.
+        let list = crate::report::next_runs(&p, None);
+        let rep = list
+            .iter()
+            .find(|n| n.follow_up == FollowUp::Replicate)
+            .unwrap_or_else(|| panic!("no replicate option"));
+        assert!(rep.preview.is_ok(), "{:?}", rep.preview);
+        assert!(
+            rep.resolves
+                .iter()
+                .any(|l| l.starts_with("Repeats each block's runs within that block")),
+            "{:?}",
+            rep.resolves
+        );
+        for f in [
+            FollowUp::FoldOver(FoldKind::Full),
+            FollowUp::SemiFold(spec),
+            FollowUp::Separate(parse_interactions("AE", 6).unwrap()),
+        ] {
+            assert_eq!(p.follow_up_design(f), Err(FollowUpError::AlreadyFolded));
+        }
+        let before = p.clone();
+        p.apply(Edit::AddFollowUp(FollowUp::Replicate)).unwrap();
+        assert_eq!(p.runs.len(), 48);
+        typed_kept(&before, &p);
+        // Runs chosen to separate interactions take a replicate the same way.
+        let mut q = res_iv();
+        q.apply(Edit::AddFollowUp(FollowUp::Separate(
+            parse_interactions("AE, BC", 6).unwrap(),
+        )))
+        .unwrap();
+        let before = q.clone();
+        q.apply(Edit::AddFollowUp(FollowUp::Replicate)).unwrap();
+        assert_eq!(q.runs.len(), 2 * before.runs.len());
+        typed_kept(&before, &q);
+    }
+
+    /// Every typed run of `before` is in `after` with its values and note, in the same block
+    /// (the run order within the block may change: the preview counts those runs).
+    fn typed_kept(before: &Project, after: &Project) {
+        for r in before
+            .runs
+            .iter()
+            .filter(|r| r.values.iter().any(|c| c.is_typed()))
+        {
+            assert!(
+                after.runs.iter().any(|n| n.levels == r.levels
+                    && n.block == r.block
+                    && n.values == r.values
+                    && n.note == r.note),
+                "run {:?} lost its values",
+                r.levels
+            );
+        }
+    }
+
+    #[test]
     fn moving_or_removing_a_factor_follows_the_added_block() {
         let mut p = res_iv();
         let spec = SemiFold {
@@ -494,6 +560,20 @@ mod tests {
             AddedBlock::Separate {
                 interactions: vec!["BC".into()],
                 runs: vec![vec![-1, -1, 1]],
+            }
+        );
+        // Without runs the labels follow the letters all the same (the letters were once read
+        // against the runs' length, zero here, and kept as they were).
+        let empty = AddedBlock::Separate {
+            interactions: vec!["AC".into(), "BE".into()],
+            runs: Vec::new(),
+        };
+        let m5 = |i: usize| if i == 0 { 4 } else { i - 1 };
+        assert_eq!(
+            empty.factor_moved(m5),
+            AddedBlock::Separate {
+                interactions: vec!["BE".into(), "AD".into()],
+                runs: Vec::new(),
             }
         );
     }

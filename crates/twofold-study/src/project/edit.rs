@@ -253,11 +253,7 @@ impl Project {
                     .take()
                     .and_then(|b| b.factor_removed(index));
                 // Letters after the removed factor shift down by one; terms using it are dropped.
-                self.remap_terms(|i| match i.cmp(&index) {
-                    std::cmp::Ordering::Less => Some(i),
-                    std::cmp::Ordering::Equal => None,
-                    std::cmp::Ordering::Greater => Some(i - 1),
-                });
+                self.remap_terms(index_after_removal(index));
             }
             Edit::RenameFactor { index, name } => self.factor_mut(index)?.name = name,
             Edit::MoveFactor { from, to } => {
@@ -451,32 +447,50 @@ impl Project {
     /// index to its new one, or `None` when the factor is gone (the term is then dropped, since
     /// it no longer names anything). Labels that never parsed are kept as they are.
     fn remap_terms(&mut self, map: impl Fn(usize) -> Option<usize>) {
-        let old_k = MAX_FACTORS;
         let new_k = self.factors.len();
         for resp in &mut self.responses {
             let mut out = Vec::with_capacity(resp.model.terms.len());
             for label in &resp.model.terms {
-                let Ok(term) = Term::parse(label, old_k) else {
-                    out.push(label.clone());
-                    continue;
-                };
-                let mut bits = 0u32;
-                let mut keep = true;
-                for i in term.factors() {
-                    match map(i) {
-                        Some(j) if j < new_k => bits |= 1 << j,
-                        _ => keep = false,
-                    }
-                }
-                if keep && bits != 0 {
-                    out.push(Term::from_bits(bits).label());
-                }
+                out.extend(remap_label(label, &map, new_k));
             }
             sort_terms(&mut out, new_k);
             out.dedup();
             resp.model.terms = out;
         }
     }
+}
+
+/// Where factor `i` goes after factor `index` is removed: letters after it shift down by one,
+/// and the removed factor itself goes nowhere (`None`).
+pub(crate) fn index_after_removal(index: usize) -> impl Fn(usize) -> Option<usize> {
+    move |i| match i.cmp(&index) {
+        std::cmp::Ordering::Less => Some(i),
+        std::cmp::Ordering::Equal => None,
+        std::cmp::Ordering::Greater => Some(i - 1),
+    }
+}
+
+/// A term label after the factor letters changed. `map` takes an old factor index to its new
+/// one, or `None` when the factor is gone; the term is then dropped (`None`), as is one whose new
+/// letter would be at or beyond `new_k`. The label is read against [`MAX_FACTORS`], so it does
+/// not depend on how many factors the old design had; a label that never parsed is kept as it
+/// is.
+pub(crate) fn remap_label(
+    label: &str,
+    map: impl Fn(usize) -> Option<usize>,
+    new_k: usize,
+) -> Option<String> {
+    let Ok(term) = Term::parse(label, MAX_FACTORS) else {
+        return Some(label.to_owned());
+    };
+    let mut bits = 0u32;
+    for i in term.factors() {
+        match map(i) {
+            Some(j) if j < new_k => bits |= 1 << j,
+            _ => return None,
+        }
+    }
+    (bits != 0).then(|| Term::from_bits(bits).label())
 }
 
 /// Sorts labels in the trade's order (short terms first, then alphabetical); unreadable labels go

@@ -23,6 +23,7 @@
 
 use super::model::{DesignSettings, Project};
 use super::regenerate::{PlanError, carry_over, fraction_of, partners, plan_runs};
+use twofold_core::augment::Augmentation;
 use twofold_core::foldover::{FoldKind, fold_over};
 
 /// Centre points a follow-up adds to each block. Common practice, no source for the exact
@@ -130,6 +131,16 @@ impl FollowUpPreview {
 impl Project {
     /// The design settings after `follow_up`, or why it cannot be added.
     pub fn follow_up_design(&self, follow_up: FollowUp) -> Result<DesignSettings, FollowUpError> {
+        self.follow_up_design_with(follow_up).map(|(d, _)| d)
+    }
+
+    /// [`Self::follow_up_design`], with the search result of runs chosen to separate
+    /// interactions (`None` for every other follow-up), so a caller that describes them does
+    /// not search again.
+    pub(crate) fn follow_up_design_with(
+        &self,
+        follow_up: FollowUp,
+    ) -> Result<(DesignSettings, Option<Augmentation>), FollowUpError> {
         if self.runs.is_empty() {
             return Err(FollowUpError::NoRuns);
         }
@@ -142,17 +153,22 @@ impl Project {
             return Err(FollowUpError::AlreadyAxial);
         }
         let screening = d.screening_runs().is_some();
-        if d.added.is_some() && matches!(follow_up, FollowUp::FoldOver(_)) {
+        if d.has_follow_up_block()
+            && matches!(
+                follow_up,
+                FollowUp::FoldOver(_) | FollowUp::SemiFold(_) | FollowUp::Separate(_)
+            )
+        {
             return Err(FollowUpError::AlreadyFolded);
         }
+        let mut augmentation = None;
         match follow_up {
             FollowUp::SemiFold(_) | FollowUp::Separate(_) => {
-                d.added = Some(super::added_block::block_for(self, &d, &follow_up)?);
+                let (block, found) = super::added_block::block_for(self, &d, &follow_up)?;
+                d.added = Some(block);
+                augmentation = found;
             }
             FollowUp::FoldOver(kind) if screening => {
-                if d.fold.is_some() {
-                    return Err(FollowUpError::AlreadyFolded);
-                }
                 if kind != twofold_core::foldover::FoldKind::Full {
                     return Err(FollowUpError::from(PlanError::Invalid(
                         "a screening design is folded over in full; single-factor folds are not offered for it".into(),
@@ -161,9 +177,6 @@ impl Project {
                 d.fold = Some(kind);
             }
             FollowUp::FoldOver(kind) => {
-                if d.fold.is_some() {
-                    return Err(FollowUpError::AlreadyFolded);
-                }
                 let fraction = fraction_of(
                     self.factors.len(),
                     &d,
@@ -183,7 +196,10 @@ impl Project {
             }
             FollowUp::Replicate => {
                 // Screening designs are planned in one block (their blocking is not offered yet).
-                if d.replicates == 1 && d.fold.is_none() && !screening {
+                // After a follow-up block the sheet holds two blocks already, laid out without
+                // other blocking: the replicate repeats each block's runs within that block
+                // (`twofold_core::plan::build_added_block_plan` refuses replicates as blocks).
+                if d.replicates == 1 && !d.has_follow_up_block() && !screening {
                     d.replicates_as_blocks = true;
                 }
                 d.replicates = d.replicates.saturating_add(1);
@@ -193,13 +209,22 @@ impl Project {
                 super::axial::check_estimable(self, &d)?;
             }
         }
-        Ok(d)
+        Ok((d, augmentation))
     }
 
     /// What `follow_up` would do to the sheet, computed by laying the new sheet out; an error
     /// says why it cannot be added.
     pub fn preview_follow_up(&self, follow_up: FollowUp) -> Result<FollowUpPreview, FollowUpError> {
-        let design = self.follow_up_design(follow_up)?;
+        self.preview_follow_up_with(follow_up).map(|(p, _)| p)
+    }
+
+    /// [`Self::preview_follow_up`], with the search result of runs chosen to separate
+    /// interactions (see [`Self::follow_up_design_with`]).
+    pub(crate) fn preview_follow_up_with(
+        &self,
+        follow_up: FollowUp,
+    ) -> Result<(FollowUpPreview, Option<Augmentation>), FollowUpError> {
+        let (design, augmentation) = self.follow_up_design_with(follow_up)?;
         let (fresh, _) = plan_runs(self, &design)?;
         let pairs = partners(&self.runs, &fresh);
         let lost: usize = self
@@ -221,7 +246,7 @@ impl Project {
                     .is_none_or(|n| n.run_order != r.run_order || n.block != r.block)
             })
             .count();
-        Ok(FollowUpPreview {
+        let preview = FollowUpPreview {
             design,
             runs_before: self.runs.len(),
             runs_after: fresh.len(),
@@ -229,7 +254,8 @@ impl Project {
             pure_error_df_before: pure_error_df(&self.runs),
             pure_error_df_after: pure_error_df(&fresh),
             blocks_after: fresh.iter().map(|r| r.block).max().unwrap_or(1),
-        })
+        };
+        Ok((preview, augmentation))
     }
 
     /// Adds `follow_up` (see the module documentation); the project is unchanged on error.

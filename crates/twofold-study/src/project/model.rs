@@ -224,6 +224,13 @@ impl DesignSettings {
             .map(|n| n as usize)
             .filter(|n| twofold_core::screening::SCREENING_RUNS.contains(n))
     }
+
+    /// Whether the sheet already holds a follow-up block after the fraction's runs: a fold-over
+    /// ([`Self::fold`]) or another added block ([`Self::added`]). Either one is block 2, laid
+    /// out without other blocking, and a second one is not offered.
+    pub fn has_follow_up_block(&self) -> bool {
+        self.fold.is_some() || self.added.is_some()
+    }
 }
 
 impl Default for DesignSettings {

@@ -239,7 +239,7 @@ mod tests {
             .iter()
             .filter(|r| !r.centre && r.block == 2 && !in_axial(r.block))
             .count();
-        if p.design.fold.is_some() || p.design.added.is_some() {
+        if p.design.has_follow_up_block() {
             assert_eq!(count.follow_up.map(|(_, n)| n), Some(follow));
         }
         count

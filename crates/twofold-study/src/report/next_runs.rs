@@ -289,8 +289,7 @@ pub fn next_runs(project: &Project, report: Option<&Report>) -> Vec<NextRun> {
     let preview = |f: FollowUp| project.preview_follow_up(f).map_err(|e| e.to_string());
     if let Some((fraction, now)) = &current
         && !fraction.is_full()
-        && project.design.fold.is_none()
-        && project.design.added.is_none()
+        && !project.design.has_follow_up_block()
     {
         let k = project.factors.len();
         let kinds = std::iter::once(FoldKind::Full).chain((0..k).map(FoldKind::Factor));
@@ -338,7 +337,7 @@ pub fn next_runs(project: &Project, report: Option<&Report>) -> Vec<NextRun> {
         }
     }
     if let Some(n) = project.design.screening_runs()
-        && project.design.fold.is_none()
+        && !project.design.has_follow_up_block()
     {
         // The mirror image of a screening design cancels every partial alias of a main effect
         // with a two-factor interaction (see `twofold_core::screening::screening_runs`).
@@ -411,6 +410,11 @@ pub fn next_runs(project: &Project, report: Option<&Report>) -> Vec<NextRun> {
                 "Runs as a block of its own (block {} and after), so a shift between sessions does not bias the effects; the runs in the sheet keep their order.",
                 project.runs.iter().map(|r| r.block).max().unwrap_or(1) + 1
             ));
+        }
+        if project.design.has_follow_up_block() {
+            resolves.push(
+                "Repeats each block's runs within that block: the follow-up block already in the sheet is laid out without other blocking, so the replicate cannot be a block of its own.".into(),
+            );
         }
         resolves.push(pure_error_words(x));
     }

@@ -3,7 +3,6 @@
 //! interactions (D-optimal augmentation). What each resolves is worked out by least squares on
 //! the combined runs ([`twofold_core::estimability`]), not from alias chains.
 
-use twofold_core::augment::separate_interactions;
 use twofold_core::design::FractionalDesign;
 use twofold_core::foldover::FoldKind;
 use twofold_core::semifold::{SemiFold, SemiFoldOver, semifold};
@@ -218,23 +217,11 @@ pub fn separate_option(
     let mut terms = named.clone();
     terms.extend(kept.iter().copied());
     let follow_up = FollowUp::Separate(terms.clone());
-    let preview = project
-        .preview_follow_up(follow_up.clone())
-        .map_err(|e| e.to_string());
-    let mut resolves = Vec::new();
-    if preview.is_ok() {
-        let rows: Vec<Vec<i8>> = project.runs.iter().map(|r| r.levels.clone()).collect();
-        let blocks: Vec<u32> = project.runs.iter().map(|r| r.block).collect();
-        let a = separate_interactions(
-            &rows,
-            &blocks,
-            k,
-            &terms,
-            project.design.centre_points_per_block as usize,
-        )
-        .map_err(|e| e.to_string())?;
-        resolves = separate_words(k, &a);
-    }
+    // One search: the preview's runs and the sentences come from the same result.
+    let (preview, resolves) = match project.preview_follow_up_with(follow_up.clone()) {
+        Ok((p, a)) => (Ok(p), a.map(|a| separate_words(k, &a)).unwrap_or_default()),
+        Err(e) => (Err(e.to_string()), Vec::new()),
+    };
     Ok(NextRun {
         follow_up,
         title: if kept.is_empty() {

@@ -344,11 +344,6 @@ fn compute(a: &PlanArgs) -> Result<Planned, PlanInputError> {
             Some(fold_over(&design, kind).map_err(|e| invalid(e.to_string()))?)
         }
     };
-    if a.augment.is_some() && (a.hard_to_change.is_some() || a.sigma.is_some()) {
-        return Err(invalid(
-            "--augment with --hard-to-change or --sigma is not offered yet",
-        ));
-    }
     let mut follow = None;
     let mut plan = match (&fold, &follow_request) {
         (Some(f), _) => build_fold_over_plan(&spec, f).map_err(|e| invalid(e.to_string()))?,

@@ -226,7 +226,7 @@ fn has_design_errors(project: &Project, draft: &DesignSettings) -> bool {
         };
     (draft.centre_points_per_block > 0 && project.factors.iter().any(|f| !f.is_numeric()))
         || draft.replicates == 0
-        || ((draft.fold.is_some() || draft.added.is_some()) && blocked)
+        || (draft.has_follow_up_block() && blocked)
 }
 
 /// With hard-to-change factors: how many whole plots (resets) the plan needs, against a
